@@ -1,0 +1,1 @@
+"""ridesim.io layer."""

@@ -1,0 +1,1 @@
+"""ridesim.metrics layer."""

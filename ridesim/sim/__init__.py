@@ -1,0 +1,1 @@
+"""ridesim.sim layer."""
