@@ -1,0 +1,1188 @@
+"""Scenario files: the TOML schema of one build and its validating loader.
+
+A scenario describes one build: either its wheel (``[wheel]``) or its track
+(``[track]``) -- the solver derives the other -- plus the ``[vehicle]``,
+``[drive]``, ``[surface]`` and ``[run]`` settings, all of which have defaults.
+Every dimensional key name ends in its SI unit (``_m``, ``_kg``, ``_s``,
+``_Nm``, ...).
+
+Loading only validates data; it builds no model objects. Every problem raises
+:class:`ridesim.errors.ScenarioError` with a one-line message that starts with
+the dotted key path, names the offending value and says how to fix it, for
+example ``wheel.apothem_m must be > 0, got -0.3``.
+
+Examples
+--------
+>>> sc = scenario_from_dict({"wheel": {"shape": "circle", "radius_m": 0.1}})
+>>> sc.wheel.radius_m
+0.1
+>>> sc.replace("surface.friction", 0.6).surface.friction
+0.6
+"""
+
+from __future__ import annotations
+
+import difflib
+import json
+import math
+import numbers
+import tomllib
+from collections.abc import Iterable, Mapping
+from dataclasses import dataclass, field, fields
+from pathlib import Path
+from typing import Any
+
+from ridesim.errors import ScenarioError
+
+__all__ = [
+    "WHEEL_SHAPES",
+    "TRACK_SHAPES",
+    "DRIVE_MODES",
+    "DEFAULT_WHEEL_THICKNESS_M",
+    "DEFAULT_WHEEL_DENSITY_KG_M3",
+    "MAX_TIMESTEP_S",
+    "WheelSpec",
+    "TrackSpec",
+    "VehicleSpec",
+    "DriveSpec",
+    "SurfaceSpec",
+    "RunSpec",
+    "Scenario",
+    "load_scenario",
+    "scenario_from_dict",
+]
+
+WHEEL_SHAPES = ("polygon", "ellipse", "circle", "polar", "outline")
+"""Allowed values of ``wheel.shape``."""
+
+TRACK_SHAPES = ("wave", "sawtooth", "formula", "points")
+"""Allowed values of ``track.shape``."""
+
+DRIVE_MODES = ("speed", "shaft_speed", "torque")
+"""Allowed values of ``drive.mode``."""
+
+DEFAULT_WHEEL_THICKNESS_M = 0.02
+"""Wheel plate thickness in m used when none is given (also for derived wheels)."""
+
+DEFAULT_WHEEL_DENSITY_KG_M3 = 700.0
+"""Wheel material density in kg/m^3 used when none is given (also for derived wheels)."""
+
+MAX_TIMESTEP_S = 0.02
+"""Largest accepted ``run.timestep_s`` in s."""
+
+Point = tuple[float, float]
+
+_POLYGON_SIZES = ("apothem_m", "circumradius_m", "side_m", "vertices_m")
+_WHEEL_SHAPE_KEYS: dict[str, tuple[str, ...]] = {
+    "polygon": ("sides",) + _POLYGON_SIZES,
+    "ellipse": ("semi_axes_m",),
+    "circle": ("radius_m",),
+    "polar": ("radius_formula",),
+    "outline": ("points_m", "file"),
+}
+_WHEEL_COMMON = (
+    "shape",
+    "axle_m",
+    "thickness_m",
+    "density_kg_m3",
+    "mass_kg",
+    "inertia_kg_m2",
+    "corner_radius_m",
+)
+_TRACK_SHAPE_KEYS: dict[str, tuple[str, ...]] = {
+    "wave": ("amplitude_m", "wavelength_m"),
+    "sawtooth": ("rise_m", "run_m"),
+    "formula": ("formula", "period_m"),
+    "points": ("points_m", "file", "period_m"),
+}
+_TRACK_COMMON = ("shape", "lobes", "depth_m")
+_SECTIONS = ("wheel", "track", "vehicle", "drive", "surface", "run")
+_TOP_KEYS = ("name", "description") + _SECTIONS
+
+# Groups of keys of which at most one may be given. ``Scenario.replace`` drops
+# the other members of a group when one member is set, so that a sweep can
+# switch e.g. from apothem_m to side_m with a single change.
+_EXCLUSIVE: dict[str, tuple[tuple[str, ...], ...]] = {
+    "wheel": (_POLYGON_SIZES, ("points_m", "file")),
+    "track": (("points_m", "file"), ("lobes", "depth_m")),
+}
+
+_POLYGON_NAMES = {
+    "triangle": 3,
+    "square": 4,
+    "pentagon": 5,
+    "hexagon": 6,
+    "heptagon": 7,
+    "octagon": 8,
+    "nonagon": 9,
+    "decagon": 10,
+}
+
+_MISSING: Any = object()
+
+
+# ----------------------------------------------------------------------------
+# Specs
+# ----------------------------------------------------------------------------
+
+
+@dataclass(frozen=True)
+class WheelSpec:
+    """Validated ``[wheel]`` section: the wheel outline and its mass properties.
+
+    Only the fields of the chosen ``shape`` are set; the others are None.
+    Coordinates are in the wheel frame, in m.
+
+    Attributes
+    ----------
+    shape : str
+        One of :data:`WHEEL_SHAPES`.
+    sides : int or None
+        Polygon: number of sides (>= 3). None when ``vertices_m`` is given
+        without ``sides``.
+    apothem_m, circumradius_m, side_m : float or None
+        Polygon of ``sides`` equal sides: exactly one size, in m.
+    vertices_m : tuple of (float, float) or None
+        Polygon given by its corners [x, y] in m, at least 3.
+    semi_axes_m : (float, float) or None
+        Ellipse: semi-axes (a, b) in m, a along x.
+    radius_m : float or None
+        Circle: radius in m.
+    radius_formula : str or None
+        Polar: radius in m as a formula in the polar angle ``phi`` (rad),
+        measured from the axle. Stored unparsed.
+    points_m : tuple of (float, float) or None
+        Outline given inline: points [x, y] in m, at least 3.
+    file : str or None
+        Outline given as a CSV file of x, y in m: resolved absolute path.
+    axle_m : (float, float)
+        Axle position [x, y] in m in the coordinates of the outline. Always
+        (0, 0) for ``polar``, whose radius is measured from the axle.
+    thickness_m : float
+        Plate thickness in m.
+    density_kg_m3 : float
+        Material density in kg/m^3.
+    mass_kg : float or None
+        Wheel mass in kg; None: area * thickness * density.
+    inertia_kg_m2 : float or None
+        Moment of inertia about the axle in kg*m^2; None: from the outline
+        as a uniform plate.
+    corner_radius_m : float
+        Radius in m to which sharp corners are rounded in the simulation
+        (0: sharp).
+    """
+
+    shape: str
+    sides: int | None = None
+    apothem_m: float | None = None
+    circumradius_m: float | None = None
+    side_m: float | None = None
+    vertices_m: tuple[Point, ...] | None = None
+    semi_axes_m: Point | None = None
+    radius_m: float | None = None
+    radius_formula: str | None = None
+    points_m: tuple[Point, ...] | None = None
+    file: str | None = None
+    axle_m: Point = (0.0, 0.0)
+    thickness_m: float = DEFAULT_WHEEL_THICKNESS_M
+    density_kg_m3: float = DEFAULT_WHEEL_DENSITY_KG_M3
+    mass_kg: float | None = None
+    inertia_kg_m2: float | None = None
+    corner_radius_m: float = 0.0
+
+
+@dataclass(frozen=True)
+class TrackSpec:
+    """Validated ``[track]`` section: the track profile y(x) the wheel must fit.
+
+    Only the fields of the chosen ``shape`` are set; the others are None.
+
+    Attributes
+    ----------
+    shape : str
+        One of :data:`TRACK_SHAPES`.
+    amplitude_m, wavelength_m : float or None
+        Wave: amplitude and wavelength in m.
+    rise_m, run_m : float or None
+        Sawtooth: tooth height and horizontal length in m.
+    formula : str or None
+        Formula: height in m as a formula in ``x`` (m). Stored unparsed.
+    period_m : float or None
+        Formula: period in m (required). Points: period in m, or None for
+        the x span of the points (computed by the model layer, because a
+        ``file`` is not read here).
+    points_m : tuple of (float, float) or None
+        Points given inline: [x, y] in m, at least 3, x strictly increasing.
+    file : str or None
+        Points given as a CSV file of x, y in m: resolved absolute path.
+    lobes : int or None
+        Track periods per wheel revolution (>= 1). None when ``depth_m`` is
+        given instead; 1 when neither is given.
+    depth_m : float or None
+        Depth in m of the axle path below which the wheel is closed, given
+        instead of ``lobes``.
+    """
+
+    shape: str
+    amplitude_m: float | None = None
+    wavelength_m: float | None = None
+    rise_m: float | None = None
+    run_m: float | None = None
+    formula: str | None = None
+    period_m: float | None = None
+    points_m: tuple[Point, ...] | None = None
+    file: str | None = None
+    lobes: int | None = 1
+    depth_m: float | None = None
+
+
+@dataclass(frozen=True)
+class VehicleSpec:
+    """Validated ``[vehicle]`` section: the body carried by the axles.
+
+    Attributes
+    ----------
+    body_mass_kg : float
+        Body mass in kg (without wheels).
+    body_inertia_kg_m2 : float or None
+        Body moment of inertia about its centre of mass in kg*m^2; None: the
+        simulator estimates one.
+    axles : int
+        Number of axles (>= 1), each with one wheel profile.
+    wheelbase_m : float
+        Distance between neighbouring axles in m; > 0 when ``axles`` > 1,
+        ignored when ``axles`` = 1.
+    coupled : bool
+        True when all axles are forced to turn together (chain or gears).
+    seat_m : (float, float)
+        Seat (rider) point [x, y] in m in the body frame, whose motion the
+        ride metrics report.
+    driven_axles : tuple of int or None
+        0-based indices of the driven axles; None: all axles.
+    """
+
+    body_mass_kg: float = 10.0
+    body_inertia_kg_m2: float | None = None
+    axles: int = 1
+    wheelbase_m: float = 0.0
+    coupled: bool = False
+    seat_m: Point = (0.0, 0.3)
+    driven_axles: tuple[int, ...] | None = None
+
+    @property
+    def driven_axle_indices(self) -> tuple[int, ...]:
+        """Indices of the driven axles, with None expanded to all axles.
+
+        Returns
+        -------
+        tuple of int
+            0-based axle indices in increasing order of appearance.
+        """
+        if self.driven_axles is None:
+            return tuple(range(self.axles))
+        return self.driven_axles
+
+
+@dataclass(frozen=True)
+class DriveSpec:
+    """Validated ``[drive]`` section: how the wheels are driven.
+
+    Attributes
+    ----------
+    mode : str
+        One of :data:`DRIVE_MODES`: ``speed`` holds the vehicle speed,
+        ``shaft_speed`` holds the axle angular speed, ``torque`` applies a
+        constant axle torque.
+    speed_m_s : float
+        Target vehicle speed in m/s (mode ``speed``).
+    accel_m_s2 : float
+        Ramp-up acceleration in m/s^2 towards the target; 0: start at the
+        target.
+    max_torque_Nm : float
+        Largest torque in N*m the drive may apply to hold its target.
+    torque_Nm : float or None
+        Constant axle torque in N*m (required for mode ``torque``).
+    shaft_speed_rad_s : float or None
+        Target axle angular speed in rad/s (required for mode
+        ``shaft_speed``).
+    """
+
+    mode: str = "speed"
+    speed_m_s: float = 0.5
+    accel_m_s2: float = 0.0
+    max_torque_Nm: float = 50.0
+    torque_Nm: float | None = None
+    shaft_speed_rad_s: float | None = None
+
+
+@dataclass(frozen=True)
+class SurfaceSpec:
+    """Validated ``[surface]`` section: contact between wheel and track.
+
+    Attributes
+    ----------
+    friction : float
+        Coulomb friction coefficient (dimensionless, > 0).
+    rolling_resistance : float
+        Rolling resistance coefficient (dimensionless, >= 0).
+    """
+
+    friction: float = 0.8
+    rolling_resistance: float = 0.0
+
+
+@dataclass(frozen=True)
+class RunSpec:
+    """Validated ``[run]`` section: simulation length and solver settings.
+
+    Attributes
+    ----------
+    duration_s : float
+        Simulated time in s.
+    timestep_s : float
+        Integration step in s (at most :data:`MAX_TIMESTEP_S`).
+    settle_s : float
+        Initial time in s left out of the ride metrics; < ``duration_s``.
+    iterations : int
+        Constraint solver iterations per step (1 to 1000).
+    """
+
+    duration_s: float = 6.0
+    timestep_s: float = 0.001
+    settle_s: float = 1.0
+    iterations: int = 30
+
+
+@dataclass(frozen=True)
+class Scenario:
+    """A validated scenario: one build and how to run it.
+
+    Build one with :func:`load_scenario` or :func:`scenario_from_dict`;
+    constructing it directly skips validation. Exactly one of ``wheel`` and
+    ``track`` is set. ``source`` and ``base_dir`` do not take part in
+    equality, so two scenarios with the same values compare equal.
+
+    Attributes
+    ----------
+    name : str
+        Short name (default: the file stem).
+    description : str
+        Free text.
+    wheel : WheelSpec or None
+        The given wheel, or None when the track is given.
+    track : TrackSpec or None
+        The given track, or None when the wheel is given.
+    vehicle : VehicleSpec
+        Body and axles.
+    drive : DriveSpec
+        Drive mode and targets.
+    surface : SurfaceSpec
+        Contact coefficients.
+    run : RunSpec
+        Simulation settings.
+    source : str
+        Where the scenario came from: the absolute file path, or a label
+        such as ``"<dict>"``.
+    base_dir : str
+        Absolute folder against which relative ``file`` keys are resolved.
+    """
+
+    name: str
+    description: str
+    wheel: WheelSpec | None
+    track: TrackSpec | None
+    vehicle: VehicleSpec
+    drive: DriveSpec
+    surface: SurfaceSpec
+    run: RunSpec
+    source: str = field(default="<dict>", compare=False)
+    base_dir: str = field(default=".", compare=False)
+
+    def to_dict(self) -> dict[str, Any]:
+        """Return the validated values as plain, TOML-compatible data.
+
+        Keys left unset (None) are omitted and tuples become lists, so the
+        result can be written as TOML or passed back to
+        :func:`scenario_from_dict`, which yields an equal scenario.
+
+        Returns
+        -------
+        dict
+            ``name``, ``description`` and one sub-dict per section.
+        """
+        out: dict[str, Any] = {"name": self.name, "description": self.description}
+        if self.wheel is not None:
+            wheel = _spec_dict(self.wheel)
+            if self.wheel.shape == "polar":
+                del wheel["axle_m"]
+            out["wheel"] = wheel
+        if self.track is not None:
+            out["track"] = _spec_dict(self.track)
+        out["vehicle"] = _spec_dict(self.vehicle)
+        out["drive"] = _spec_dict(self.drive)
+        out["surface"] = _spec_dict(self.surface)
+        out["run"] = _spec_dict(self.run)
+        return out
+
+    def replace(self, key: str, value: Any) -> Scenario:
+        """Return a copy with one dotted key changed, validated again.
+
+        Parameters
+        ----------
+        key : str
+            ``"section.key"`` such as ``"surface.friction"``, a top-level key
+            (``"name"``, ``"description"``) or a whole section (``"track"``,
+            with a dict as value).
+        value : object
+            New value in the key's unit; None removes the key so that its
+            default applies. Setting one key of a mutually exclusive group
+            (``apothem_m``/``circumradius_m``/``side_m``/``vertices_m``,
+            ``points_m``/``file``, ``lobes``/``depth_m``) removes the others.
+
+        Returns
+        -------
+        Scenario
+            The new scenario; this one is unchanged.
+
+        Raises
+        ------
+        ScenarioError
+            If the key path is malformed or the changed scenario is invalid.
+        """
+        return self.replace_many({key: value})
+
+    def replace_many(self, changes: Mapping[str, Any]) -> Scenario:
+        """Return a copy with several dotted keys changed, validated once.
+
+        Use this when the changes are only valid together, e.g.
+        ``{"wheel.shape": "circle", "wheel.radius_m": 0.1, "wheel.sides": None,
+        "wheel.apothem_m": None}``.
+
+        Parameters
+        ----------
+        changes : mapping of str to object
+            Dotted key paths and their new values, as in :meth:`replace`.
+
+        Returns
+        -------
+        Scenario
+            The new scenario; this one is unchanged.
+
+        Raises
+        ------
+        ScenarioError
+            If a key path is malformed or the changed scenario is invalid.
+        """
+        data = self.to_dict()
+        parsed = [(_split_key_path(k), v) for k, v in changes.items()]
+        changed = {parts for parts, _ in parsed}
+        for parts, _ in parsed:
+            if len(parts) == 2:
+                section, name = parts
+                for group in _EXCLUSIVE.get(section, ()):
+                    if name not in group:
+                        continue
+                    siblings = [g for g in group if g != name]
+                    if section == "wheel" and name == "vertices_m":
+                        siblings.append("sides")
+                    for sibling in siblings:
+                        if (section, sibling) not in changed:
+                            data.get(section, {}).pop(sibling, None)
+        for parts, value in parsed:
+            if len(parts) == 1:
+                data[parts[0]] = value
+            else:
+                section, name = parts
+                table = data.get(section)
+                if not isinstance(table, dict):
+                    table = {}
+                    data[section] = table
+                table[name] = value
+        return scenario_from_dict(data, base_dir=self.base_dir, source=self.source)
+
+
+def _spec_dict(spec: Any) -> dict[str, Any]:
+    """Turn a spec dataclass into a plain dict without None values."""
+    return {
+        f.name: _plain(getattr(spec, f.name))
+        for f in fields(spec)
+        if getattr(spec, f.name) is not None
+    }
+
+
+def _plain(value: Any) -> Any:
+    """Turn nested tuples into lists."""
+    if isinstance(value, tuple):
+        return [_plain(v) for v in value]
+    return value
+
+
+def _split_key_path(key: Any) -> tuple[str, ...]:
+    """Split and check a dotted key path for :meth:`Scenario.replace`."""
+    if not isinstance(key, str):
+        raise ScenarioError(
+            f"key path must be a string such as \"surface.friction\", got {_show(key)} "
+            f"({_type(key)})"
+        )
+    parts = tuple(key.split("."))
+    if len(parts) > 2 or not all(parts):
+        raise ScenarioError(
+            f"{key} is not a scenario key path; use \"section.key\" such as "
+            f"\"surface.friction\", or a top-level key such as \"name\""
+        )
+    if parts[0] not in _TOP_KEYS:
+        raise _unknown("", parts[0], _TOP_KEYS)
+    if len(parts) == 2 and parts[0] not in _SECTIONS:
+        raise ScenarioError(
+            f"{key} is not a scenario key path: {parts[0]} is a top-level key, not a section; "
+            f"use \"{parts[0]}\""
+        )
+    return parts
+
+
+# ----------------------------------------------------------------------------
+# Loading
+# ----------------------------------------------------------------------------
+
+
+def load_scenario(path: str | Path) -> Scenario:
+    """Read and validate a TOML scenario file.
+
+    Parameters
+    ----------
+    path : str or path-like
+        The ``.toml`` file. Relative ``file`` keys inside it are resolved
+        against the folder that holds it.
+
+    Returns
+    -------
+    Scenario
+        The validated scenario; its name defaults to the file stem.
+
+    Raises
+    ------
+    ScenarioError
+        If the file is missing, unreadable, not valid TOML, or any key is
+        missing, unknown or out of range.
+    """
+    p = Path(path)
+    if not p.exists():
+        raise ScenarioError(f"scenario file not found: {p}")
+    if p.is_dir():
+        raise ScenarioError(f"scenario path is a folder, not a file: {p}")
+    try:
+        with p.open("rb") as fh:
+            data = tomllib.load(fh)
+    except tomllib.TOMLDecodeError as exc:
+        raise ScenarioError(f"{p}: TOML syntax error: {_one_line(str(exc))}") from exc
+    except UnicodeDecodeError as exc:
+        raise ScenarioError(
+            f"{p}: not UTF-8 text ({exc.reason} at byte {exc.start}); save the file as UTF-8"
+        ) from exc
+    except OSError as exc:
+        raise ScenarioError(f"{p}: cannot read scenario file ({exc.strerror})") from exc
+    resolved = p.resolve()
+    return scenario_from_dict(data, base_dir=resolved.parent, source=str(resolved))
+
+
+def scenario_from_dict(
+    data: Mapping[str, Any],
+    base_dir: str | Path | None = None,
+    source: str = "<dict>",
+) -> Scenario:
+    """Validate scenario data given as nested dicts (as parsed from TOML).
+
+    Parameters
+    ----------
+    data : mapping
+        Top-level keys ``name``, ``description`` and the sections
+        ``wheel`` or ``track``, ``vehicle``, ``drive``, ``surface``, ``run``.
+        None values count as not given. Ints are accepted for floats, lists,
+        tuples and arrays for point lists.
+    base_dir : str or path-like, optional
+        Folder against which relative ``file`` keys are resolved; default:
+        the current working directory.
+    source : str, optional
+        Label of where the data came from. When it is a path, its stem is
+        the default name.
+
+    Returns
+    -------
+    Scenario
+        The validated scenario.
+
+    Raises
+    ------
+    ScenarioError
+        If any key is missing, unknown, of the wrong type or out of range.
+    """
+    base = Path(base_dir if base_dir is not None else ".").resolve()
+    if not isinstance(data, Mapping):
+        raise ScenarioError(
+            f"{source}: a scenario must be a table of keys, got {_show(data)} ({_type(data)})"
+        )
+    data = _drop_none(data)
+    for key in data:
+        if key not in _TOP_KEYS:
+            raise _unknown("", str(key), _TOP_KEYS)
+
+    default_name = "unnamed" if source.startswith("<") else Path(source).stem
+    name = _as_str("name", data.get("name", default_name), nonempty=True)
+    description = _as_str("description", data.get("description", ""), nonempty=False)
+
+    has_wheel, has_track = "wheel" in data, "track" in data
+    if has_wheel and has_track:
+        raise ScenarioError(
+            "give either [wheel] or [track], not both (the solver derives the other)"
+        )
+    if not has_wheel and not has_track:
+        raise ScenarioError("scenario has neither [wheel] nor [track]; add one")
+
+    wheel = _parse_wheel(data["wheel"], base) if has_wheel else None
+    track = _parse_track(data["track"], base) if has_track else None
+    return Scenario(
+        name=name,
+        description=description,
+        wheel=wheel,
+        track=track,
+        vehicle=_parse_vehicle(data.get("vehicle", {})),
+        drive=_parse_drive(data.get("drive", {})),
+        surface=_parse_surface(data.get("surface", {})),
+        run=_parse_run(data.get("run", {})),
+        source=source,
+        base_dir=str(base),
+    )
+
+
+# ----------------------------------------------------------------------------
+# Sections
+# ----------------------------------------------------------------------------
+
+
+def _parse_wheel(raw: Any, base: Path) -> WheelSpec:
+    """Validate the ``[wheel]`` section."""
+    t = _Table("wheel", raw)
+    if not t.has("shape"):
+        raise ScenarioError(f"wheel.shape is required; use one of {', '.join(WHEEL_SHAPES)}")
+    shape = t.choice("shape", WHEEL_SHAPES, hint=_polygon_name_hint)
+    own = _WHEEL_SHAPE_KEYS[shape]
+    allowed = set(_WHEEL_COMMON) | set(own)
+    if shape == "polar":
+        allowed.discard("axle_m")
+    every = set(_WHEEL_COMMON).union(*_WHEEL_SHAPE_KEYS.values())
+    for key in t.keys():
+        if key in allowed:
+            continue
+        if key in every:
+            if key == "axle_m":
+                fix = "the polar radius is measured from the axle; shift the formula instead"
+            else:
+                fix = f"use one of {', '.join(k for k in own if k != 'sides')}"
+            raise ScenarioError(f"wheel.{key} is not used by shape \"{shape}\"; {fix}")
+        raise _unknown("wheel", key, sorted(allowed), sorted(every))
+
+    values: dict[str, Any] = {"shape": shape}
+    if shape == "polygon":
+        sizes = [k for k in _POLYGON_SIZES if t.has(k)]
+        if len(sizes) != 1:
+            raise ScenarioError(
+                f"wheel: give exactly one of {', '.join(_POLYGON_SIZES)}" + _got_keys(sizes)
+            )
+        if sizes == ["vertices_m"]:
+            vertices = t.points("vertices_m")
+            _check_area("wheel.vertices_m", vertices)
+            values["vertices_m"] = vertices
+            sides = t.integer("sides", None, ge=3)
+            if sides is not None and sides != len(vertices):
+                raise ScenarioError(
+                    f"wheel.sides must equal the {len(vertices)} points of vertices_m, "
+                    f"got {sides}; remove sides"
+                )
+            values["sides"] = sides
+        else:
+            size = sizes[0]
+            values["sides"] = t.integer(
+                "sides", required=f"for shape \"polygon\" with {size}; add e.g. sides = 6", ge=3
+            )
+            values[size] = t.real(size, gt=0)
+    elif shape == "ellipse":
+        values["semi_axes_m"] = t.pair(
+            "semi_axes_m",
+            required="for shape \"ellipse\"; add semi_axes_m = [a, b] (a along x)",
+            gt=0,
+        )
+    elif shape == "circle":
+        values["radius_m"] = t.real(
+            "radius_m", required="for shape \"circle\"; add e.g. radius_m = 0.1", gt=0
+        )
+    elif shape == "polar":
+        values["radius_formula"] = t.string(
+            "radius_formula",
+            required="for shape \"polar\"; add e.g. radius_formula = \"0.1 + 0.01*cos(3*phi)\"",
+        )
+    else:  # outline
+        _point_source(t, "outline", values, base)
+        if values["points_m"] is not None:
+            _check_area("wheel.points_m", values["points_m"])
+
+    if shape != "polar":
+        values["axle_m"] = t.pair("axle_m", (0.0, 0.0))
+    values["thickness_m"] = t.real("thickness_m", DEFAULT_WHEEL_THICKNESS_M, gt=0)
+    values["density_kg_m3"] = t.real("density_kg_m3", DEFAULT_WHEEL_DENSITY_KG_M3, gt=0)
+    values["mass_kg"] = t.real("mass_kg", None, gt=0)
+    values["inertia_kg_m2"] = t.real("inertia_kg_m2", None, gt=0)
+    values["corner_radius_m"] = t.real("corner_radius_m", 0.0, ge=0)
+    return WheelSpec(**values)
+
+
+def _parse_track(raw: Any, base: Path) -> TrackSpec:
+    """Validate the ``[track]`` section."""
+    t = _Table("track", raw)
+    if not t.has("shape"):
+        raise ScenarioError(f"track.shape is required; use one of {', '.join(TRACK_SHAPES)}")
+    shape = t.choice("shape", TRACK_SHAPES)
+    own = _TRACK_SHAPE_KEYS[shape]
+    allowed = set(_TRACK_COMMON) | set(own)
+    every = set(_TRACK_COMMON).union(*_TRACK_SHAPE_KEYS.values())
+    for key in t.keys():
+        if key in allowed:
+            continue
+        if key in every:
+            raise ScenarioError(
+                f"track.{key} is not used by shape \"{shape}\"; use one of {', '.join(own)}"
+            )
+        raise _unknown("track", key, sorted(allowed), sorted(every))
+
+    values: dict[str, Any] = {"shape": shape}
+    req = f"for shape \"{shape}\""
+    if shape == "wave":
+        values["amplitude_m"] = t.real("amplitude_m", required=req, gt=0)
+        values["wavelength_m"] = t.real("wavelength_m", required=req, gt=0)
+    elif shape == "sawtooth":
+        values["rise_m"] = t.real("rise_m", required=req, gt=0)
+        values["run_m"] = t.real("run_m", required=req, gt=0)
+    elif shape == "formula":
+        values["formula"] = t.string(
+            "formula", required=f"{req}; add e.g. formula = \"0.02*cos(2*pi*x/0.3)\""
+        )
+        values["period_m"] = t.real("period_m", required=req, gt=0)
+    else:  # points
+        _point_source(t, "points", values, base)
+        points = values["points_m"]
+        if points is not None:
+            for i in range(1, len(points)):
+                if not points[i][0] > points[i - 1][0]:
+                    raise ScenarioError(
+                        f"track.points_m[{i}] x must be greater than the previous point's "
+                        f"x {_show(points[i - 1][0])}, got {_show(points[i][0])}; "
+                        "list the points left to right"
+                    )
+        period = t.real("period_m", None, gt=0)
+        if points is not None and period is not None:
+            span = points[-1][0] - points[0][0]
+            if period < span:
+                raise ScenarioError(
+                    f"track.period_m must be >= the x span of points_m ({span:g}), "
+                    f"got {_show(period)}"
+                )
+        values["period_m"] = period
+
+    if t.has("lobes") and t.has("depth_m"):
+        raise ScenarioError("track: give at most one of lobes, depth_m (got lobes and depth_m)")
+    if t.has("depth_m"):
+        values["depth_m"] = t.real("depth_m")
+        values["lobes"] = None
+    else:
+        values["lobes"] = t.integer("lobes", 1, ge=1)
+    return TrackSpec(**values)
+
+
+def _point_source(t: _Table, shape: str, values: dict[str, Any], base: Path) -> None:
+    """Read exactly one of ``points_m`` (inline) and ``file`` (CSV path)."""
+    given = [k for k in ("points_m", "file") if t.has(k)]
+    if len(given) != 1:
+        raise ScenarioError(f"{t.path}: give exactly one of points_m, file" + _got_keys(given))
+    values["points_m"] = t.points("points_m") if t.has("points_m") else None
+    values["file"] = t.file("file", base) if t.has("file") else None
+
+
+def _parse_vehicle(raw: Any) -> VehicleSpec:
+    """Validate the ``[vehicle]`` section."""
+    t = _Table("vehicle", raw)
+    t.only([f.name for f in fields(VehicleSpec)])
+    axles = t.integer("axles", 1, ge=1)
+    wheelbase = t.real("wheelbase_m", 0.0, ge=0)
+    if axles > 1 and wheelbase <= 0:
+        raise ScenarioError(
+            f"vehicle.wheelbase_m must be > 0 when axles = {axles}, got {_show(wheelbase)}; "
+            "give the distance between neighbouring axles"
+        )
+    driven = None
+    if t.has("driven_axles"):
+        items = _as_list("vehicle.driven_axles", t.raw("driven_axles"), "a list of axle indices")
+        if not items:
+            raise ScenarioError(
+                "vehicle.driven_axles must list at least one axle, got []; "
+                "remove it to drive all axles"
+            )
+        seen: list[int] = []
+        for i, item in enumerate(items):
+            path = f"vehicle.driven_axles[{i}]"
+            index = _as_int(path, item)
+            if index < 0 or index >= axles:
+                raise ScenarioError(
+                    f"{path} must be an axle index 0..{axles - 1} (axles = {axles}), got {index}"
+                )
+            if index in seen:
+                raise ScenarioError(
+                    f"vehicle.driven_axles lists axle {index} twice; list each axle once"
+                )
+            seen.append(index)
+        driven = tuple(seen)
+    return VehicleSpec(
+        body_mass_kg=t.real("body_mass_kg", 10.0, ge=0),
+        body_inertia_kg_m2=t.real("body_inertia_kg_m2", None, gt=0),
+        axles=axles,
+        wheelbase_m=wheelbase,
+        coupled=t.boolean("coupled", False),
+        seat_m=t.pair("seat_m", (0.0, 0.3)),
+        driven_axles=driven,
+    )
+
+
+def _parse_drive(raw: Any) -> DriveSpec:
+    """Validate the ``[drive]`` section."""
+    t = _Table("drive", raw)
+    t.only([f.name for f in fields(DriveSpec)])
+    mode = t.choice("mode", DRIVE_MODES, default="speed")
+    need_torque = "when drive.mode = \"torque\"; add e.g. torque_Nm = 2.0"
+    need_shaft = "when drive.mode = \"shaft_speed\"; add e.g. shaft_speed_rad_s = 3.0"
+    torque = t.real("torque_Nm", None, required=need_torque if mode == "torque" else None, gt=0)
+    shaft = t.real(
+        "shaft_speed_rad_s", None, required=need_shaft if mode == "shaft_speed" else None, gt=0
+    )
+    return DriveSpec(
+        mode=mode,
+        speed_m_s=t.real("speed_m_s", 0.5, gt=0),
+        accel_m_s2=t.real("accel_m_s2", 0.0, ge=0),
+        max_torque_Nm=t.real("max_torque_Nm", 50.0, gt=0),
+        torque_Nm=torque,
+        shaft_speed_rad_s=shaft,
+    )
+
+
+def _parse_surface(raw: Any) -> SurfaceSpec:
+    """Validate the ``[surface]`` section."""
+    t = _Table("surface", raw)
+    t.only([f.name for f in fields(SurfaceSpec)])
+    return SurfaceSpec(
+        friction=t.real("friction", 0.8, gt=0),
+        rolling_resistance=t.real("rolling_resistance", 0.0, ge=0),
+    )
+
+
+def _parse_run(raw: Any) -> RunSpec:
+    """Validate the ``[run]`` section."""
+    t = _Table("run", raw)
+    t.only([f.name for f in fields(RunSpec)])
+    duration = t.real("duration_s", 6.0, gt=0)
+    settle = t.real("settle_s", 1.0, ge=0)
+    if settle >= duration:
+        raise ScenarioError(
+            f"run.settle_s must be < run.duration_s ({_show(duration)}), got {_show(settle)}; "
+            "shorten settle_s or lengthen duration_s"
+        )
+    return RunSpec(
+        duration_s=duration,
+        timestep_s=t.real("timestep_s", 0.001, gt=0, le=MAX_TIMESTEP_S),
+        settle_s=settle,
+        iterations=t.integer("iterations", 30, ge=1, le=1000),
+    )
+
+
+# ----------------------------------------------------------------------------
+# Typed access with key-path messages
+# ----------------------------------------------------------------------------
+
+
+class _Table:
+    """One section's raw values, read with type and range checks."""
+
+    def __init__(self, path: str, raw: Any) -> None:
+        if not isinstance(raw, Mapping):
+            raise ScenarioError(
+                f"{path} must be a table (a [{path}] section), got {_show(raw)} ({_type(raw)})"
+            )
+        self.path = path
+        self.data = _drop_none(raw)
+
+    def key(self, name: str) -> str:
+        return f"{self.path}.{name}"
+
+    def keys(self) -> list[str]:
+        return [str(k) for k in self.data]
+
+    def has(self, name: str) -> bool:
+        return name in self.data
+
+    def raw(self, name: str) -> Any:
+        return self.data[name]
+
+    def only(self, allowed: Iterable[str]) -> None:
+        allowed = list(allowed)
+        for key in self.keys():
+            if key not in allowed:
+                raise _unknown(self.path, key, allowed)
+
+    def _absent(self, name: str, default: Any, required: str | None) -> Any:
+        if required is not None or default is _MISSING:
+            why = f" {required}" if required else ""
+            raise ScenarioError(f"{self.key(name)} is required{why}")
+        return default
+
+    def real(
+        self, name: str, default: Any = _MISSING, *, required: str | None = None, **bounds: float
+    ) -> Any:
+        if not self.has(name):
+            return self._absent(name, default, required)
+        value = _as_float(self.key(name), self.data[name])
+        _check_range(self.key(name), value, **bounds)
+        return value
+
+    def integer(
+        self, name: str, default: Any = _MISSING, *, required: str | None = None, **bounds: float
+    ) -> Any:
+        if not self.has(name):
+            return self._absent(name, default, required)
+        value = _as_int(self.key(name), self.data[name])
+        _check_range(self.key(name), value, **bounds)
+        return value
+
+    def boolean(self, name: str, default: Any = _MISSING) -> Any:
+        if not self.has(name):
+            return self._absent(name, default, None)
+        value = self.data[name]
+        if not isinstance(value, bool):
+            raise ScenarioError(
+                f"{self.key(name)} must be true or false, got {_show(value)} ({_type(value)})"
+            )
+        return value
+
+    def string(self, name: str, default: Any = _MISSING, *, required: str | None = None) -> Any:
+        if not self.has(name):
+            return self._absent(name, default, required)
+        return _as_str(self.key(name), self.data[name], nonempty=True)
+
+    def choice(
+        self, name: str, options: tuple[str, ...], default: Any = _MISSING, hint: Any = None
+    ) -> Any:
+        if not self.has(name):
+            return self._absent(name, default, None)
+        value = self.data[name]
+        if isinstance(value, str) and value in options:
+            return value
+        message = f"{self.key(name)} must be one of {', '.join(options)}, got {_show(value)}"
+        if not isinstance(value, str):
+            message += f" ({_type(value)})"
+        else:
+            extra = hint(value) if hint else None
+            close = difflib.get_close_matches(value.lower(), options, n=1, cutoff=0.6)
+            if extra:
+                message += f"; {extra}"
+            elif close:
+                message += f"; did you mean \"{close[0]}\"?"
+        raise ScenarioError(message)
+
+    def pair(
+        self, name: str, default: Any = _MISSING, *, required: str | None = None, **bounds: float
+    ) -> Any:
+        if not self.has(name):
+            return self._absent(name, default, required)
+        return _as_pair(self.key(name), self.data[name], **bounds)
+
+    def points(self, name: str) -> tuple[Point, ...]:
+        path = self.key(name)
+        items = _as_list(path, self.data[name], "a list of [x, y] points")
+        if len(items) < 3:
+            raise ScenarioError(
+                f"{path} must list at least 3 [x, y] points, got {len(items)}"
+            )
+        return tuple(_as_pair(f"{path}[{i}]", item) for i, item in enumerate(items))
+
+    def file(self, name: str, base: Path) -> str:
+        path = self.key(name)
+        text = _as_str(path, self.data[name], nonempty=True)
+        target = (base / Path(text).expanduser()).resolve()
+        if not target.is_file():
+            raise ScenarioError(
+                f"{path} {_show(text)} not found (looked for {target}; relative paths are "
+                f"read from the scenario's folder {base})"
+            )
+        return str(target)
+
+
+def _drop_none(raw: Mapping[str, Any]) -> dict[str, Any]:
+    """Copy a mapping without its None values (None means "not given")."""
+    return {k: v for k, v in raw.items() if v is not None}
+
+
+def _as_float(path: str, value: Any) -> float:
+    """Check a finite real number (bools rejected, ints accepted)."""
+    if isinstance(value, bool) or not isinstance(value, numbers.Real):
+        raise ScenarioError(f"{path} must be a number, got {_show(value)} ({_type(value)})")
+    number = float(value)
+    if not math.isfinite(number):
+        raise ScenarioError(f"{path} must be a finite number, got {_show(value)}")
+    return number
+
+
+def _as_int(path: str, value: Any) -> int:
+    """Check an integer (bools and floats rejected)."""
+    if isinstance(value, bool) or not isinstance(value, numbers.Integral):
+        raise ScenarioError(f"{path} must be an integer, got {_show(value)} ({_type(value)})")
+    return int(value)
+
+
+def _as_str(path: str, value: Any, *, nonempty: bool) -> str:
+    """Check a string, optionally non-blank."""
+    if not isinstance(value, str):
+        raise ScenarioError(f"{path} must be a string, got {_show(value)} ({_type(value)})")
+    if nonempty and not value.strip():
+        raise ScenarioError(f"{path} must not be empty, got {_show(value)}")
+    return value
+
+
+def _as_list(path: str, value: Any, what: str) -> list[Any]:
+    """Check a list-like value (list, tuple or array) and return it as a list."""
+    if hasattr(value, "tolist") and not isinstance(value, (str, bytes)):
+        value = value.tolist()
+    if not isinstance(value, (list, tuple)):
+        raise ScenarioError(f"{path} must be {what}, got {_show(value)} ({_type(value)})")
+    return list(value)
+
+
+def _as_pair(path: str, value: Any, **bounds: float) -> Point:
+    """Check a pair [x, y] of finite numbers, each within ``bounds``."""
+    items = _as_list(path, value, "a pair [x, y] of numbers")
+    if len(items) != 2:
+        raise ScenarioError(
+            f"{path} must be a pair [x, y] of numbers, got {_show(value)} "
+            f"({len(items)} values)"
+        )
+    x = _as_float(f"{path}[0]", items[0])
+    y = _as_float(f"{path}[1]", items[1])
+    _check_range(f"{path}[0]", x, **bounds)
+    _check_range(f"{path}[1]", y, **bounds)
+    return (x, y)
+
+
+def _check_range(
+    path: str,
+    value: float,
+    *,
+    gt: float | None = None,
+    ge: float | None = None,
+    lt: float | None = None,
+    le: float | None = None,
+) -> None:
+    """Raise when ``value`` breaks one of the given bounds."""
+    ok = (
+        (gt is None or value > gt)
+        and (ge is None or value >= ge)
+        and (lt is None or value < lt)
+        and (le is None or value <= le)
+    )
+    if ok:
+        return
+    parts = [
+        f"{op} {bound:g}"
+        for op, bound in ((">", gt), (">=", ge), ("<", lt), ("<=", le))
+        if bound is not None
+    ]
+    raise ScenarioError(f"{path} must be {' and '.join(parts)}, got {_show(value)}")
+
+
+def _check_area(path: str, points: tuple[Point, ...]) -> None:
+    """Reject an outline whose points enclose no area (all on one line)."""
+    area2 = 0.0
+    n = len(points)
+    for i in range(n):
+        x0, y0 = points[i]
+        x1, y1 = points[(i + 1) % n]
+        area2 += x0 * y1 - x1 * y0
+    scale = max(max(abs(x), abs(y)) for x, y in points)
+    if abs(area2) <= 1e-12 * max(scale, 1e-300) ** 2:
+        raise ScenarioError(
+            f"{path} encloses no area (the points lie on one line), got {_show(_plain(points))}"
+        )
+
+
+def _polygon_name_hint(value: str) -> str | None:
+    """Suggest the polygon spelling for names like "hexagon"."""
+    sides = _POLYGON_NAMES.get(value.strip().lower())
+    if sides is None:
+        return None
+    return f"for a {value.strip().lower()} use shape = \"polygon\" with sides = {sides}"
+
+
+def _got_keys(keys: list[str]) -> str:
+    """Describe which of a group of keys were given."""
+    return f" (got {' and '.join(keys)})" if keys else " (got none)"
+
+
+def _unknown(prefix: str, key: str, allowed: Iterable[str], fallback: Iterable[str] = ()) -> Any:
+    """Build the error for an unknown key, with a did-you-mean hint."""
+    allowed = list(allowed)
+    full = f"{prefix}.{key}" if prefix else key
+    match = _closest(key, allowed) or _closest(key, list(fallback))
+    if match is None:
+        return ScenarioError(f"unknown key {full}; allowed keys: {', '.join(sorted(allowed))}")
+    hint = f"did you mean {match}?"
+    if match.lower().startswith(key.lower() + "_"):
+        hint += " (key names end in their SI unit)"
+    return ScenarioError(f"unknown key {full}; {hint}")
+
+
+def _closest(key: str, candidates: list[str]) -> str | None:
+    """Closest candidate: a unit-suffixed completion, else difflib, else a key prefix."""
+    lowered = {c.lower(): c for c in candidates}
+    low = key.lower()
+    completions = [c for c in lowered if c.startswith(low + "_")]
+    if completions:
+        best = difflib.get_close_matches(low, completions, n=1, cutoff=0.0)
+        return lowered[best[0]]
+    close = difflib.get_close_matches(low, list(lowered), n=1, cutoff=0.6)
+    if close:
+        return lowered[close[0]]
+    # "friction_coefficient" -> "friction": a known key followed by extra words
+    stems = [c for c in lowered if low.startswith(c + "_")]
+    return lowered[max(stems, key=len)] if stems else None
+
+
+def _show(value: Any) -> str:
+    """Show a value on one short line, in TOML-like spelling."""
+    if isinstance(value, bool):
+        text = "true" if value else "false"
+    elif isinstance(value, str):
+        text = json.dumps(value, ensure_ascii=False)
+    elif isinstance(value, numbers.Integral):
+        text = repr(int(value))
+    elif isinstance(value, numbers.Real):
+        text = repr(float(value))
+    elif isinstance(value, Mapping):
+        text = "a table {" + ", ".join(str(k) for k in value) + "}"
+    else:
+        text = repr(value)
+    text = _one_line(text)
+    return text if len(text) <= 80 else text[:77] + "..."
+
+
+def _type(value: Any) -> str:
+    """Name of a value's type for messages."""
+    return type(value).__name__
+
+
+def _one_line(text: str) -> str:
+    """Collapse line breaks so that a message stays on one line."""
+    lines = text.splitlines()
+    return " ".join(line.strip() for line in lines) if len(lines) > 1 else text

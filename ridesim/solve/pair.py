@@ -1,0 +1,283 @@
+"""The solved wheel/track pair and the maps between axle position and wheel angle.
+
+Conventions (axle path along the x axis, track below it): the wheel rolls towards
++x turning clockwise; ``wheel_angle(x)`` [rad] is that clockwise rotation from the
+pose in which the wheel was defined. The rim point in contact is the one on the
+ray at wheel-frame angle ``wheel_angle(x) - pi/2`` (straight below the axle), so
+``r = -y`` and ``dx = r dθ``.
+
+A map covers one *base* stretch of ``x_span`` [m] and ``theta_span`` [rad] (a whole
+revolution for a wheel-first solve, one track period for a track-first solve) and
+is extended periodically: ``theta(x + x_span) = theta(x) + theta_span``.
+"""
+
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass
+
+import numpy as np
+
+from ridesim.errors import ClosureError
+from ridesim.model.track import Track
+from ridesim.model.wheel import Wheel
+from ridesim.solve.table import MonotoneMap
+
+__all__ = ["RollingPair", "Cusp", "CatenaryMap", "TableMap", "SpiralMap"]
+
+HALF_PI = 0.5 * math.pi
+TWO_PI = 2.0 * math.pi
+
+
+@dataclass(frozen=True)
+class Cusp:
+    """A corner of the track, where a wheel vertex seats.
+
+    Attributes
+    ----------
+    x_m : float
+        Position along the axle path [m], within the first revolution ``[0, L)``.
+    vertex : int or None
+        Index of the wheel vertex that seats here (polygon wheels), else None.
+    phi_rad : float
+        Wheel-frame polar angle [rad] of the rim corner that seats here.
+    depth_m : float
+        Distance [m] from the axle line down to the cusp (the corner's radius).
+    """
+
+    x_m: float
+    vertex: int | None
+    phi_rad: float
+    depth_m: float
+
+
+class CatenaryMap:
+    """Exact map for a wheel made of straight edges: each edge rolls on a catenary arch.
+
+    Edge ``i`` at distance ``d_i`` from the axle with its foot at wheel-frame angle
+    ``alpha_i`` is in contact while ``theta - pi/2 - alpha_i = u`` with ``x = xm_i +
+    d_i asinh(tan u)`` and ``y = -d_i cosh((x - xm_i)/d_i)`` (Hall & Wagon, "Roads
+    and Wheels", Mathematics Magazine 65(5), 1992).
+    """
+
+    def __init__(self, wheel: Wheel, theta0: float) -> None:
+        starts, d, alpha = wheel.edge_lines()
+        th = starts + HALF_PI  # wheel angle at which each vertex is straight below the axle
+        # Rotate the list so that the base revolution starts at the first vertex contact >= theta0 - 2π.
+        shift = TWO_PI * math.floor((th[0] - theta0) / TWO_PI + 1.0)
+        th = th - shift
+        # Now th[0] <= theta0 < th[0] + 2π. x is measured from the contact at theta0.
+        u0 = th[:-1] - HALF_PI - alpha
+        u1 = th[1:] - HALF_PI - alpha
+        u0 = (u0 + math.pi) % TWO_PI - math.pi
+        u1 = u0 + np.diff(th)
+        dx = d * (np.arcsinh(np.tan(u1)) - np.arcsinh(np.tan(u0)))
+        xb = np.concatenate(([0.0], np.cumsum(dx)))
+        self.d = d
+        self.alpha_u0 = u0
+        self.theta_breaks = th
+        # x at theta0
+        i0 = int(np.clip(np.searchsorted(th, theta0, side="right") - 1, 0, len(d) - 1))
+        x_at0 = xb[i0] + d[i0] * (np.arcsinh(np.tan(u0[i0] + theta0 - th[i0]))
+                                  - np.arcsinh(np.tan(u0[i0])))
+        self.x_breaks = xb - x_at0
+        self.xm = self.x_breaks[:-1] - d * np.arcsinh(np.tan(u0))
+        self.x_lo = float(self.x_breaks[0])
+        self.theta_lo = float(th[0])
+        self.x_span = float(xb[-1])
+        self.theta_span = TWO_PI
+        self.vertex_order = np.arange(len(d))
+
+    def _edge_of_x(self, x: np.ndarray) -> np.ndarray:
+        i = np.searchsorted(self.x_breaks, x, side="right") - 1
+        return np.clip(i, 0, len(self.d) - 1)
+
+    def theta_of_x(self, x: np.ndarray) -> np.ndarray:
+        """Wheel angle [rad] at base position ``x`` [m]."""
+        i = self._edge_of_x(x)
+        u = np.arctan(np.sinh((x - self.xm[i]) / self.d[i]))
+        return self.theta_breaks[i] + (u - self.alpha_u0[i])
+
+    def x_of_theta(self, theta: np.ndarray) -> np.ndarray:
+        """Base position [m] at wheel angle ``theta`` [rad]."""
+        i = np.searchsorted(self.theta_breaks, theta, side="right") - 1
+        i = np.clip(i, 0, len(self.d) - 1)
+        u = self.alpha_u0[i] + (theta - self.theta_breaks[i])
+        return self.xm[i] + self.d[i] * np.arcsinh(np.tan(u))
+
+    def y(self, x: np.ndarray) -> np.ndarray:
+        """Track height [m] at base position ``x`` [m]: ``-d cosh((x - xm)/d)``."""
+        i = self._edge_of_x(x)
+        return -self.d[i] * np.cosh((x - self.xm[i]) / self.d[i])
+
+    def slope(self, x: np.ndarray) -> np.ndarray:
+        """Track slope at base position ``x`` [m]: ``-sinh((x - xm)/d)``."""
+        i = self._edge_of_x(x)
+        return -np.sinh((x - self.xm[i]) / self.d[i])
+
+
+class TableMap:
+    """Map from a polynomial table: forward (``s = theta``) or inverse (``s = x``) solve."""
+
+    def __init__(self, table: MonotoneMap, s_is_x: bool, x_lo: float, theta_lo: float) -> None:
+        self.table = table
+        self.s_is_x = s_is_x
+        span = table.total
+        self.x_lo, self.theta_lo = float(x_lo), float(theta_lo)
+        self.x_span = span if not s_is_x else table.forward.hi - table.forward.lo
+        self.theta_span = span if s_is_x else table.forward.hi - table.forward.lo
+
+    def theta_of_x(self, x: np.ndarray) -> np.ndarray:
+        """Wheel angle [rad] at base position ``x`` [m]."""
+        return self.table.forward.G(x) if self.s_is_x else self.table.inverse.G(x)
+
+    def x_of_theta(self, theta: np.ndarray) -> np.ndarray:
+        """Base position [m] at wheel angle ``theta`` [rad]."""
+        return self.table.inverse.G(theta) if self.s_is_x else self.table.forward.G(theta)
+
+    def y(self, x: np.ndarray) -> np.ndarray:
+        """Track height [m] from the table (forward solves only)."""
+        return -self.table.forward.g(self.table.inverse.G(x))
+
+    def slope(self, x: np.ndarray) -> np.ndarray:
+        """Track slope from the table (forward solves only): ``-r'(θ)/r``."""
+        th = self.table.inverse.G(x)
+        return -self.table.forward.dg(th) / self.table.forward.g(th)
+
+
+def _log1p_over(q: np.ndarray) -> np.ndarray:
+    """``log1p(q)/q`` with the limit 1 at q = 0."""
+    small = np.abs(q) < 1e-8
+    qs = np.where(small, 1.0, q)
+    return np.where(small, 1.0 - 0.5 * q + q * q / 3.0, np.log1p(qs) / qs)
+
+
+def _expm1_over(z: np.ndarray) -> np.ndarray:
+    """``expm1(z)/z`` with the limit 1 at z = 0."""
+    small = np.abs(z) < 1e-8
+    zs = np.where(small, 1.0, z)
+    return np.where(small, 1.0 + 0.5 * z + z * z / 6.0, np.expm1(zs) / zs)
+
+
+class SpiralMap:
+    """Exact map for a track of straight segments: each segment rolls a logarithmic spiral.
+
+    On a segment from ``x_j`` with contact radius ``r_j = depth - f(x_j)`` and slope
+    ``s_j``, ``r = r_j - s_j (x - x_j)`` and ``θ - θ_j = -ln(r/r_j)/s_j``.
+    """
+
+    def __init__(self, nodes: np.ndarray, depth: float) -> None:
+        x, f = nodes[:, 0], nodes[:, 1]
+        self.xn = x
+        self.r = depth - f[:-1]
+        self.s = np.diff(f) / np.diff(x)
+        dth = np.diff(x) / self.r * _log1p_over(-self.s * np.diff(x) / self.r)
+        self.thn = np.concatenate(([0.0], np.cumsum(dth)))
+        self.x_lo, self.theta_lo = float(x[0]), 0.0
+        self.x_span = float(x[-1] - x[0])
+        self.theta_span = float(self.thn[-1])
+
+    def theta_of_x(self, x: np.ndarray) -> np.ndarray:
+        """Wheel angle [rad] at base position ``x`` [m]."""
+        j = np.clip(np.searchsorted(self.xn, x, side="right") - 1, 0, len(self.s) - 1)
+        dx = x - self.xn[j]
+        return self.thn[j] + dx / self.r[j] * _log1p_over(-self.s[j] * dx / self.r[j])
+
+    def x_of_theta(self, theta: np.ndarray) -> np.ndarray:
+        """Base position [m] at wheel angle ``theta`` [rad]."""
+        j = np.clip(np.searchsorted(self.thn, theta, side="right") - 1, 0, len(self.s) - 1)
+        dth = theta - self.thn[j]
+        return self.xn[j] + self.r[j] * dth * _expm1_over(-self.s[j] * dth)
+
+
+class RollingPair:
+    """A wheel and the track it rolls on with its axle on a horizontal line.
+
+    Attributes
+    ----------
+    wheel : Wheel
+        The wheel (for a track-first solve, the wheel found for the track).
+    track : Track
+        The track actually rolled on, below the axle line (``y < 0``).
+    depth : float
+        Depth [m] by which the given track shape was lowered (0 for a wheel-first solve).
+    lobes : int
+        Track periods per wheel revolution.
+    revolution_length : float
+        Axle travel [m] per wheel revolution.
+    closed : bool
+        False only for a track-first solve at an explicit depth that does not close.
+    closure_gap_rad : float
+        Wheel angle [rad] swept over ``lobes`` periods minus 2π (0 when closed).
+    cusps : tuple of Cusp
+        Corners of the track within the first revolution.
+    """
+
+    def __init__(self, wheel: Wheel | None, track: Track, rmap, *, depth: float, lobes: int,
+                 closed: bool, closure_gap_rad: float, cusps: tuple[Cusp, ...],
+                 path: str = "line") -> None:
+        self._wheel = wheel
+        self.track = track
+        self._map = rmap
+        self.depth = float(depth)
+        self.lobes = int(lobes)
+        self.closed = bool(closed)
+        self.closure_gap_rad = float(closure_gap_rad)
+        self.cusps = cusps
+        self.path = path
+        self.revolution_length = float(rmap.x_span * (TWO_PI / rmap.theta_span))
+
+    @property
+    def wheel(self) -> Wheel:
+        """The wheel; raises ClosureError when the track-first solve does not close."""
+        if self._wheel is None:
+            raise ClosureError(
+                f"the wheel does not close at depth {self.depth:.6g} m: after {self.lobes}"
+                f" period(s) it is {self.closure_gap_rad:+.6g} rad from a full turn; use lobes"
+                " to find a closing depth"
+            )
+        return self._wheel
+
+    def wheel_angle(self, x: np.ndarray | float) -> np.ndarray:
+        """Clockwise wheel rotation [rad] when the axle is above ``x`` [m] (vectorised)."""
+        m = self._map
+        x = np.asarray(x, dtype=float)
+        k = np.floor((x - m.x_lo) / m.x_span)
+        return m.theta_of_x(x - k * m.x_span) + k * m.theta_span
+
+    def axle_x(self, theta: np.ndarray | float) -> np.ndarray:
+        """Axle position [m] at which the wheel has turned ``theta`` [rad] (vectorised)."""
+        m = self._map
+        theta = np.asarray(theta, dtype=float)
+        k = np.floor((theta - m.theta_lo) / m.theta_span)
+        return m.x_of_theta(theta - k * m.theta_span) + k * m.x_span
+
+    def contact_radius(self, x: np.ndarray | float) -> np.ndarray:
+        """Axle-to-contact distance [m] when the axle is above ``x`` [m]: ``-y(x)``."""
+        return -self.track.y(x)
+
+    def depth_range(self) -> tuple[float, float]:
+        """Shallowest and deepest contact below the axle line [m] (least and greatest r)."""
+        lo, hi = self.track.shape_range()
+        return self.depth - hi, self.depth - lo
+
+    def dense(self, n: int) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+        """``n`` samples evenly spaced in wheel angle over the first revolution from x = 0.
+
+        Returns
+        -------
+        theta : ndarray
+            Wheel angle [rad].
+        x : ndarray
+            Axle position [m].
+        y : ndarray
+            Track height [m] at the contact.
+        """
+        th0 = float(self.wheel_angle(0.0))
+        theta = th0 + np.linspace(0.0, TWO_PI, int(n), endpoint=False)
+        x = self.axle_x(theta)
+        return theta, x, self.track.y(x)
+
+    def __repr__(self) -> str:
+        return (f"RollingPair(wheel={self._wheel!r}, period={self.track.period:.6g} m,"
+                f" lobes={self.lobes}, depth={self.depth:.6g} m)")

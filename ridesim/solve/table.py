@@ -1,0 +1,285 @@
+"""Piecewise-polynomial antiderivatives of positive functions, and their inverses.
+
+Both solves reduce to one operation: given a positive integrand ``g(s)`` on an
+interval split at known kinks, build ``G(s) = ∫ g ds`` and its inverse ``s(G)``.
+Forward (track for a wheel): ``s`` is the wheel angle θ [rad], ``g = r`` [m] and
+``G = x`` [m]. Inverse (wheel for a track): ``s`` is the track position x [m],
+``g = 1/r`` [1/m] and ``G = θ`` [rad].
+
+Each cell holds a degree-15 Chebyshev interpolant of ``g`` at 16 Chebyshev points
+of the first kind, stored as a monomial in the local coordinate ``t ∈ [-1, 1]``;
+its exact antiderivative gives ``G`` on the cell. Cells are bisected until the
+two highest Chebyshev coefficients fall below the tolerance (the usual tail test
+for Chebyshev interpolants: Trefethen, *Approximation Theory and Approximation
+Practice*, SIAM, 2013, ch. 3-4), so the accuracy is a property of the table, not
+of the number of output samples. Cells never straddle a kink. Pure numpy, no I/O.
+"""
+
+from __future__ import annotations
+
+from collections.abc import Callable, Sequence
+from dataclasses import dataclass
+
+import numpy as np
+from numpy.polynomial import chebyshev as _cheb
+
+from ridesim.errors import GeometryError
+
+__all__ = ["PolyTable", "MonotoneMap", "build_map"]
+
+_NODES = 16
+_K = np.arange(_NODES)
+#: Chebyshev points of the first kind on [-1, 1], ascending.
+_T = np.cos(np.pi * (_K[::-1] + 0.5) / _NODES)
+# Values at _T -> Chebyshev coefficients (discrete cosine transform, type II).
+_VAL2CHEB = np.cos(np.pi * np.outer(_K, (_K[::-1] + 0.5)) / _NODES) * (2.0 / _NODES)
+_VAL2CHEB[0] *= 0.5
+# Chebyshev coefficients -> monomial coefficients in t (lowest degree first).
+_CHEB2MONO = np.zeros((_NODES, _NODES))
+for _j in range(_NODES):
+    _p = _cheb.cheb2poly(np.eye(_NODES)[_j])
+    _CHEB2MONO[: len(_p), _j] = _p
+_VAL2MONO = _CHEB2MONO @ _VAL2CHEB
+_MAX_CELLS = 1 << 16
+
+
+def _horner(coef: np.ndarray, t: np.ndarray) -> np.ndarray:
+    """Evaluate monomials ``coef[..., k] t**k`` with per-point or shared coefficients."""
+    out = np.array(coef[..., -1], dtype=float, copy=True) * t
+    for k in range(coef.shape[-1] - 2, 0, -1):
+        out += coef[..., k]
+        out *= t
+    out += coef[..., 0]
+    return out
+
+
+@dataclass(frozen=True, eq=False)
+class PolyTable:
+    """A continuous piecewise polynomial ``G`` with its derivative ``g`` on sorted cells.
+
+    Attributes
+    ----------
+    edges : ndarray, shape (M+1,)
+        Cell boundaries in the argument's unit, ascending.
+    g_coef : ndarray, shape (M, 16)
+        Monomial coefficients of ``g`` in the local coordinate ``t ∈ [-1, 1]``.
+    G_coef : ndarray, shape (M, 17)
+        Monomial coefficients of ``G`` in ``t``; ``G`` is continuous across cells.
+    """
+
+    edges: np.ndarray
+    g_coef: np.ndarray
+    G_coef: np.ndarray
+
+    @property
+    def lo(self) -> float:
+        """Lower end of the table's domain."""
+        return float(self.edges[0])
+
+    @property
+    def hi(self) -> float:
+        """Upper end of the table's domain."""
+        return float(self.edges[-1])
+
+    def _locate(self, s: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+        idx = np.searchsorted(self.edges, s, side="right") - 1
+        np.clip(idx, 0, len(self.edges) - 2, out=idx)
+        left = self.edges[idx]
+        half = 0.5 * (self.edges[idx + 1] - left)
+        t = (s - left) / half - 1.0
+        return idx, t
+
+    def _eval(self, coef: np.ndarray, s: np.ndarray) -> np.ndarray:
+        s = np.asarray(s, dtype=float)
+        flat = s.ravel()
+        n = flat.size
+        if n >= 256 * (len(self.edges) - 1) and np.all(flat[1:] >= flat[:-1]):
+            # Sorted queries (dense outputs): one slice per cell, shared coefficients.
+            out = np.empty(n)
+            cuts = np.searchsorted(flat, self.edges[1:-1], side="left")
+            starts = np.concatenate(([0], cuts))
+            stops = np.concatenate((cuts, [n]))
+            for i in np.flatnonzero(stops > starts):
+                a, b = starts[i], stops[i]
+                left = self.edges[i]
+                half = 0.5 * (self.edges[i + 1] - left)
+                t = flat[a:b] - left
+                t *= 1.0 / half
+                t -= 1.0
+                out[a:b] = _horner(coef[i], t)
+            return out.reshape(s.shape)
+        idx, t = self._locate(flat)
+        return _horner(coef[idx], t).reshape(s.shape)
+
+    def G(self, s: np.ndarray) -> np.ndarray:
+        """Antiderivative at ``s`` (inside the domain; extrapolates polynomially outside)."""
+        return self._eval(self.G_coef, s)
+
+    def g(self, s: np.ndarray) -> np.ndarray:
+        """Integrand at ``s`` from the table."""
+        return self._eval(self.g_coef, s)
+
+    def dg(self, s: np.ndarray) -> np.ndarray:
+        """Derivative of the integrand at ``s`` from the table."""
+        k = np.arange(1, self.g_coef.shape[1])
+        half = 0.5 * np.diff(self.edges)
+        return self._eval(self.g_coef[:, 1:] * k / half[:, None], s)
+
+
+def _cells_for(
+    g: Callable[[np.ndarray], np.ndarray],
+    breaks: Sequence[float],
+    tol: float,
+    initial_cells: int,
+) -> tuple[np.ndarray, np.ndarray]:
+    """Adaptive cells and nodal values of ``g``: returns edges (M+1) and values (M, 16)."""
+    breaks = np.asarray(breaks, dtype=float)
+    pending = []
+    for a, b in zip(breaks[:-1], breaks[1:], strict=True):
+        if b <= a:
+            continue
+        k = max(1, initial_cells * (b - a) / (breaks[-1] - breaks[0]))
+        e = np.linspace(a, b, int(np.ceil(k)) + 1)
+        pending.extend(zip(e[:-1], e[1:], strict=True))
+    done: list[tuple[float, float, np.ndarray]] = []
+    scale = None
+    for _ in range(40):
+        if not pending:
+            break
+        lo = np.array([p[0] for p in pending])
+        hi = np.array([p[1] for p in pending])
+        mid, half = 0.5 * (lo + hi), 0.5 * (hi - lo)
+        pts = mid[:, None] + half[:, None] * _T[None, :]
+        vals = np.asarray(g(pts), dtype=float).reshape(pts.shape)
+        if not np.all(np.isfinite(vals)):
+            bad = pts[~np.isfinite(vals)][0]
+            raise GeometryError(f"the contact radius is not finite near {bad:.6g}; check the shape")
+        if np.any(vals <= 0):
+            bad = pts[vals <= 0][0]
+            raise GeometryError(
+                f"the contact radius is not positive near {bad:.6g}; the axle must be strictly"
+                " inside the wheel and the track strictly below the axle line"
+            )
+        if scale is None:
+            scale = float(np.max(np.abs(vals)))
+        cheb = vals @ _VAL2CHEB.T
+        tail = np.abs(cheb[:, -1]) + np.abs(cheb[:, -2])
+        ok = (tail <= tol * scale) | (half <= 1e-9 * (breaks[-1] - breaks[0]))
+        for i in np.flatnonzero(ok):
+            done.append((lo[i], hi[i], vals[i]))
+        pending = []
+        for i in np.flatnonzero(~ok):
+            pending.append((lo[i], mid[i]))
+            pending.append((mid[i], hi[i]))
+        if len(done) + len(pending) > _MAX_CELLS:
+            raise GeometryError(
+                "the shape needs more than 65536 table cells to reach the solver tolerance;"
+                " it is probably not smooth (declare its corners) or nearly touches the axle"
+            )
+    if pending:
+        raise GeometryError("the solver tolerance was not reached; the shape is too rough")
+    done.sort(key=lambda c: c[0])
+    edges = np.array([c[0] for c in done] + [done[-1][1]])
+    values = np.array([c[2] for c in done])
+    return edges, values
+
+
+def _table_from_values(edges: np.ndarray, values: np.ndarray, G0: float) -> PolyTable:
+    """Build a table from nodal values of ``g`` on each cell; ``G(edges[0]) = G0``."""
+    half = 0.5 * np.diff(edges)
+    g_coef = values @ _VAL2MONO.T
+    k = np.arange(1, _NODES + 1)
+    G_coef = np.zeros((len(half), _NODES + 1))
+    G_coef[:, 1:] = g_coef / k * half[:, None]
+    # Value at t = -1 of the integrated monomials, then make each cell start at its left value.
+    at_minus1 = G_coef[:, 1:] @ ((-1.0) ** k)
+    at_plus1 = G_coef[:, 1:].sum(axis=1)
+    cell_int = at_plus1 - at_minus1
+    left = G0 + np.concatenate(([0.0], np.cumsum(cell_int)[:-1]))
+    G_coef[:, 0] = left - at_minus1
+    return PolyTable(edges=edges, g_coef=g_coef, G_coef=G_coef)
+
+
+@dataclass(frozen=True, eq=False)
+class MonotoneMap:
+    """``G(s)`` for a positive integrand and its inverse, both as polynomial tables.
+
+    Attributes
+    ----------
+    forward : PolyTable
+        ``s -> G`` with derivative ``g``.
+    inverse : PolyTable
+        ``G -> s`` with derivative ``1/g``.
+    """
+
+    forward: PolyTable
+    inverse: PolyTable
+
+    @property
+    def total(self) -> float:
+        """``G`` over the whole domain, ``G(hi) - G(lo)``."""
+        ends = self.forward.G(np.array([self.forward.lo, self.forward.hi]))
+        return float(ends[1] - ends[0])
+
+
+def _newton_inverse(table: PolyTable, targets: np.ndarray, guess: np.ndarray) -> np.ndarray:
+    """Solve ``table.G(s) = targets`` by Newton iteration from ``guess`` (clamped to the domain)."""
+    s = guess.copy()
+    span = abs(table.hi - table.lo)
+    for _ in range(12):
+        idx, t = table._locate(s)
+        step = (_horner(table.G_coef[idx], t) - targets) / _horner(table.g_coef[idx], t)
+        s -= step
+        np.clip(s, table.lo, table.hi, out=s)
+        if np.max(np.abs(step)) <= 4e-16 * span:
+            break
+    return s
+
+
+def build_map(
+    g: Callable[[np.ndarray], np.ndarray],
+    breaks: Sequence[float],
+    *,
+    G0: float = 0.0,
+    tol: float = 1e-13,
+    initial_cells: int = 8,
+) -> MonotoneMap:
+    """Tabulate ``G(s) = G0 + ∫ g`` over ``[breaks[0], breaks[-1]]`` and its inverse.
+
+    Parameters
+    ----------
+    g : callable
+        Vectorised positive integrand; called on arrays of points strictly inside cells.
+    breaks : sequence of float
+        Ascending kinks of ``g`` including both ends; no cell straddles one.
+    G0 : float
+        Value of ``G`` at ``breaks[0]``.
+    tol : float
+        Relative tolerance on the Chebyshev tail of ``g`` in each cell.
+    initial_cells : int
+        Cells to start the bisection from (over the whole domain).
+
+    Returns
+    -------
+    MonotoneMap
+        The forward and inverse tables.
+    """
+    edges, values = _cells_for(g, breaks, tol, initial_cells)
+    fwd = _table_from_values(edges, values, G0)
+    # Inverse: cells in G follow the forward cells; nodes found by Newton on the forward table.
+    G_edges = fwd.G(edges)
+    G_edges[0], G_edges[-1] = G0, fwd.G(np.array([edges[-1]]))[0]
+    inv_edges = np.maximum.accumulate(G_edges)
+    mid, half = 0.5 * (inv_edges[1:] + inv_edges[:-1]), 0.5 * np.diff(inv_edges)
+    targets = mid[:, None] + half[:, None] * _T[None, :]
+    frac = (targets - inv_edges[:-1, None]) / np.where(half > 0, 2 * half, 1.0)[:, None]
+    guess = edges[:-1, None] + frac * np.diff(edges)[:, None]
+    s_nodes = _newton_inverse(fwd, targets.ravel(), guess.ravel()).reshape(targets.shape)
+    # The inverse's derivative 1/g, interpolated from its own nodal values.
+    inv_g = 1.0 / fwd.g(s_nodes)
+    inv = _table_from_values(inv_edges, inv_g, float(edges[0]))
+    # Anchor each inverse cell exactly at its forward edge (removes drift from the cumsum).
+    k = np.arange(_NODES + 1)
+    at_minus1 = inv.G_coef[:, 1:] @ ((-1.0) ** k[1:])
+    inv.G_coef[:, 0] = edges[:-1] - at_minus1
+    return MonotoneMap(forward=fwd, inverse=inv)
