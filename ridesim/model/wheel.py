@@ -500,7 +500,8 @@ class Wheel:
         else:
             area, cx, cy, j = self._polar_integrals()
         m = rho * t * area
-        return MassProperties(mass_kg=m, inertia_kg_m2=rho * t * j, com_m=(cx, cy), area_m2=area)
+        return MassProperties(mass_kg=float(m), inertia_kg_m2=float(rho * t * j),
+                              com_m=(float(cx), float(cy)), area_m2=float(area))
 
     def _polar_integrals(self) -> tuple[float, float, float, float]:
         """Area, centroid and polar second moment about the axle from r(phi).

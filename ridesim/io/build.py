@@ -1,0 +1,171 @@
+"""From a validated scenario to model objects and a solved pair.
+
+The scenario records (:mod:`ridesim.io.scenario`) hold plain validated values;
+this module turns them into :class:`~ridesim.model.wheel.Wheel`,
+:class:`~ridesim.model.track.Track` and a solved
+:class:`~ridesim.solve.pair.RollingPair`, and resolves the wheel's mass
+properties (explicit ``mass_kg``/``inertia_kg_m2`` override the plate model).
+"""
+
+from __future__ import annotations
+
+import csv
+from pathlib import Path
+
+import numpy as np
+
+from ridesim.errors import RidesimError, ScenarioError
+from ridesim.io.scenario import Scenario, TrackSpec, WheelSpec
+from ridesim.model.track import Track
+from ridesim.model.wheel import MassProperties, Wheel
+from ridesim.solve.forward import track_for
+from ridesim.solve.inverse import wheel_for
+from ridesim.solve.pair import RollingPair
+
+__all__ = ["read_points_csv", "wheel_from_spec", "track_from_spec", "solve_scenario", "wheel_mass"]
+
+
+def read_points_csv(path: str | Path, key: str) -> np.ndarray:
+    """Read ``x, y`` pairs [m] from a CSV file (a header row and ``#`` comments allowed).
+
+    Parameters
+    ----------
+    path : str or Path
+        The CSV file.
+    key : str
+        Scenario key path for error messages (e.g. ``wheel.file``).
+
+    Returns
+    -------
+    ndarray, shape (N, 2)
+    """
+    rows = []
+    try:
+        with open(path, newline="", encoding="utf-8") as fh:
+            for lineno, row in enumerate(csv.reader(fh), start=1):
+                cells = [c.strip() for c in row if c.strip()]
+                if not cells or cells[0].startswith("#"):
+                    continue
+                try:
+                    vals = [float(c) for c in cells[:2]]
+                except ValueError:
+                    if not rows:
+                        continue  # header row
+                    raise ScenarioError(
+                        f"{key}: line {lineno} of {path} is not two numbers x, y in metres"
+                    ) from None
+                if len(vals) != 2:
+                    raise ScenarioError(f"{key}: line {lineno} of {path} needs two columns x, y in metres")
+                rows.append(vals)
+    except OSError as exc:
+        raise ScenarioError(f"{key}: cannot read {path}: {exc.strerror}") from None
+    if len(rows) < 3:
+        raise ScenarioError(f"{key}: {path} holds {len(rows)} points; at least 3 are needed")
+    return np.array(rows)
+
+
+def _wrap(prefix: str, fn, *args, **kw):
+    try:
+        return fn(*args, **kw)
+    except ScenarioError:
+        raise
+    except RidesimError as exc:
+        raise type(exc)(f"{prefix}: {exc}") from None
+
+
+def wheel_from_spec(spec: WheelSpec) -> Wheel:
+    """Build the wheel described by a ``[wheel]`` section.
+
+    Parameters
+    ----------
+    spec : WheelSpec
+        Validated section.
+
+    Returns
+    -------
+    Wheel
+    """
+    s = spec.shape
+    ax = spec.axle_m
+    if s == "polygon":
+        if spec.vertices_m is not None:
+            return _wrap("wheel", Wheel.polygon_from_vertices, spec.vertices_m, axle=ax)
+        return _wrap("wheel", Wheel.polygon, spec.sides, apothem=spec.apothem_m,
+                     circumradius=spec.circumradius_m, side=spec.side_m, axle=ax)
+    if s == "ellipse":
+        return _wrap("wheel", Wheel.ellipse, spec.semi_axes_m, axle=ax)
+    if s == "circle":
+        return _wrap("wheel", Wheel.circle, spec.radius_m, axle=ax)
+    if s == "polar":
+        return _wrap("wheel.radius_formula", Wheel.polar, spec.radius_formula)
+    pts = spec.points_m if spec.points_m is not None else read_points_csv(spec.file, "wheel.file")
+    return _wrap("wheel", Wheel.outline, pts, axle=ax)
+
+
+def track_from_spec(spec: TrackSpec) -> Track:
+    """Build the track shape described by a ``[track]`` section.
+
+    Parameters
+    ----------
+    spec : TrackSpec
+        Validated section.
+
+    Returns
+    -------
+    Track
+        The shape ``f(x)`` before lowering.
+    """
+    s = spec.shape
+    if s == "wave":
+        return _wrap("track", Track.wave, spec.amplitude_m, spec.wavelength_m)
+    if s == "sawtooth":
+        return _wrap("track", Track.sawtooth, spec.rise_m, spec.run_m)
+    if s == "formula":
+        return _wrap("track.formula", Track.profile, spec.formula, spec.period_m)
+    pts = spec.points_m if spec.points_m is not None else read_points_csv(spec.file, "track.file")
+    return _wrap("track", Track.points, pts, period=spec.period_m)
+
+
+def solve_scenario(sc: Scenario) -> RollingPair:
+    """Solve the scenario's pair: the track for its wheel, or the wheel for its track.
+
+    Parameters
+    ----------
+    sc : Scenario
+        Validated scenario.
+
+    Returns
+    -------
+    RollingPair
+    """
+    if sc.wheel is not None and sc.wheel.shape is not None:
+        return _wrap("wheel", track_for, wheel_from_spec(sc.wheel))
+    t = track_from_spec(sc.track)
+    if sc.track.depth_m is not None:
+        return _wrap("track.depth_m", wheel_for, t, depth=sc.track.depth_m)
+    return _wrap("track.lobes", wheel_for, t, lobes=sc.track.lobes or 1)
+
+
+def wheel_mass(sc: Scenario, wheel: Wheel) -> MassProperties:
+    """Mass properties of one wheel: the plate model, overridden by explicit keys.
+
+    Parameters
+    ----------
+    sc : Scenario
+        Validated scenario (its ``[wheel]`` section gives thickness, density and overrides).
+    wheel : Wheel
+        The solved wheel.
+
+    Returns
+    -------
+    MassProperties
+        Mass [kg], inertia about the axle [kg m^2], centre of mass [m] from the axle, area [m^2].
+    """
+    spec = sc.wheel if sc.wheel is not None else WheelSpec(shape="circle")
+    mp = wheel.mass_properties(spec.thickness_m, spec.density_kg_m3)
+    m = spec.mass_kg if spec.mass_kg is not None else mp.mass_kg
+    if spec.inertia_kg_m2 is not None:
+        j = spec.inertia_kg_m2
+    else:
+        j = mp.inertia_kg_m2 * (m / mp.mass_kg)
+    return MassProperties(mass_kg=m, inertia_kg_m2=j, com_m=mp.com_m, area_m2=mp.area_m2)
