@@ -96,7 +96,9 @@ def test_ellipse_pull_toy_values():
 
 def test_wave_track_sculpture_values():
     sc = load_scenario(SCENARIOS / "wave_track_sculpture.toml")
-    assert sc.wheel is None
+    # Beside [track], [wheel] holds only the plate material of the solved wheel.
+    assert sc.wheel.shape is None
+    assert (sc.wheel.thickness_m, sc.wheel.density_kg_m3) == (0.01, 2700.0)
     t = sc.track
     assert (t.shape, t.amplitude_m, t.wavelength_m, t.lobes) == ("wave", 0.02, 0.3, 3)
     assert t.depth_m is None
@@ -370,7 +372,7 @@ def test_scenario_error_is_an_input_and_value_error():
          r"^wheel\.points_m must list at least 3"),
         # wheel / track presence and section types
         ({**HEX, **WAVE},
-         r"^give either \[wheel\] or \[track\], not both \(the solver derives the other\)$"),
+         r"^give either \[wheel\] or \[track\], not both \(the solver derives the other\)"),
         ({}, r"^scenario has neither \[wheel\] nor \[track\]; add one$"),
         ({"vehicle": {"axles": 1}}, r"^scenario has neither \[wheel\] nor \[track\]; add one$"),
         ({"wheel": 3}, r"^wheel must be a table \(a \[wheel\] section\), got 3 \(int\)$"),
@@ -743,3 +745,11 @@ def test_error_message_names_value_for_every_numeric_type_error():
         with pytest.raises(ScenarioError, match=rf"^surface\.friction must be a number, "
                                                 rf"got {shown} \("):
             scenario_from_dict(with_keys(HEX, surface={"friction": value}))
+
+
+def test_material_only_wheel_beside_track():
+    base = {"track": {"shape": "wave", "amplitude_m": 0.02, "wavelength_m": 0.3}}
+    sc = scenario_from_dict({**base, "wheel": {"thickness_m": 0.01, "density_kg_m3": 2700}})
+    assert sc.wheel.shape is None and sc.wheel.thickness_m == 0.01
+    with pytest.raises(ScenarioError, match=r"wheel\.sides cannot be given beside \[track\]"):
+        scenario_from_dict({**base, "wheel": {"sides": 4}})

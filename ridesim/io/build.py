@@ -161,7 +161,7 @@ def wheel_mass(sc: Scenario, wheel: Wheel) -> MassProperties:
     MassProperties
         Mass [kg], inertia about the axle [kg m^2], centre of mass [m] from the axle, area [m^2].
     """
-    spec = sc.wheel if sc.wheel is not None else WheelSpec(shape="circle")
+    spec = sc.wheel if sc.wheel is not None else WheelSpec(shape=None)
     mp = wheel.mass_properties(spec.thickness_m, spec.density_kg_m3)
     m = spec.mass_kg if spec.mass_kg is not None else mp.mass_kg
     if spec.inertia_kg_m2 is not None:

@@ -135,8 +135,9 @@ class WheelSpec:
 
     Attributes
     ----------
-    shape : str
-        One of :data:`WHEEL_SHAPES`.
+    shape : str or None
+        One of :data:`WHEEL_SHAPES`; None for a material-only section beside
+        ``[track]`` (the wheel's outline is then solved from the track).
     sides : int or None
         Polygon: number of sides (>= 3). None when ``vertices_m`` is given
         without ``sides``.
@@ -172,7 +173,7 @@ class WheelSpec:
         (0: sharp).
     """
 
-    shape: str
+    shape: str | None
     sides: int | None = None
     apothem_m: float | None = None
     circumradius_m: float | None = None
@@ -413,7 +414,7 @@ class Scenario:
         out: dict[str, Any] = {"name": self.name, "description": self.description}
         if self.wheel is not None:
             wheel = _spec_dict(self.wheel)
-            if self.wheel.shape == "polar":
+            if self.wheel.shape in ("polar", None):
                 del wheel["axle_m"]
             out["wheel"] = wheel
         if self.track is not None:
@@ -631,14 +632,22 @@ def scenario_from_dict(
     description = _as_str("description", data.get("description", ""), nonempty=False)
 
     has_wheel, has_track = "wheel" in data, "track" in data
-    if has_wheel and has_track:
+    material_only = (
+        has_wheel and has_track and isinstance(data["wheel"], Mapping)
+        and "shape" not in data["wheel"]
+    )
+    if has_wheel and has_track and not material_only:
         raise ScenarioError(
-            "give either [wheel] or [track], not both (the solver derives the other)"
+            "give either [wheel] or [track], not both (the solver derives the other);"
+            " beside [track], [wheel] may only hold material keys such as thickness_m"
         )
     if not has_wheel and not has_track:
         raise ScenarioError("scenario has neither [wheel] nor [track]; add one")
 
-    wheel = _parse_wheel(data["wheel"], base) if has_wheel else None
+    if material_only:
+        wheel = _parse_wheel_material(data["wheel"])
+    else:
+        wheel = _parse_wheel(data["wheel"], base) if has_wheel else None
     track = _parse_track(data["track"], base) if has_track else None
     return Scenario(
         name=name,
@@ -733,6 +742,29 @@ def _parse_wheel(raw: Any, base: Path) -> WheelSpec:
     values["inertia_kg_m2"] = t.real("inertia_kg_m2", None, gt=0)
     values["corner_radius_m"] = t.real("corner_radius_m", 0.0, ge=0)
     return WheelSpec(**values)
+
+
+_WHEEL_MATERIAL = ("thickness_m", "density_kg_m3", "mass_kg", "inertia_kg_m2", "corner_radius_m")
+
+
+def _parse_wheel_material(raw: Any) -> WheelSpec:
+    """Validate a shape-less ``[wheel]`` beside ``[track]``: material keys only."""
+    t = _Table("wheel", raw)
+    for key in t.keys():
+        if key not in _WHEEL_MATERIAL:
+            raise ScenarioError(
+                f"wheel.{key} cannot be given beside [track] (the solver derives the wheel's"
+                f" shape); only {', '.join(_WHEEL_MATERIAL)} are allowed"
+            )
+    return WheelSpec(
+        shape=None,
+        axle_m=(0.0, 0.0),
+        thickness_m=t.real("thickness_m", DEFAULT_WHEEL_THICKNESS_M, gt=0),
+        density_kg_m3=t.real("density_kg_m3", DEFAULT_WHEEL_DENSITY_KG_M3, gt=0),
+        mass_kg=t.real("mass_kg", None, gt=0),
+        inertia_kg_m2=t.real("inertia_kg_m2", None, gt=0),
+        corner_radius_m=t.real("corner_radius_m", 0.0, ge=0),
+    )
 
 
 def _parse_track(raw: Any, base: Path) -> TrackSpec:

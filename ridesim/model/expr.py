@@ -48,6 +48,7 @@ MAX_NESTING = 100
 """Deepest nesting of parentheses, calls, unary signs and powers accepted."""
 
 _QUOTE_LIMIT = 200
+_MAX_DERIVATIVE_NODES = 100_000
 
 # --------------------------------------------------------------------------
 # Whitelist
@@ -116,6 +117,9 @@ _FUNCTION_ORDER = (
 _RESERVED = frozenset(_CONSTANTS) | frozenset(_ALIASES) | frozenset(_INTERNAL_FUNCS)
 
 _TWO_ARG_LIST = "atan2(y, x), arctan2(y, x), min(a, b), max(a, b) and hypot(a, b)"
+
+# Names that are variables elsewhere in the project: never "corrected" to a constant.
+_VARIABLE_NAMES = frozenset({"x", "y", "z", "t", "s", "u", "r", "phi", "theta"})
 
 # Characters people commonly paste from typeset formulas.
 _CHAR_HINTS = {
@@ -189,8 +193,7 @@ def _tokenize(text: str, fail: Callable[[str], FormulaError]) -> list[_Token]:
             if rest[:1] == "." or re.match(r"[eE][+-](?![0-9])", rest):
                 bad = re.match(r"[0-9.eE+-]*", text[pos:]).group()
                 raise fail(
-                    f"malformed number '{bad}' at position {pos}; write numbers like "
-                    "2, 0.5, .5 or 1e-3"
+                    f"malformed number '{bad}' at position {pos}; write numbers like 2, 0.5, .5 or 1e-3"
                 )
             value = float(m.group())
             if not np.isfinite(value):
@@ -499,6 +502,15 @@ def _run(program: tuple[tuple[int, Any], ...], x: Any) -> Any:
     return stack[0]
 
 
+def _expanded_size(node: _Node, memo: dict[int, int]) -> int:
+    """Count the operations of a tree, counting shared sub-trees each time used."""
+    key = id(node)
+    if key not in memo:
+        children = [s for s in node.steps() if isinstance(s, _Node)]
+        memo[key] = 1 + sum(_expanded_size(c, memo) for c in children)
+    return memo[key]
+
+
 def _fold(node: _Node) -> _Node:
     """Replace a node whose operands are all constants by its (finite) value."""
     with np.errstate(all="ignore"):
@@ -733,16 +745,17 @@ class _Parser:
 
     def unknown_name(self, tok: _Token) -> FormulaError:
         called = self.tokens[self.index + 1].text == "("
-        names = [self.variable, *_CONSTANTS, *_ALIASES]
-        close = difflib.get_close_matches(tok.text, names, n=1)
-        if not close and tok.text.lower() in names:
-            close = [tok.text.lower()]
+        names = list(_ALIASES) if called else [self.variable, *_CONSTANTS]
+        close = []
+        if called or tok.text not in _VARIABLE_NAMES:
+            close = difflib.get_close_matches(tok.text, names, n=1)
+            if not close and tok.text.lower() in names:
+                close = [tok.text.lower()]
         hint = f" (did you mean '{close[0]}'?)" if close else ""
         if not called:
             hint += f"; the variable here is {self.variable}"
         return self.error(
-            f"unknown name '{tok.text}' at position {tok.pos}{hint}; allowed: "
-            f"{_allowed_names(self.variable)}"
+            f"unknown name '{tok.text}' at position {tok.pos}{hint}; allowed: {_allowed_names(self.variable)}"
         )
 
     def after_operand(self, open_tok: _Token | None) -> FormulaError:
@@ -993,8 +1006,7 @@ class Formula:
         """
         if np.iscomplexobj(values):
             raise InputError(
-                f"formula {_quote(self.text)}: {self.variable} values must be real, "
-                "got complex numbers"
+                f"formula {_quote(self.text)}: {self.variable} values must be real, got complex numbers"
             )
         try:
             arr = np.asarray(values, dtype=np.float64)
@@ -1033,11 +1045,15 @@ class Formula:
         assert self._tree is not None
         try:
             tree = self._tree.diff()
+            size = _expanded_size(tree, {})
+            if size > _MAX_DERIVATIVE_NODES:
+                raise FormulaError(
+                    f"formula {_quote(self.text)}: derivative too large ({size} operations; "
+                    f"at most {_MAX_DERIVATIVE_NODES}); simplify the formula"
+                )
             text = tree.render(self.variable)[0]
         except RecursionError:
-            raise FormulaError(
-                f"formula {_quote(self.text)}: nested too deeply to differentiate"
-            ) from None
+            raise FormulaError(f"formula {_quote(self.text)}: nested too deeply to differentiate") from None
         return Formula(text, self.variable, _tree=tree)
 
     def __str__(self) -> str:

@@ -151,7 +151,8 @@ class Track:
         def df(x: np.ndarray) -> np.ndarray:
             return -A * k * np.sin(k * np.asarray(x, dtype=float))
 
-        return cls("wave", lam, f=f, df=df, params={"amplitude_m": A, "wavelength_m": lam})
+        return cls("wave", lam, f=f, df=df, params={"amplitude_m": A, "wavelength_m": lam},
+                   extremes=(-A, A))
 
     @classmethod
     def sawtooth(cls, rise: float, run: float, up_fraction: float = 0.5) -> Track:
@@ -308,6 +309,10 @@ class Track:
             return float(self._nodes[:, 1].min()), float(self._nodes[:, 1].max())
         if self._extremes is not None:
             return self._extremes
+        self._extremes = self._search_range()
+        return self._extremes
+
+    def _search_range(self) -> tuple[float, float]:
         from scipy.optimize import minimize_scalar
 
         x = np.linspace(self._x0, self._x0 + self._period, 4097)

@@ -364,13 +364,43 @@ class Wheel:
             raise GeometryError("the wheel radius about the axle must be positive and finite")
 
     def _detect_symmetry(self) -> int:
-        phi = np.linspace(0.0, TWO_PI, 1441)[:-1] + 0.0123
+        """Order of rotational symmetry from the radius's Fourier modes.
+
+        ``r(phi + 2π/k) = r(phi)`` exactly when only modes that are multiples of ``k`` are
+        present, so ``k`` is the greatest common divisor of the significant mode numbers.
+        """
+        if self._vertices is not None:
+            return self._polygon_symmetry()
+        n = 2048
+        phi = np.linspace(0.0, TWO_PI, n, endpoint=False) + 0.0123
         r = self.radius(phi)
-        span = float(r.max() - r.min())
-        if span <= 1e-12 * float(r.max()):
+        spec = np.abs(np.fft.rfft(r))[1:] / n
+        if float(r.max() - r.min()) <= 1e-12 * float(r.max()):
             return 1  # round about the axle: any period; the track is flat
-        for k in range(64, 1, -1):
-            if abs(np.max(np.abs(self.radius(phi + TWO_PI / k) - r))) <= 1e-9 * float(r.max()):
+        modes = np.flatnonzero(spec > 1e-9 * float(r.max())) + 1
+        k = int(np.gcd.reduce(modes)) if modes.size else 1
+        # Confirm on the samples (guards against aliasing of sharp corners).
+        shift = n // k if n % k == 0 else None
+        if k > 1 and shift is not None and np.max(np.abs(np.roll(r, -shift) - r)) <= 1e-9 * r.max():
+            return k
+        if k > 1 and abs(np.max(np.abs(self.radius(phi + TWO_PI / k) - r))) <= 1e-9 * r.max():
+            return k
+        return 1
+
+    def _polygon_symmetry(self) -> int:
+        """Largest ``k`` for which a 2π/k turn about the axle maps the vertices onto themselves.
+
+        Vertex ``i`` must land on vertex ``i + N/k``.
+        """
+        v = self._vertices
+        nv = len(v)
+        scale = float(np.max(np.linalg.norm(v, axis=1)))
+        for k in range(nv, 1, -1):
+            if nv % k:
+                continue
+            a = TWO_PI / k
+            rot = v @ np.array([[math.cos(a), math.sin(a)], [-math.sin(a), math.cos(a)]])
+            if np.max(np.abs(rot - np.roll(v, -nv // k, axis=0))) <= 1e-9 * scale:
                 return k
         return 1
 

@@ -121,4 +121,4 @@ def track_for(wheel: Wheel, *, path: str = "line") -> RollingPair:
                   params={"period_m": period, "revolution_length_m": rev},
                   extremes=(-rmax, -rmin))
     return RollingPair(wheel, track, rmap, depth=0.0, lobes=k, closed=True,
-                       closure_gap_rad=0.0, cusps=tuple(cusps), path=path)
+                       closure_gap_rad=0.0, cusps=tuple(cusps), path=path, theta_at_x0=theta0)

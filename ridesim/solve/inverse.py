@@ -232,7 +232,7 @@ def wheel_for(
     if closed:
         rmap.theta_span = theta_p  # exact by construction of the root
     pair = RollingPair(None, lowered, rmap, depth=D, lobes=n, closed=closed,
-                       closure_gap_rad=gap, cusps=(), path=path)
+                       closure_gap_rad=gap, cusps=(), path=path, theta_at_x0=0.0)
     # Cusps: the track's kinks over one revolution.
     cusps = []
     if len(corners_x):

@@ -105,6 +105,12 @@ class CatenaryMap:
         u = self.alpha_u0[i] + (theta - self.theta_breaks[i])
         return self.xm[i] + self.d[i] * np.arcsinh(np.tan(u))
 
+    def y_of_theta(self, theta: np.ndarray) -> np.ndarray:
+        """Track height [m] under the axle at base wheel angle ``theta`` [rad]: ``-d/cos u``."""
+        i = np.searchsorted(self.theta_breaks, theta, side="right") - 1
+        i = np.clip(i, 0, len(self.d) - 1)
+        return -self.d[i] / np.cos(self.alpha_u0[i] + (theta - self.theta_breaks[i]))
+
     def y(self, x: np.ndarray) -> np.ndarray:
         """Track height [m] at base position ``x`` [m]: ``-d cosh((x - xm)/d)``."""
         i = self._edge_of_x(x)
@@ -134,6 +140,10 @@ class TableMap:
     def x_of_theta(self, theta: np.ndarray) -> np.ndarray:
         """Base position [m] at wheel angle ``theta`` [rad]."""
         return self.table.inverse.G(theta) if self.s_is_x else self.table.forward.G(theta)
+
+    def y_of_theta(self, theta: np.ndarray) -> np.ndarray | None:
+        """Track height [m] at base wheel angle ``theta`` [rad] (forward solves; else None)."""
+        return None if self.s_is_x else -self.table.forward.g(theta)
 
     def y(self, x: np.ndarray) -> np.ndarray:
         """Track height [m] from the table (forward solves only)."""
@@ -215,7 +225,7 @@ class RollingPair:
 
     def __init__(self, wheel: Wheel | None, track: Track, rmap, *, depth: float, lobes: int,
                  closed: bool, closure_gap_rad: float, cusps: tuple[Cusp, ...],
-                 path: str = "line") -> None:
+                 path: str = "line", theta_at_x0: float | None = None) -> None:
         self._wheel = wheel
         self.track = track
         self._map = rmap
@@ -225,6 +235,7 @@ class RollingPair:
         self.closure_gap_rad = float(closure_gap_rad)
         self.cusps = cusps
         self.path = path
+        self._theta0 = theta_at_x0
         self.revolution_length = float(rmap.x_span * (TWO_PI / rmap.theta_span))
 
     @property
@@ -273,10 +284,57 @@ class RollingPair:
         y : ndarray
             Track height [m] at the contact.
         """
-        th0 = float(self.wheel_angle(0.0))
-        theta = th0 + np.linspace(0.0, TWO_PI, int(n), endpoint=False)
+        m = self._map
+        th0 = self._theta0 if self._theta0 is not None else float(self.wheel_angle(0.0))
+        theta = np.linspace(th0, th0 + TWO_PI, int(n), endpoint=False)
+        tol = 1e-12 * TWO_PI
+        inside = th0 >= m.theta_lo - tol and th0 + TWO_PI <= m.theta_lo + m.theta_span + tol
+        if inside and isinstance(m, TableMap) and not m.s_is_x:
+            # One base stretch of a wheel-first table: x and y in one pass, no wrapping.
+            x, r = m.table.forward.G_and_g(theta)
+            np.negative(r, out=r)
+            return theta, x, r
+        if inside:
+            x = m.x_of_theta(theta)
+            y = m.y_of_theta(theta) if isinstance(m, CatenaryMap) else self.track.y(x)
+            return theta, x, y
         x = self.axle_x(theta)
         return theta, x, self.track.y(x)
+
+    def to_dict(self) -> dict:
+        """Summary of the solve with SI units in every key (JSON-ready plain values).
+
+        Returns
+        -------
+        dict
+            ``period_m``, ``revolution_length_m``, ``depth_min_m``, ``depth_max_m``
+            (least and greatest axle-to-contact distance), ``lobes``, ``cusps`` (list of
+            ``{x_m, depth_m, phi_rad, vertex}`` in the first revolution), ``depth_m`` (the
+            lowering of a given track shape, 0 for a wheel-first solve), ``closed``,
+            ``closure_gap_rad``, ``solved_from`` (``wheel`` or ``track``) and ``wheel``.
+        """
+        dmin, dmax = self.depth_range()
+        out = {
+            "solved_from": "track" if self.track.kind != "solved" else "wheel",
+            "period_m": float(self.track.period),
+            "revolution_length_m": float(self.revolution_length),
+            "depth_min_m": float(dmin),
+            "depth_max_m": float(dmax),
+            "lobes": int(self.lobes),
+            "cusps": [
+                {"x_m": c.x_m, "depth_m": c.depth_m, "phi_rad": c.phi_rad, "vertex": c.vertex}
+                for c in self.cusps
+            ],
+            "depth_m": float(self.depth),
+            "closed": bool(self.closed),
+            "closure_gap_rad": float(self.closure_gap_rad),
+            "wheel_angle_at_x0_rad": float(self.wheel_angle(0.0)),
+        }
+        if self._wheel is not None:
+            w = self._wheel
+            out["wheel"] = {"kind": w.kind, "symmetry": int(w.symmetry),
+                            "params": {k: v for k, v in w.params.items()}}
+        return out
 
     def __repr__(self) -> str:
         return (f"RollingPair(wheel={self._wheel!r}, period={self.track.period:.6g} m,"

@@ -53,6 +53,34 @@ def _horner(coef: np.ndarray, t: np.ndarray) -> np.ndarray:
     return out
 
 
+def _eval_sorted(edges: np.ndarray, coefs: tuple[np.ndarray, ...], flat: np.ndarray) -> list[np.ndarray]:
+    """Evaluate piecewise monomials at ascending points, one contiguous slice per cell.
+
+    Each cell's coefficients are scalars over its slice, so every Horner step is a
+    plain in-place numpy operation (measured faster here than gathering per-point
+    coefficients or broadcasting over padded blocks).
+    """
+    n = flat.size
+    out = [np.empty(n) for _ in coefs]
+    cuts = np.searchsorted(flat, edges[1:-1], side="left")
+    starts = np.concatenate(([0], cuts))
+    stops = np.concatenate((cuts, [n]))
+    for i in np.flatnonzero(stops > starts):
+        a, b = starts[i], stops[i]
+        half = 0.5 * (edges[i + 1] - edges[i])
+        t = flat[a:b] - (edges[i] + half)
+        t *= 1.0 / half
+        for coef, res in zip(coefs, out, strict=True):
+            c = coef[i]
+            acc = res[a:b]
+            np.multiply(t, c[-1], out=acc)
+            for j in range(len(c) - 2, 0, -1):
+                acc += c[j]
+                acc *= t
+            acc += c[0]
+    return out
+
+
 @dataclass(frozen=True, eq=False)
 class PolyTable:
     """A continuous piecewise polynomial ``G`` with its derivative ``g`` on sorted cells.
@@ -93,23 +121,26 @@ class PolyTable:
         s = np.asarray(s, dtype=float)
         flat = s.ravel()
         n = flat.size
-        if n >= 256 * (len(self.edges) - 1) and np.all(flat[1:] >= flat[:-1]):
-            # Sorted queries (dense outputs): one slice per cell, shared coefficients.
-            out = np.empty(n)
-            cuts = np.searchsorted(flat, self.edges[1:-1], side="left")
-            starts = np.concatenate(([0], cuts))
-            stops = np.concatenate((cuts, [n]))
-            for i in np.flatnonzero(stops > starts):
-                a, b = starts[i], stops[i]
-                left = self.edges[i]
-                half = 0.5 * (self.edges[i + 1] - left)
-                t = flat[a:b] - left
-                t *= 1.0 / half
-                t -= 1.0
-                out[a:b] = _horner(coef[i], t)
-            return out.reshape(s.shape)
+        if n >= 64 * (len(self.edges) - 1) and np.all(flat[1:] >= flat[:-1]):
+            return _eval_sorted(self.edges, (coef,), flat)[0].reshape(s.shape)
         idx, t = self._locate(flat)
         return _horner(coef[idx], t).reshape(s.shape)
+
+    def G_and_g(self, s: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+        """``G`` and ``g`` at ascending ``s`` in one pass over the cells (dense outputs).
+
+        Parameters
+        ----------
+        s : ndarray
+            Ascending points in the table's domain (not checked).
+
+        Returns
+        -------
+        G, g : ndarray
+        """
+        flat = np.asarray(s, dtype=float).ravel()
+        G, g = _eval_sorted(self.edges, (self.G_coef, self.g_coef), flat)
+        return G.reshape(np.shape(s)), g.reshape(np.shape(s))
 
     def G(self, s: np.ndarray) -> np.ndarray:
         """Antiderivative at ``s`` (inside the domain; extrapolates polynomially outside)."""
@@ -200,20 +231,28 @@ def _table_from_values(edges: np.ndarray, values: np.ndarray, G0: float) -> Poly
     return PolyTable(edges=edges, g_coef=g_coef, G_coef=G_coef)
 
 
-@dataclass(frozen=True, eq=False)
 class MonotoneMap:
     """``G(s)`` for a positive integrand and its inverse, both as polynomial tables.
+
+    The inverse table is built on first use (dense forward outputs never need it).
 
     Attributes
     ----------
     forward : PolyTable
         ``s -> G`` with derivative ``g``.
-    inverse : PolyTable
-        ``G -> s`` with derivative ``1/g``.
     """
 
-    forward: PolyTable
-    inverse: PolyTable
+    def __init__(self, forward: PolyTable, G0: float) -> None:
+        self.forward = forward
+        self._G0 = float(G0)
+        self._inverse: PolyTable | None = None
+
+    @property
+    def inverse(self) -> PolyTable:
+        """``G -> s`` with derivative ``1/g`` (built on first use)."""
+        if self._inverse is None:
+            self._inverse = _inverse_table(self.forward, self._G0)
+        return self._inverse
 
     @property
     def total(self) -> float:
@@ -265,8 +304,12 @@ def build_map(
         The forward and inverse tables.
     """
     edges, values = _cells_for(g, breaks, tol, initial_cells)
-    fwd = _table_from_values(edges, values, G0)
-    # Inverse: cells in G follow the forward cells; nodes found by Newton on the forward table.
+    return MonotoneMap(_table_from_values(edges, values, G0), G0)
+
+
+def _inverse_table(fwd: PolyTable, G0: float) -> PolyTable:
+    """Tabulate ``s(G)`` on the images of the forward cells (Newton at Chebyshev nodes)."""
+    edges = fwd.edges
     G_edges = fwd.G(edges)
     G_edges[0], G_edges[-1] = G0, fwd.G(np.array([edges[-1]]))[0]
     inv_edges = np.maximum.accumulate(G_edges)
@@ -276,10 +319,9 @@ def build_map(
     guess = edges[:-1, None] + frac * np.diff(edges)[:, None]
     s_nodes = _newton_inverse(fwd, targets.ravel(), guess.ravel()).reshape(targets.shape)
     # The inverse's derivative 1/g, interpolated from its own nodal values.
-    inv_g = 1.0 / fwd.g(s_nodes)
-    inv = _table_from_values(inv_edges, inv_g, float(edges[0]))
+    inv = _table_from_values(inv_edges, 1.0 / fwd.g(s_nodes), float(edges[0]))
     # Anchor each inverse cell exactly at its forward edge (removes drift from the cumsum).
     k = np.arange(_NODES + 1)
     at_minus1 = inv.G_coef[:, 1:] @ ((-1.0) ** k[1:])
     inv.G_coef[:, 0] = edges[:-1] - at_minus1
-    return MonotoneMap(forward=fwd, inverse=inv)
+    return inv

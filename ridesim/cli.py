@@ -1,0 +1,191 @@
+"""Command line: a thin shell over the Python API.
+
+``ridesim COMMAND SCENARIO.toml [--json] [--out DIR]``. Exit codes: 0 ran
+(whatever the verdict), 2 bad input (one line on stderr naming the field and
+the fix), 1 internal error. With ``--json`` standard output is exactly one
+JSON object.
+"""
+
+from __future__ import annotations
+
+import argparse
+import json
+import os
+import sys
+from collections.abc import Callable
+from pathlib import Path
+
+from ridesim._version import __version__
+from ridesim.errors import RidesimError
+
+__all__ = ["main"]
+
+
+class _ArgumentError(Exception):
+    """Bad command-line usage (exit code 2)."""
+
+
+class _Parser(argparse.ArgumentParser):
+    def error(self, message: str) -> None:  # one line, exit code 2, no usage dump
+        raise _ArgumentError(f"{self.prog}: {message}")
+
+
+def _fmt_m(v: float) -> str:
+    return f"{v:.6g} m ({v * 1000:.2f} mm)"
+
+
+# ---------------------------------------------------------------------------- commands
+def _cmd_solve(sc, args) -> tuple[dict, str]:
+    from ridesim.io.build import solve_scenario
+
+    pair = solve_scenario(sc)
+    out = pair.to_dict()
+    lines = [f"scenario: {sc.name}"]
+    if out["solved_from"] == "wheel":
+        lines.append(f"solved the track for the {out['wheel']['kind']} wheel")
+    else:
+        lines.append(f"solved the wheel for the {sc.track.shape} track: lowered by"
+                     f" depth {_fmt_m(out['depth_m'])}")
+    lines += [
+        f"track period:          {_fmt_m(out['period_m'])}",
+        f"revolution length:     {_fmt_m(out['revolution_length_m'])}"
+        f"  ({out['lobes']} period(s) per wheel turn)",
+        f"contact depth range:   {out['depth_min_m']:.6g} .. {out['depth_max_m']:.6g} m below the axle",
+    ]
+    if out["cusps"]:
+        xs = ", ".join(f"{c['x_m']:.4f}" for c in out["cusps"][:8])
+        more = "" if len(out["cusps"]) <= 8 else f", ... ({len(out['cusps'])} in all)"
+        lines.append(f"cusps in one revolution at x = {xs}{more} m")
+    else:
+        lines.append("no cusps (smooth track)")
+    if out["closed"]:
+        lines.append("closure: the wheel closes after one revolution")
+    else:
+        lines.append(f"closure: NOT closed; after {out['lobes']} period(s) the wheel is"
+                     f" {out['closure_gap_rad']:+.6g} rad from a full turn")
+    return out, "\n".join(lines)
+
+
+def _cmd_check(sc, args) -> tuple[dict, str]:
+    from ridesim.assess.verdict import check_scenario
+
+    res = check_scenario(sc)
+    return res.to_dict(), res.to_text()
+
+
+def _cmd_simulate(sc, args) -> tuple[dict, str]:
+    from ridesim.sim.run import simulate
+
+    progress = None
+    if not args.json and sys.stderr.isatty():
+        progress = _progress_bar("simulating")
+    res = simulate(sc, progress=progress)
+    if progress is not None:
+        progress(1.0)
+        sys.stderr.write("\n")
+    if args.out:
+        res.write_csv(Path(args.out) / "probes.csv")
+    return res.to_dict(), res.to_text()
+
+
+def _progress_bar(label: str) -> Callable[[float], None]:
+    state = {"last": -1}
+
+    def show(frac: float) -> None:
+        pct = int(100 * min(max(frac, 0.0), 1.0))
+        if pct == state["last"]:
+            return
+        state["last"] = pct
+        bar = "#" * (pct // 4) + "-" * (25 - pct // 4)
+        sys.stderr.write(f"\r{label} [{bar}] {pct:3d}%")
+        sys.stderr.flush()
+
+    return show
+
+
+_COMMANDS: dict[str, tuple[Callable, str]] = {
+    "solve": (_cmd_solve, "solve the track for the wheel (or the wheel for the track)"),
+    "check": (_cmd_check, "will it roll? clearance, friction demand and shaft torque"),
+    "simulate": (_cmd_simulate, "rigid-body simulation: bounce, slip onset, torque"),
+}
+
+
+def _available() -> dict[str, tuple[Callable, str]]:
+    """Commands whose layer is installed (the CLI lists only what works)."""
+    import importlib.util
+
+    need = {"check": "ridesim.assess.verdict", "simulate": "ridesim.sim.run"}
+    out = {}
+    for name, entry in _COMMANDS.items():
+        mod = need.get(name)
+        if mod is None or importlib.util.find_spec(mod) is not None:
+            out[name] = entry
+    return out
+
+
+def _build_parser(commands: dict) -> _Parser:
+    p = _Parser(prog="ridesim", description="Non-circular wheels and their tracks: solve, check,"
+                " simulate. Units are SI throughout.")
+    p.add_argument("--version", action="version", version=f"ridesim {__version__}")
+    sub = p.add_subparsers(dest="command", metavar="COMMAND", parser_class=_Parser)
+    sub.required = True
+    for name, (_, helptext) in commands.items():
+        sp = sub.add_parser(name, help=helptext, description=helptext)
+        sp.add_argument("scenario", metavar="SCENARIO.toml", help="scenario file")
+        sp.add_argument("--json", action="store_true", help="print exactly one JSON object")
+        sp.add_argument("--out", metavar="DIR", help="also write results into DIR")
+    return p
+
+
+def main(argv: list[str] | None = None) -> int:
+    """Run the command line; returns the exit code.
+
+    Parameters
+    ----------
+    argv : list of str, optional
+        Arguments without the program name; default ``sys.argv[1:]``.
+
+    Returns
+    -------
+    int
+        0 ran, 2 bad input, 1 internal error.
+    """
+    commands = _available()
+    try:
+        args = _build_parser(commands).parse_args(argv)
+    except _ArgumentError as exc:
+        print(f"error: {exc}", file=sys.stderr)
+        return 2
+    except SystemExit as exc:  # --help / --version
+        return int(exc.code or 0)
+    try:
+        from ridesim.io.results import json_ready, write_json_atomic
+        from ridesim.io.scenario import load_scenario
+
+        sc = load_scenario(args.scenario)
+        fn = commands[args.command][0]
+        data, text = fn(sc, args)
+        data = json_ready(data)
+        if args.out:
+            write_json_atomic(Path(args.out) / f"{args.command}.json", data)
+        if args.json:
+            sys.stdout.write(json.dumps(data) + "\n")
+        else:
+            print(text)
+        return 0
+    except RidesimError as exc:
+        print(f"error: {' '.join(str(exc).split())}", file=sys.stderr)
+        return 2
+    except KeyboardInterrupt:
+        print("interrupted", file=sys.stderr)
+        return 130
+    except Exception as exc:  # pragma: no cover - the last line of defence
+        if os.environ.get("RIDESIM_DEBUG"):
+            raise
+        print(f"internal error: {type(exc).__name__}: {exc} (set RIDESIM_DEBUG=1 for a traceback;"
+              " please report it)", file=sys.stderr)
+        return 1
+
+
+if __name__ == "__main__":  # pragma: no cover
+    sys.exit(main())

@@ -1,0 +1,116 @@
+"""Atomic writing of results: nothing already written is lost or half-written.
+
+Each file is written to a temporary file in the destination folder and then
+renamed over the destination (``os.replace`` is atomic on POSIX and Windows).
+"""
+
+from __future__ import annotations
+
+import json
+import math
+import os
+import tempfile
+from pathlib import Path
+from typing import Any
+
+import numpy as np
+
+__all__ = ["write_text_atomic", "write_bytes_atomic", "write_json_atomic", "json_ready"]
+
+
+def write_bytes_atomic(path: str | Path, data: bytes) -> Path:
+    """Write ``data`` to ``path`` through a temporary file and a rename.
+
+    Parameters
+    ----------
+    path : str or Path
+        Destination file; its folder is created if missing.
+    data : bytes
+        Content.
+
+    Returns
+    -------
+    Path
+        The destination.
+    """
+    path = Path(path)
+    path.parent.mkdir(parents=True, exist_ok=True)
+    fd, tmp = tempfile.mkstemp(prefix=f".{path.name}.", suffix=".tmp", dir=path.parent)
+    try:
+        with os.fdopen(fd, "wb") as fh:
+            fh.write(data)
+            fh.flush()
+            os.fsync(fh.fileno())
+        os.replace(tmp, path)
+    except BaseException:
+        try:
+            os.unlink(tmp)
+        except OSError:
+            pass
+        raise
+    return path
+
+
+def write_text_atomic(path: str | Path, text: str) -> Path:
+    """Write UTF-8 ``text`` to ``path`` atomically (see :func:`write_bytes_atomic`).
+
+    Parameters
+    ----------
+    path : str or Path
+        Destination file.
+    text : str
+        Content.
+
+    Returns
+    -------
+    Path
+        The destination.
+    """
+    return write_bytes_atomic(path, text.encode("utf-8"))
+
+
+def json_ready(obj: Any) -> Any:
+    """Convert numpy scalars/arrays and tuples to plain JSON values; non-finite floats to None.
+
+    Parameters
+    ----------
+    obj : object
+        Nested dicts, lists, tuples, numbers, strings, numpy values.
+
+    Returns
+    -------
+    object
+        The same structure with only JSON-native types.
+    """
+    if isinstance(obj, dict):
+        return {str(k): json_ready(v) for k, v in obj.items()}
+    if isinstance(obj, (list, tuple)):
+        return [json_ready(v) for v in obj]
+    if isinstance(obj, np.ndarray):
+        return [json_ready(v) for v in obj.tolist()]
+    if isinstance(obj, (bool, np.bool_)):
+        return bool(obj)
+    if isinstance(obj, (int, np.integer)):
+        return int(obj)
+    if isinstance(obj, (float, np.floating)):
+        v = float(obj)
+        return v if math.isfinite(v) else None
+    return obj
+
+
+def write_json_atomic(path: str | Path, obj: Any) -> Path:
+    """Write ``obj`` as indented JSON atomically.
+
+    Parameters
+    ----------
+    path : str or Path
+        Destination file.
+    obj : object
+        JSON-convertible data (numpy values allowed).
+
+    Returns
+    -------
+    Path
+        The destination.
+    """
+    return write_text_atomic(path, json.dumps(json_ready(obj), indent=2) + "\n")
