@@ -972,17 +972,23 @@ class Formula:
 
     text: str
     variable: str = "x"
-    _tree: _Node | None = field(default=None, repr=False, compare=False, kw_only=True)
+    _tree: _Node | None = field(default=None, init=False, repr=False, compare=False)
     _program: tuple = field(default=(), init=False, repr=False, compare=False)
 
     def __post_init__(self) -> None:
-        """Validate and parse the text unless a tree was supplied."""
-        variable = _check_variable(self.variable)
-        tree = self._tree
-        if tree is None:
-            tree = _parse_tree(self.text, variable)
-            object.__setattr__(self, "_tree", tree)
+        """Validate and parse the text."""
+        tree = _parse_tree(self.text, _check_variable(self.variable))
+        object.__setattr__(self, "_tree", tree)
         object.__setattr__(self, "_program", _compile(tree))
+
+    @classmethod
+    def _from_tree(cls, text: str, variable: str, tree: _Node) -> Formula:
+        """Build a formula from an existing tree (used for derivatives)."""
+        self = object.__new__(cls)
+        for name, value in (("text", text), ("variable", variable), ("_tree", tree)):
+            object.__setattr__(self, name, value)
+        object.__setattr__(self, "_program", _compile(tree))
+        return self
 
     def __call__(self, values: Any) -> Any:
         """Evaluate the formula.
@@ -1054,7 +1060,7 @@ class Formula:
             text = tree.render(self.variable)[0]
         except RecursionError:
             raise FormulaError(f"formula {_quote(self.text)}: nested too deeply to differentiate") from None
-        return Formula(text, self.variable, _tree=tree)
+        return Formula._from_tree(text, self.variable, tree)
 
     def __str__(self) -> str:
         """Return the formula text."""

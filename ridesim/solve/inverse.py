@@ -16,7 +16,6 @@ from __future__ import annotations
 import math
 
 import numpy as np
-from scipy.optimize import brentq
 
 from ridesim.errors import ClosureError, GeometryError, InputError
 from ridesim.model.track import Track
@@ -120,6 +119,8 @@ def closure_angle(track: Track, depth: float) -> float:
 
 
 def _closing_depth(track: Track, lobes: int) -> float:
+    from scipy.optimize import brentq  # imported here: keeps `import ridesim` light
+
     lo, hi = track.shape_range()
     target = TWO_PI / lobes
     span = max(hi - lo, track.period / TWO_PI)

@@ -1,0 +1,100 @@
+"""The command line: exit codes, one-line errors, exactly one JSON object, atomic outputs."""
+
+import json
+import math
+import subprocess
+import sys
+from pathlib import Path
+
+import pytest
+
+from ridesim.cli import main
+
+ROOT = Path(__file__).resolve().parent.parent
+SCENARIOS = ROOT / "scenarios"
+
+
+def run_cli(*args):
+    """Run the installed entry point in a subprocess (as a user would)."""
+    return subprocess.run([sys.executable, "-m", "ridesim.cli", *args], capture_output=True,
+                          text=True, cwd=ROOT)
+
+
+def test_solve_json_hexagon_matches_closed_form():
+    # Regular n-gon of apothem a: period 2a*asinh(tan(pi/n)) (Hall & Wagon, "Roads and
+    # Wheels", Mathematics Magazine 65(5), 1992); contact depth from a to a/cos(pi/n).
+    r = run_cli("solve", str(SCENARIOS / "hexagon_trolley.toml"), "--json")
+    assert r.returncode == 0, r.stderr
+    out = json.loads(r.stdout)  # exactly one JSON object on stdout
+    a, n = 0.12, 6
+    period = 2 * a * math.asinh(math.tan(math.pi / n))
+    assert out["period_m"] == pytest.approx(period, rel=1e-12)
+    assert out["revolution_length_m"] == pytest.approx(n * period, rel=1e-12)
+    assert out["depth_min_m"] == pytest.approx(a, rel=1e-12)
+    assert out["depth_max_m"] == pytest.approx(a / math.cos(math.pi / n), rel=1e-12)
+    assert out["lobes"] == n
+    xs = sorted(c["x_m"] for c in out["cusps"])
+    assert xs == pytest.approx([(k + 0.5) * period for k in range(n)], rel=1e-12)
+
+
+def test_solve_json_wave_track_depth_closed_form():
+    # Closure integral of a cosine track: λ/sqrt(D² - A²) = 2π/n, so D = sqrt(A² + (nλ/2π)²)
+    # (standard integral of 1/(D - A cos u); Gradshteyn & Ryzhik 2.553 [memory]).
+    r = run_cli("solve", str(SCENARIOS / "wave_track_sculpture.toml"), "--json")
+    assert r.returncode == 0, r.stderr
+    out = json.loads(r.stdout)
+    A, lam, n = 0.02, 0.3, 3
+    assert out["depth_m"] == pytest.approx(math.sqrt(A**2 + (n * lam / (2 * math.pi)) ** 2),
+                                           rel=1e-12)
+    assert out["closed"] is True and out["lobes"] == n
+    assert out["depth_min_m"] == pytest.approx(out["depth_m"] - A, rel=1e-12)
+
+
+def test_solve_text_output_and_out_dir(tmp_path):
+    assert main(["solve", str(SCENARIOS / "ellipse_pull_toy.toml"), "--out", str(tmp_path)]) == 0
+    saved = json.loads((tmp_path / "solve.json").read_text())
+    # Ellipse about a focus: track depth from a - c to a + c (Hall & Wagon 1992).
+    a, b = 0.05, 0.04
+    c = math.sqrt(a * a - b * b)
+    assert saved["depth_min_m"] == pytest.approx(a - c, rel=1e-9)
+    assert saved["depth_max_m"] == pytest.approx(a + c, rel=1e-9)
+    assert not list(tmp_path.glob(".*.tmp"))  # no temporary file left behind
+
+
+@pytest.mark.parametrize(
+    ("body", "needle"),
+    [
+        ('[wheel]\nshape = "polygon"\nsides = 4\napothem_m = -0.3\n', "wheel.apothem_m must be > 0"),
+        ('[wheel]\nshape = "ellipse"\nsemi_axes_m = [0.3, 0.2]\naxle_m = [0.5, 0.0]\n',
+         "not strictly inside"),
+        ('[wheel]\nshape = "polar"\nradius_formula = "0.3 + foo(phi)"\n', "foo"),
+        ('[track]\nshape = "wave"\namplitude_m = 0.1\nwavelength_m = 1.0\ndepth_m = 0.05\n',
+         "depth_m"),
+        ("[wheel\n", "TOML"),
+    ],
+)
+def test_bad_input_one_line_exit_2(tmp_path, body, needle):
+    f = tmp_path / "bad.toml"
+    f.write_text(body)
+    r = run_cli("solve", str(f), "--json")
+    assert r.returncode == 2
+    assert r.stdout == ""
+    lines = r.stderr.strip().splitlines()
+    assert len(lines) == 1 and needle in lines[0], r.stderr
+    assert "Traceback" not in r.stderr
+
+
+def test_unknown_command_and_missing_file_exit_2(tmp_path):
+    assert run_cli("frobnicate", "x.toml").returncode == 2
+    r = run_cli("solve", str(tmp_path / "missing.toml"))
+    assert r.returncode == 2 and "not found" in r.stderr
+
+
+def test_out_dir_keeps_previous_result_when_input_is_bad(tmp_path):
+    good = SCENARIOS / "hexagon_trolley.toml"
+    assert main(["solve", str(good), "--out", str(tmp_path)]) == 0
+    before = (tmp_path / "solve.json").read_text()
+    bad = tmp_path / "bad.toml"
+    bad.write_text('[wheel]\nshape = "polygon"\nsides = 2\napothem_m = 0.3\n')
+    assert main(["solve", str(bad), "--out", str(tmp_path)]) == 2
+    assert (tmp_path / "solve.json").read_text() == before
