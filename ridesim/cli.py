@@ -17,6 +17,7 @@ from pathlib import Path
 
 from ridesim._version import __version__
 from ridesim.errors import RidesimError
+from ridesim.errors import ScenarioError as ScenarioError_
 
 __all__ = ["main"]
 
@@ -70,7 +71,7 @@ def _cmd_check(sc, args) -> tuple[dict, str]:
     from ridesim.assess.verdict import check_scenario
 
     res = check_scenario(sc)
-    return res.to_dict(), res.to_text()
+    return res.to_dict(), _text_of(res)
 
 
 def _cmd_simulate(sc, args) -> tuple[dict, str]:
@@ -85,7 +86,72 @@ def _cmd_simulate(sc, args) -> tuple[dict, str]:
         sys.stderr.write("\n")
     if args.out:
         res.write_csv(Path(args.out) / "probes.csv")
-    return res.to_dict(), res.to_text()
+    return res.to_dict(), _text_of(res)
+
+
+def _text_of(res) -> str:
+    """A result's own text, or a plain listing of its figures."""
+    if hasattr(res, "to_text"):
+        return res.to_text()
+    lines = []
+
+    def walk(d, indent=""):
+        for k, v in d.items():
+            if isinstance(v, dict):
+                lines.append(f"{indent}{k}:")
+                walk(v, indent + "  ")
+            elif isinstance(v, list) and v and isinstance(v[0], str):
+                lines.append(f"{indent}{k}:")
+                lines.extend(f"{indent}  - {x}" for x in v)
+            else:
+                lines.append(f"{indent}{k}: {v}")
+
+    walk(res.to_dict())
+    return "\n".join(lines)
+
+
+def _cmd_sweep(args) -> int:
+    from ridesim.sweep.plan import load_sweep
+    from ridesim.sweep.run import run_sweep
+    from ridesim.sweep.summary import best_cases, plot_metric, read_table
+
+    plan = load_sweep(args.scenario)
+    show = sys.stderr.isatty()
+
+    def progress(done: int, failed: int, total: int) -> None:
+        if show:
+            sys.stderr.write(f"\rsweep: {done}/{total} done, {failed} failed,"
+                             f" {total - done} remaining   ")
+            sys.stderr.flush()
+
+    outcome = run_sweep(plan, args.out, workers=args.workers, cluster=args.cluster,
+                        progress=progress)
+    if show:
+        sys.stderr.write("\n")
+    rows = read_table(outcome.table)
+    summary = {"cases": outcome.total, "done": outcome.done, "failed": outcome.failed,
+               "computed_now": outcome.computed, "table": str(outcome.table),
+               "interrupted": outcome.interrupted}
+    if args.best:
+        summary["best"] = [{"case": int(r["case"]), args.best: r[args.best],
+                            **{c: r[c] for c in plan.columns}}
+                           for r in best_cases(rows, args.best, highest=args.highest)]
+    if args.plot:
+        params = list(plan.columns[:2]) if not args.against else args.against.split(",")
+        if not params:
+            raise ScenarioError_("--plot needs varied parameters in the sweep")
+        summary["plot"] = str(plot_metric(rows, args.plot, params,
+                                          Path(args.out) / f"sweep_{args.plot}.png"))
+    if args.json:
+        sys.stdout.write(json.dumps(summary) + "\n")
+    else:
+        print(f"sweep {plan.source}: {outcome.done}/{outcome.total} cases done"
+              f" ({outcome.failed} failed, {outcome.computed} computed now) -> {outcome.table}")
+        for b in summary.get("best", []):
+            print("  best: " + ", ".join(f"{k} = {v}" for k, v in b.items()))
+        if "plot" in summary:
+            print(f"  plot: {summary['plot']}")
+    return 130 if outcome.interrupted and outcome.done < outcome.total else 0
 
 
 def _progress_bar(label: str) -> Callable[[float], None]:
@@ -134,6 +200,19 @@ def _build_parser(commands: dict) -> _Parser:
         sp.add_argument("scenario", metavar="SCENARIO.toml", help="scenario file")
         sp.add_argument("--json", action="store_true", help="print exactly one JSON object")
         sp.add_argument("--out", metavar="DIR", help="also write results into DIR")
+    sw = sub.add_parser("sweep", help="run a design sweep or tolerance study (resumable)",
+                        description="Run every case of a sweep file; rerun the same command to"
+                        " resume an interrupted sweep.")
+    sw.add_argument("scenario", metavar="SWEEP.toml", help="sweep file")
+    sw.add_argument("--out", metavar="DIR", required=True, help="results folder")
+    sw.add_argument("--workers", type=int, default=None, help="local processes (default: cores)")
+    sw.add_argument("--cluster", metavar="ADDRESS", default=None,
+                    help="'local' for a Dask LocalCluster, or a scheduler address")
+    sw.add_argument("--best", metavar="METRIC", help="list the cases with the lowest METRIC")
+    sw.add_argument("--highest", action="store_true", help="with --best: rank from the highest")
+    sw.add_argument("--plot", metavar="METRIC", help="plot METRIC against the varied parameters")
+    sw.add_argument("--against", metavar="KEYS", help="comma-separated parameters for --plot")
+    sw.add_argument("--json", action="store_true", help="print exactly one JSON object")
     return p
 
 
@@ -162,6 +241,8 @@ def main(argv: list[str] | None = None) -> int:
         from ridesim.io.results import json_ready, write_json_atomic
         from ridesim.io.scenario import load_scenario
 
+        if args.command == "sweep":
+            return _cmd_sweep(args)
         sc = load_scenario(args.scenario)
         fn = commands[args.command][0]
         data, text = fn(sc, args)

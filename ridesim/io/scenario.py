@@ -50,6 +50,7 @@ __all__ = [
     "Scenario",
     "load_scenario",
     "scenario_from_dict",
+    "scenario_keys",
 ]
 
 WHEEL_SHAPES = ("polygon", "ellipse", "circle", "polar", "outline")
@@ -544,6 +545,23 @@ def _split_key_path(key: Any) -> tuple[str, ...]:
 # ----------------------------------------------------------------------------
 # Loading
 # ----------------------------------------------------------------------------
+
+
+def scenario_keys() -> frozenset[str]:
+    """Every dotted key a scenario may hold (``"wheel.sides"``, ``"surface.friction"``, ...).
+
+    Returns
+    -------
+    frozenset of str
+        Top-level keys and ``section.key`` paths for all shapes and sections.
+    """
+    keys = {"name", "description"}
+    keys |= {f"wheel.{k}" for k in set(_WHEEL_COMMON).union(*_WHEEL_SHAPE_KEYS.values())}
+    keys |= {f"track.{k}" for k in set(_TRACK_COMMON).union(*_TRACK_SHAPE_KEYS.values())}
+    for section, spec in (("vehicle", VehicleSpec), ("drive", DriveSpec),
+                          ("surface", SurfaceSpec), ("run", RunSpec)):
+        keys |= {f"{section}.{f.name}" for f in fields(spec)}
+    return frozenset(keys)
 
 
 def load_scenario(path: str | Path) -> Scenario:

@@ -1,0 +1,68 @@
+"""The jobs a scenario can be run through, by name, returning JSON-ready dicts.
+
+Used by the command line and by sweeps, so that both compute exactly the same
+figures. Each layer is imported only when its job runs.
+"""
+
+from __future__ import annotations
+
+from collections.abc import Callable
+
+from ridesim.io.scenario import Scenario
+
+__all__ = ["JOBS", "run_job"]
+
+
+def _solve(sc: Scenario, progress=None) -> dict:
+    from ridesim.io.build import solve_scenario
+
+    return solve_scenario(sc).to_dict()
+
+
+def _check(sc: Scenario, progress=None) -> dict:
+    from ridesim.assess.verdict import check_scenario
+
+    return check_scenario(sc).to_dict()
+
+
+def _simulate(sc: Scenario, progress=None) -> dict:
+    from ridesim.sim.run import simulate
+
+    return simulate(sc, progress=progress).to_dict()
+
+
+def _size_motor(sc: Scenario, progress=None) -> dict:
+    from ridesim.metrics.motor import size_motor
+
+    return size_motor(sc).to_dict()
+
+
+#: Job name -> function(scenario, progress=None) -> dict.
+JOBS: dict[str, Callable[..., dict]] = {
+    "solve": _solve,
+    "check": _check,
+    "simulate": _simulate,
+    "size-motor": _size_motor,
+}
+
+
+def run_job(name: str, sc: Scenario, progress=None) -> dict:
+    """Run one job on a scenario.
+
+    Parameters
+    ----------
+    name : str
+        One of :data:`JOBS`.
+    sc : Scenario
+        Validated scenario.
+    progress : callable, optional
+        ``progress(fraction)`` for long jobs (simulation).
+
+    Returns
+    -------
+    dict
+        The job's JSON-ready result.
+    """
+    from ridesim.io.results import json_ready
+
+    return json_ready(JOBS[name](sc, progress=progress))

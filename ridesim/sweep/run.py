@@ -1,0 +1,321 @@
+"""Run a sweep: local process pool by default, a Dask cluster when asked; resumable.
+
+Results are journalled case by case (``cases.jsonl``, one fsync'd line a case,
+written only by the coordinating process), and ``results.csv`` is rewritten
+from the journal atomically after each batch, rows in case order. A sweep that
+is interrupted (Ctrl-C, a killed worker, a killed process) resumes with the same
+command: finished cases are read back, never recomputed, and the final table
+equals that of an uninterrupted run (it holds no timings; those go to
+``sweep.log``).
+"""
+
+from __future__ import annotations
+
+import csv
+import io
+import json
+import os
+import time
+from collections.abc import Callable
+from concurrent.futures import FIRST_COMPLETED, ProcessPoolExecutor, wait
+from dataclasses import dataclass
+from pathlib import Path
+from typing import Any
+
+from ridesim.errors import RidesimError, ScenarioError
+from ridesim.io.results import write_bytes_atomic, write_text_atomic
+from ridesim.sweep.plan import SweepPlan
+
+__all__ = ["run_sweep", "run_case", "SweepOutcome", "read_journal"]
+
+JOURNAL = "cases.jsonl"
+TABLE = "results.csv"
+LOG = "sweep.log"
+
+
+@dataclass(frozen=True)
+class SweepOutcome:
+    """What a sweep run did.
+
+    Attributes
+    ----------
+    total : int
+        Cases in the plan.
+    done : int
+        Cases with a result (including failed ones) after this run.
+    failed : int
+        Cases whose run raised an error (their message is in the table).
+    computed : int
+        Cases computed by this run (the rest were read back from the journal).
+    table : Path
+        The results table.
+    interrupted : bool
+        True when the run stopped before all cases were done.
+    """
+
+    total: int
+    done: int
+    failed: int
+    computed: int
+    table: Path
+    interrupted: bool
+
+
+def _flatten(d: dict, prefix: str = "") -> dict:
+    out = {}
+    for k, v in d.items():
+        name = f"{prefix}{k}"
+        if isinstance(v, dict):
+            out.update(_flatten(v, name + "."))
+        elif isinstance(v, (list, tuple)):
+            continue  # lists (cusps, reasons, cautions) do not fit a table cell
+        else:
+            out[name] = v
+    return out
+
+
+def run_case(payload: dict) -> dict:
+    """Run one case in a worker; never raises for a bad case.
+
+    Parameters
+    ----------
+    payload : dict
+        ``base`` (scenario dict), ``base_dir``, ``source``, ``run``, ``index``, ``key``,
+        ``values`` (dotted key -> value).
+
+    Returns
+    -------
+    dict
+        ``case``, ``key``, ``metrics`` (flat dict) and ``error`` (None or one line), and
+        ``elapsed_s`` (wall time, for the log only).
+    """
+    from ridesim.io.scenario import scenario_from_dict
+    from ridesim.jobs import run_job
+
+    t0 = time.perf_counter()
+    row: dict[str, Any] = {"case": payload["index"], "key": payload["key"], "metrics": {},
+                           "error": None}
+    try:
+        sc = scenario_from_dict(payload["base"], base_dir=payload["base_dir"],
+                                source=payload["source"])
+        sc = sc.replace_many(payload["values"]) if payload["values"] else sc
+        row["metrics"] = _flatten(run_job(payload["run"], sc))
+    except RidesimError as exc:
+        row["error"] = " ".join(str(exc).split())
+    except Exception as exc:  # a failing case never stops the sweep
+        row["error"] = f"internal error: {type(exc).__name__}: {' '.join(str(exc).split())}"
+    row["elapsed_s"] = time.perf_counter() - t0
+    return row
+
+
+def read_journal(out_dir: str | Path) -> dict[int, dict]:
+    """Finished cases recorded in ``out_dir``'s journal (a torn last line is ignored).
+
+    Parameters
+    ----------
+    out_dir : str or Path
+        The sweep's output folder.
+
+    Returns
+    -------
+    dict
+        Case number -> recorded row.
+    """
+    path = Path(out_dir) / JOURNAL
+    rows: dict[int, dict] = {}
+    if not path.exists():
+        return rows
+    with open(path, encoding="utf-8") as fh:
+        for line in fh:
+            try:
+                row = json.loads(line)
+            except json.JSONDecodeError:
+                continue  # the line being written when the process was killed
+            rows.setdefault(int(row["case"]), row)
+    return rows
+
+
+def _cell(v: Any) -> str:
+    if v is None:
+        return ""
+    if isinstance(v, float):
+        return repr(v)
+    if isinstance(v, (list, tuple, dict)):
+        return json.dumps(v)
+    return str(v)
+
+
+def _write_table(plan: SweepPlan, rows: dict[int, dict], out_dir: Path) -> Path:
+    metric_keys = sorted({k for r in rows.values() for k in r["metrics"]})
+    header = ["case", *plan.columns, *metric_keys, "error"]
+    buf = io.StringIO()
+    w = csv.writer(buf, lineterminator="\n")
+    w.writerow(header)
+    for case in plan.cases:
+        r = rows.get(case.index)
+        if r is None:
+            continue
+        w.writerow([case.index, *(_cell(case.values.get(c)) for c in plan.columns),
+                    *(_cell(r["metrics"].get(k)) for k in metric_keys), _cell(r["error"])])
+    path = write_text_atomic(out_dir / TABLE, buf.getvalue())
+    try:  # Parquet as well when pyarrow is installed
+        import pyarrow as pa
+        import pyarrow.csv as pacsv
+        import pyarrow.parquet as pq
+
+        table = pacsv.read_csv(pa.py_buffer(buf.getvalue().encode()))
+        sink = pa.BufferOutputStream()
+        pq.write_table(table, sink)
+        write_bytes_atomic(out_dir / "results.parquet", sink.getvalue().to_pybytes())
+    except ImportError:
+        pass
+    return path
+
+
+def _payload(plan: SweepPlan, case) -> dict:
+    return {"base": plan.base.to_dict(), "base_dir": plan.base.base_dir,
+            "source": plan.base.source, "run": plan.run, "index": case.index,
+            "key": case.key, "values": case.values}
+
+
+def run_sweep(
+    plan: SweepPlan,
+    out_dir: str | Path,
+    *,
+    workers: int | None = None,
+    cluster: str | None = None,
+    progress: Callable[[int, int, int], None] | None = None,
+    batch: int = 8,
+) -> SweepOutcome:
+    """Run every case not yet in ``out_dir``'s journal.
+
+    Parameters
+    ----------
+    plan : SweepPlan
+        From :func:`ridesim.sweep.plan.load_sweep`.
+    out_dir : str or Path
+        Output folder (created); holds ``cases.jsonl``, ``results.csv``, ``sweep.log``.
+    workers : int, optional
+        Local worker processes (default: the machine's cores); 1 runs in this process.
+    cluster : str, optional
+        ``"local"`` to start a Dask LocalCluster, or a scheduler address such as
+        ``"tcp://10.0.0.5:8786"``. Requires ``pip install ridesim[cluster]``.
+    progress : callable, optional
+        ``progress(done, failed, total)`` after each case.
+    batch : int
+        Cases between rewrites of the results table.
+
+    Returns
+    -------
+    SweepOutcome
+    """
+    out = Path(out_dir)
+    out.mkdir(parents=True, exist_ok=True)
+    rows = read_journal(out)
+    by_index = {c.index: c for c in plan.cases}
+    for i, r in rows.items():
+        c = by_index.get(i)
+        if c is None or c.key != r["key"]:
+            raise ScenarioError(
+                f"{out} holds results of a different sweep (case {i} differs from this sweep"
+                " file); use a new --out folder or delete the old one"
+            )
+    todo = [c for c in plan.cases if c.index not in rows]
+    if workers is not None and (isinstance(workers, bool) or workers < 1):
+        raise ScenarioError(f"--workers must be >= 1, got {workers}")
+    n_workers = workers or os.cpu_count() or 1
+    computed = 0
+    interrupted = False
+    since_table = 0
+
+    def failed() -> int:
+        return sum(1 for r in rows.values() if r["error"])
+
+    with open(out / JOURNAL, "a", encoding="utf-8") as journal, \
+            open(out / LOG, "a", encoding="utf-8") as log:
+        log.write(f"start: {len(todo)} to run, {len(rows)} already done,"
+                  f" workers={n_workers}, cluster={cluster or 'none'}\n")
+
+        def record(row: dict) -> None:
+            nonlocal computed, since_table
+            elapsed = row.pop("elapsed_s", 0.0)
+            journal.write(json.dumps(row, sort_keys=True) + "\n")
+            journal.flush()
+            os.fsync(journal.fileno())
+            log.write(f"computed case {row['case']} in {elapsed:.3f} s\n")
+            log.flush()
+            rows[row["case"]] = row
+            computed += 1
+            since_table += 1
+            if since_table >= batch:
+                _write_table(plan, rows, out)
+                since_table = 0
+            if progress is not None:
+                progress(len(rows), failed(), len(plan.cases))
+
+        try:
+            if not todo:
+                pass
+            elif cluster is not None:
+                _run_dask(plan, todo, cluster, n_workers if workers else None, record)
+            elif n_workers == 1:
+                for c in todo:
+                    record(run_case(_payload(plan, c)))
+            else:
+                _run_pool(plan, todo, n_workers, record)
+        except KeyboardInterrupt:
+            interrupted = True
+            log.write("interrupted\n")
+        finally:
+            _write_table(plan, rows, out)
+    return SweepOutcome(total=len(plan.cases), done=len(rows), failed=failed(),
+                        computed=computed, table=out / TABLE,
+                        interrupted=interrupted or len(rows) < len(plan.cases))
+
+
+def _run_pool(plan: SweepPlan, todo: list, n_workers: int, record: Callable) -> None:
+    pool = ProcessPoolExecutor(max_workers=n_workers)
+    try:
+        pending = set()
+        queue = iter(todo)
+        for c in queue:  # keep a bounded number of cases in flight
+            pending.add(pool.submit(run_case, _payload(plan, c)))
+            if len(pending) >= 4 * n_workers:
+                break
+        while pending:
+            done, pending = wait(pending, return_when=FIRST_COMPLETED)
+            for f in sorted(done, key=lambda f: f.result()["case"]):
+                record(f.result())
+                nxt = next(queue, None)
+                if nxt is not None:
+                    pending.add(pool.submit(run_case, _payload(plan, nxt)))
+    finally:
+        pool.shutdown(wait=True, cancel_futures=True)
+
+
+def _run_dask(plan: SweepPlan, todo: list, cluster: str, n_workers: int | None,
+              record: Callable) -> None:
+    try:
+        from distributed import Client, LocalCluster, as_completed
+    except ImportError:
+        raise ScenarioError("--cluster needs Dask: pip install 'ridesim[cluster]'") from None
+    local = None
+    if cluster == "local":
+        local = LocalCluster(n_workers=n_workers or os.cpu_count() or 1, threads_per_worker=1,
+                             processes=True, dashboard_address=None)
+        client = Client(local)
+    else:
+        try:
+            client = Client(cluster, timeout=10)
+        except OSError as exc:
+            raise ScenarioError(f"--cluster {cluster}: cannot reach the Dask scheduler ({exc});"
+                                " check the address or use --cluster local") from None
+    try:
+        futures = [client.submit(run_case, _payload(plan, c), key=f"case-{c.index}-{c.key}",
+                                 pure=False) for c in todo]
+        for fut in as_completed(futures):
+            record(fut.result())
+    finally:
+        client.close()
+        if local is not None:
+            local.close()
