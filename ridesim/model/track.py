@@ -296,7 +296,7 @@ class Track:
         if self._nodes is not None:
             xw = self._wrap(x)
             i = np.searchsorted(self._nodes[:, 0], xw, side="right") - 1
-            np.clip(i, 0, len(self._slopes) - 1, out=i)
+            i = np.clip(i, 0, len(self._slopes) - 1)
             return self._slopes[i]
         if self._df is None:
             h = 1e-6 * self._period

@@ -305,7 +305,12 @@ class Wheel:
 
     @classmethod
     def _conic(cls, kind: str, a: float, b: float, ax: np.ndarray) -> Wheel:
-        c0 = (ax[0] / a) ** 2 + (ax[1] / b) ** 2 - 1.0
+        from fractions import Fraction
+
+        # (ax/a)^2 + (ay/b)^2 - 1 in exact arithmetic, rounded once: it cancels badly when
+        # the axle is near the rim, and the least radius is proportional to it.
+        fx, fy, fa, fb = (Fraction(float(q)) for q in (ax[0], ax[1], a, b))
+        c0 = float((fx / fa) ** 2 + (fy / fb) ** 2 - 1)
         if c0 >= -1e-12:
             raise GeometryError(
                 f"axle {tuple(float(q) for q in ax)} m is not strictly inside the {kind}"
@@ -318,8 +323,11 @@ class Wheel:
             c, s = np.cos(phi), np.sin(phi)
             A = c * c * ia2 + s * s * ib2
             B = bx * c + by * s
-            # Positive root of A r^2 + B r + c0 = 0 in the cancellation-free form.
-            return -2.0 * c0 / (B + np.sqrt(B * B - 4.0 * A * c0))
+            # Positive root of A r^2 + B r + c0 = 0 (c0 < 0), in whichever of the two
+            # equivalent forms adds terms of the same sign (no cancellation).
+            sq = np.sqrt(B * B - 4.0 * A * c0)
+            with np.errstate(divide="ignore", invalid="ignore"):
+                return np.where(B >= 0.0, -2.0 * c0 / (B + sq), (sq - B) / (2.0 * A))
 
         params = {"semi_axes_m": (a, b), "axle_m": (float(ax[0]), float(ax[1]))}
         if kind == "circle":
@@ -453,7 +461,7 @@ class Wheel:
             return self._radius_fn(phi)
         t = np.mod(phi - self._vertex_angle0, TWO_PI)
         i = np.searchsorted(self._vertex_rel, t, side="right") - 1
-        np.clip(i, 0, len(self._edge_d) - 1, out=i)
+        i = np.clip(i, 0, len(self._edge_d) - 1)
         return self._edge_d[i] / np.cos(phi - self._edge_alpha[i])
 
     def edge_lines(self) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
@@ -489,19 +497,27 @@ class Wheel:
                                      self._edge_alpha[inside]])
             k = int(np.argmin(cand_r))
             return float(cand_r[k]), float(vr.max()), float(cand_a[k] % TWO_PI)
-        from scipy.optimize import minimize_scalar
+        from scipy.optimize import brentq
 
         phi = np.linspace(0.0, TWO_PI, 4096, endpoint=False)
         r = self.radius(phi)
         h = phi[1] - phi[0]
+        d = 1e-5  # central-difference step [rad]: truncation ~d^2, rounding ~eps/d, both < 1e-10
+
+        def slope(p: float) -> float:
+            return float(self.radius(np.array(p + d)) - self.radius(np.array(p - d))) / (2 * d)
+
         best = []
-        for j, sign in ((int(np.argmin(r)), 1.0), (int(np.argmax(r)), -1.0)):
-            res = minimize_scalar(lambda p, s=sign: s * float(self.radius(np.array(p))),
-                                  bounds=(phi[j] - h, phi[j] + h), method="bounded",
-                                  options={"xatol": 1e-13})
-            best.append((float(sign * res.fun), float(res.x) % TWO_PI))
+        for j in (int(np.argmin(r)), int(np.argmax(r))):
+            a, b = phi[j] - h, phi[j] + h
+            sa, sb = slope(a), slope(b)
+            if sa * sb < 0:  # a smooth extremum: the root of r' locates it to ~1e-11 rad
+                p = brentq(slope, a, b, xtol=1e-14)
+            else:  # a corner (or a flat): the best sample will do
+                p = phi[j]
+            best.append((float(self.radius(np.array(p))), float(p) % TWO_PI))
         (rmin, amin), (rmax, _) = best
-        return rmin, rmax, amin
+        return min(rmin, float(r.min())), max(rmax, float(r.max())), amin
 
     def mass_properties(self, thickness_m: float, density_kg_m3: float) -> MassProperties:
         """Mass, inertia about the axle and centre of mass of the wheel cut from a plate.

@@ -116,7 +116,13 @@ def track_for(wheel: Wheel, *, path: str = "line") -> RollingPair:
                               depth_m=float(wheel.radius(np.array(t - HALF_PI)))))
     cusps.sort(key=lambda c: c.x_m)
     period = rev / k
-    kinks_x = sorted({round(c.x_m % period, 15) for c in cusps})
+    kinks_x: list[float] = []
+    for xc in sorted(c.x_m % period for c in cusps):
+        if xc > period * (1 - 1e-9):
+            xc = 0.0  # a cusp at the period's end is the one at its start
+        if not any(abs(xc - k) <= 1e-9 * period for k in kinks_x):
+            kinks_x.append(xc)
+    kinks_x.sort()
     track = Track("solved", period, f=y_rev, df=slope_rev, kinks=kinks_x,
                   params={"period_m": period, "revolution_length_m": rev},
                   extremes=(-rmax, -rmin))

@@ -124,7 +124,7 @@ def _closing_depth(track: Track, lobes: int) -> float:
     lo, hi = track.shape_range()
     target = TWO_PI / lobes
     span = max(hi - lo, track.period / TWO_PI)
-    d_hi = hi + lobes * track.period / TWO_PI  # there I(D) <= P/(D - hi) = 2π/n
+    d_hi = hi + 1.01 * lobes * track.period / TWO_PI  # there I(D) <= P/(D - hi) < 2π/n
     root = None
     for level in range(0, 7):
         rule = _ClosureRule(track, level)
