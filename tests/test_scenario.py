@@ -612,6 +612,7 @@ def test_to_dict_is_plain_and_omits_unset_keys():
     assert d["wheel"] == {
         "shape": "polygon", "sides": 6, "apothem_m": 0.12, "axle_m": [0.0, 0.0],
         "thickness_m": 0.02, "density_kg_m3": 700.0, "corner_radius_m": 0.0,
+        "scale": 1.0, "axle_error_m": [0.0, 0.0],
     }
     assert "track" not in d
     assert d["vehicle"]["seat_m"] == [0.0, 0.3]
@@ -680,7 +681,7 @@ def test_replace_invalid_value_names_the_key():
         sc.replace("surface.frction", 0.5)
     with pytest.raises(ScenarioError, match=r"^unknown key surfce; did you mean surface\?"):
         sc.replace("surfce.friction", 0.5)
-    with pytest.raises(ScenarioError, match=r"^give either \[wheel\] or \[track\]"):
+    with pytest.raises(ScenarioError, match=r"^track\.lobes cannot be given beside \[wheel\]"):
         sc.replace("track.lobes", 2)
     with pytest.raises(ScenarioError, match=r'^wheel\.sides is not used by shape "circle"'):
         sc.replace("wheel.shape", "circle")
@@ -753,3 +754,19 @@ def test_material_only_wheel_beside_track():
     assert sc.wheel.shape is None and sc.wheel.thickness_m == 0.01
     with pytest.raises(ScenarioError, match=r"wheel\.sides cannot be given beside \[track\]"):
         scenario_from_dict({**base, "wheel": {"sides": 4}})
+
+
+def test_as_built_errors_beside_the_other_section():
+    # A shape-less [track] beside [wheel] holds only the as-built track errors, and the
+    # wheel's own as-built keys (scale, axle_error_m) sit in [wheel].
+    sc = scenario_from_dict({**HEX, "track": {"height_error_m": 0.001, "error_seed": 4}})
+    assert sc.track.shape is None and sc.track.height_error_m == 0.001
+    assert sc.track.error_seed == 4 and sc.track.joint_step_m == 0.0
+    again = scenario_from_dict(sc.to_dict())
+    assert again == sc
+    s2 = scenario_from_dict(HEX).replace("wheel.scale", 1.002)
+    assert s2.wheel.scale == 1.002 and s2.track is None
+    with pytest.raises(ScenarioError, match=r"^track\.height_error_m must be >= 0"):
+        scenario_from_dict({**HEX, "track": {"height_error_m": -1.0}})
+    with pytest.raises(ScenarioError, match=r"^wheel\.scale must be > 0"):
+        scenario_from_dict(HEX).replace("wheel.scale", 0.0)

@@ -81,8 +81,11 @@ _WHEEL_SHAPE_KEYS: dict[str, tuple[str, ...]] = {
     "polar": ("radius_formula",),
     "outline": ("points_m", "file"),
 }
+_WHEEL_BUILD = ("scale", "axle_error_m")
 _WHEEL_COMMON = (
     "shape",
+    "scale",
+    "axle_error_m",
     "axle_m",
     "thickness_m",
     "density_kg_m3",
@@ -96,7 +99,8 @@ _TRACK_SHAPE_KEYS: dict[str, tuple[str, ...]] = {
     "formula": ("formula", "period_m"),
     "points": ("points_m", "file", "period_m"),
 }
-_TRACK_COMMON = ("shape", "lobes", "depth_m")
+_TRACK_BUILD = ("height_error_m", "error_seed", "joint_step_m", "section_length_m")
+_TRACK_COMMON = ("shape", "lobes", "depth_m") + _TRACK_BUILD
 _SECTIONS = ("wheel", "track", "vehicle", "drive", "surface", "run")
 _TOP_KEYS = ("name", "description") + _SECTIONS
 
@@ -172,6 +176,12 @@ class WheelSpec:
     corner_radius_m : float
         Radius in m to which sharp corners are rounded in the simulation
         (0: sharp).
+    scale : float
+        As-built size over nominal size (dimensionless, e.g. 1.002 for a wheel
+        cut 0.2 % large); the simulation rolls the scaled wheel on the nominal
+        track.
+    axle_error_m : (float, float)
+        As-built axle hole position minus the nominal one [x, y] in m.
     """
 
     shape: str | None
@@ -191,6 +201,8 @@ class WheelSpec:
     mass_kg: float | None = None
     inertia_kg_m2: float | None = None
     corner_radius_m: float = 0.0
+    scale: float = 1.0
+    axle_error_m: Point = (0.0, 0.0)
 
 
 @dataclass(frozen=True)
@@ -201,8 +213,9 @@ class TrackSpec:
 
     Attributes
     ----------
-    shape : str
-        One of :data:`TRACK_SHAPES`.
+    shape : str or None
+        One of :data:`TRACK_SHAPES`; None for a shape-less section beside
+        ``[wheel]`` that holds only the as-built errors.
     amplitude_m, wavelength_m : float or None
         Wave: amplitude and wavelength in m.
     rise_m, run_m : float or None
@@ -223,9 +236,19 @@ class TrackSpec:
     depth_m : float or None
         Depth in m of the axle path below which the wheel is closed, given
         instead of ``lobes``.
+    height_error_m : float
+        As-built track: standard deviation in m of a random height error at
+        each track node of the simulation (seeded by ``error_seed``).
+    error_seed : int
+        Seed of the height error draws (same seed, same track).
+    joint_step_m : float
+        As-built track: height step in m at every joint between sections
+        (alternately up and down).
+    section_length_m : float
+        Length in m of the track sections between joints.
     """
 
-    shape: str
+    shape: str | None
     amplitude_m: float | None = None
     wavelength_m: float | None = None
     rise_m: float | None = None
@@ -236,6 +259,10 @@ class TrackSpec:
     file: str | None = None
     lobes: int | None = 1
     depth_m: float | None = None
+    height_error_m: float = 0.0
+    error_seed: int = 0
+    joint_step_m: float = 0.0
+    section_length_m: float = 1.0
 
 
 @dataclass(frozen=True)
@@ -654,10 +681,15 @@ def scenario_from_dict(
         has_wheel and has_track and isinstance(data["wheel"], Mapping)
         and "shape" not in data["wheel"]
     )
-    if has_wheel and has_track and not material_only:
+    build_only = (
+        has_wheel and has_track and isinstance(data["track"], Mapping)
+        and "shape" not in data["track"] and not material_only
+    )
+    if has_wheel and has_track and not (material_only or build_only):
         raise ScenarioError(
             "give either [wheel] or [track], not both (the solver derives the other);"
-            " beside [track], [wheel] may only hold material keys such as thickness_m"
+            " beside [track], [wheel] may only hold material keys such as thickness_m, and"
+            " beside [wheel], [track] only as-built errors such as height_error_m"
         )
     if not has_wheel and not has_track:
         raise ScenarioError("scenario has neither [wheel] nor [track]; add one")
@@ -666,7 +698,10 @@ def scenario_from_dict(
         wheel = _parse_wheel_material(data["wheel"])
     else:
         wheel = _parse_wheel(data["wheel"], base) if has_wheel else None
-    track = _parse_track(data["track"], base) if has_track else None
+    if build_only:
+        track = _parse_track_build(data["track"])
+    else:
+        track = _parse_track(data["track"], base) if has_track else None
     return Scenario(
         name=name,
         description=description,
@@ -759,10 +794,13 @@ def _parse_wheel(raw: Any, base: Path) -> WheelSpec:
     values["mass_kg"] = t.real("mass_kg", None, gt=0)
     values["inertia_kg_m2"] = t.real("inertia_kg_m2", None, gt=0)
     values["corner_radius_m"] = t.real("corner_radius_m", 0.0, ge=0)
+    values["scale"] = t.real("scale", 1.0, gt=0)
+    values["axle_error_m"] = t.pair("axle_error_m", (0.0, 0.0))
     return WheelSpec(**values)
 
 
-_WHEEL_MATERIAL = ("thickness_m", "density_kg_m3", "mass_kg", "inertia_kg_m2", "corner_radius_m")
+_WHEEL_MATERIAL = ("thickness_m", "density_kg_m3", "mass_kg", "inertia_kg_m2", "corner_radius_m",
+                   "scale", "axle_error_m")
 
 
 def _parse_wheel_material(raw: Any) -> WheelSpec:
@@ -782,6 +820,8 @@ def _parse_wheel_material(raw: Any) -> WheelSpec:
         mass_kg=t.real("mass_kg", None, gt=0),
         inertia_kg_m2=t.real("inertia_kg_m2", None, gt=0),
         corner_radius_m=t.real("corner_radius_m", 0.0, ge=0),
+        scale=t.real("scale", 1.0, gt=0),
+        axle_error_m=t.pair("axle_error_m", (0.0, 0.0)),
     )
 
 
@@ -837,6 +877,7 @@ def _parse_track(raw: Any, base: Path) -> TrackSpec:
                 )
         values["period_m"] = period
 
+    values.update(_track_build_values(t))
     if t.has("lobes") and t.has("depth_m"):
         raise ScenarioError("track: give at most one of lobes, depth_m (got lobes and depth_m)")
     if t.has("depth_m"):
@@ -845,6 +886,28 @@ def _parse_track(raw: Any, base: Path) -> TrackSpec:
     else:
         values["lobes"] = t.integer("lobes", 1, ge=1)
     return TrackSpec(**values)
+
+
+def _track_build_values(t: _Table) -> dict[str, Any]:
+    """As-built track errors (manufacturing tolerance), shared by shaped and shape-less tracks."""
+    return {
+        "height_error_m": t.real("height_error_m", 0.0, ge=0),
+        "error_seed": t.integer("error_seed", 0, ge=0),
+        "joint_step_m": t.real("joint_step_m", 0.0),
+        "section_length_m": t.real("section_length_m", 1.0, gt=0),
+    }
+
+
+def _parse_track_build(raw: Any) -> TrackSpec:
+    """Validate a shape-less ``[track]`` beside ``[wheel]``: as-built errors only."""
+    t = _Table("track", raw)
+    for key in t.keys():
+        if key not in _TRACK_BUILD:
+            raise ScenarioError(
+                f"track.{key} cannot be given beside [wheel] (the solver derives the track's"
+                f" shape); only {', '.join(_TRACK_BUILD)} are allowed"
+            )
+    return TrackSpec(shape=None, lobes=None, **_track_build_values(t))
 
 
 def _point_source(t: _Table, shape: str, values: dict[str, Any], base: Path) -> None:
