@@ -162,11 +162,20 @@ def _cells_for(
     breaks: Sequence[float],
     tol: float,
     initial_cells: int,
+    initial_edges: np.ndarray | None = None,
 ) -> tuple[np.ndarray, np.ndarray]:
-    """Adaptive cells and nodal values of ``g``: returns edges (M+1) and values (M, 16)."""
+    """Adaptive cells and nodal values of ``g``: returns edges (M+1) and values (M, 16).
+
+    Cells start from ``initial_edges`` when given (every break must be one of them), else
+    from ``initial_cells`` spread over the pieces between ``breaks``; they are only ever
+    bisected, so no cell straddles a break.
+    """
     breaks = np.asarray(breaks, dtype=float)
     pending = []
-    for a, b in zip(breaks[:-1], breaks[1:], strict=True):
+    if initial_edges is not None:
+        e = np.asarray(initial_edges, dtype=float)
+        pending = [(lo, hi, np.inf) for lo, hi in zip(e[:-1], e[1:], strict=True) if hi > lo]
+    for a, b in zip(breaks[:-1], breaks[1:], strict=True) if initial_edges is None else ():
         if b <= a:
             continue
         k = max(1, initial_cells * (b - a) / (breaks[-1] - breaks[0]))
@@ -313,21 +322,29 @@ def build_map(
     return MonotoneMap(_table_from_values(edges, values, G0), G0)
 
 
-def _inverse_table(fwd: PolyTable, G0: float) -> PolyTable:
-    """Tabulate ``s(G)`` on the images of the forward cells (Newton at Chebyshev nodes)."""
+def _inverse_table(fwd: PolyTable, G0: float, tol: float = 1e-13) -> PolyTable:
+    """Tabulate ``s(G)`` with its own adaptive cells (Newton on the forward table at nodes).
+
+    The inverse's integrand ``1/g(s(G))`` is refined by the same Chebyshev tail test as the
+    forward table, starting from the images of the forward cells (so corners stay on edges).
+    """
     edges = fwd.edges
     G_edges = fwd.G(edges)
     G_edges[0], G_edges[-1] = G0, fwd.G(np.array([edges[-1]]))[0]
-    inv_edges = np.maximum.accumulate(G_edges)
-    mid, half = 0.5 * (inv_edges[1:] + inv_edges[:-1]), 0.5 * np.diff(inv_edges)
-    targets = mid[:, None] + half[:, None] * _T[None, :]
-    frac = (targets - inv_edges[:-1, None]) / np.where(half > 0, 2 * half, 1.0)[:, None]
-    guess = edges[:-1, None] + frac * np.diff(edges)[:, None]
-    s_nodes = _newton_inverse(fwd, targets.ravel(), guess.ravel()).reshape(targets.shape)
-    # The inverse's derivative 1/g, interpolated from its own nodal values.
-    inv = _table_from_values(inv_edges, 1.0 / fwd.g(s_nodes), float(edges[0]))
-    # Anchor each inverse cell exactly at its forward edge (removes drift from the cumsum).
+    G_edges = np.maximum.accumulate(G_edges)
+
+    def s_of(Gq: np.ndarray) -> np.ndarray:
+        flat = np.ravel(Gq)
+        guess = np.interp(flat, G_edges, edges)
+        return _newton_inverse(fwd, flat, guess).reshape(np.shape(Gq))
+
+    def inv_g(Gq: np.ndarray) -> np.ndarray:
+        return 1.0 / fwd.g(s_of(Gq))
+
+    inv_edges, values = _cells_for(inv_g, [G_edges[0], G_edges[-1]], tol, 1, initial_edges=G_edges)
+    inv = _table_from_values(inv_edges, values, float(edges[0]))
+    # Anchor each inverse cell exactly at s of its left edge (removes drift from the cumsum).
     k = np.arange(_NODES + 1)
     at_minus1 = inv.G_coef[:, 1:] @ ((-1.0) ** k[1:])
-    inv.G_coef[:, 0] = edges[:-1] - at_minus1
+    inv.G_coef[:, 0] = s_of(inv_edges[:-1]) - at_minus1
     return inv
