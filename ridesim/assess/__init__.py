@@ -1,1 +1,49 @@
-"""ridesim.assess layer."""
+"""Assessment layer: will a solved pair roll, where does it slip, and what does it need.
+
+* :mod:`ridesim.assess.clearance`: the whole outline against the track over a full roll,
+  and corner seating at cusps.
+* :mod:`ridesim.assess.friction`: the planar force balance on one wheel and the friction
+  the surface must supply.
+* :mod:`ridesim.assess.analytic`: per-wheel loads, shaft torque, speed and power along a
+  revolution, speed ripple of other drives, lift-off speed.
+* :mod:`ridesim.assess.verdict`: one verdict for a scenario (``check_scenario``).
+"""
+
+from ridesim.assess.analytic import AnalyticResult, analyze_cycle
+from ridesim.assess.clearance import (
+    CONTACT_EXCLUSION_RAD,
+    INTERFERENCE_TOL_REL,
+    ClearanceResult,
+    CuspSeat,
+    clearance,
+    cusp_seating,
+)
+from ridesim.assess.friction import (
+    G_STANDARD_M_S2,
+    ContactLoads,
+    FrictionResult,
+    contact_loads,
+    cycle_nodes,
+    friction_demand,
+)
+from ridesim.assess.verdict import SAFETY_CAUTIONS, CheckResult, check_scenario
+
+__all__ = [
+    "AnalyticResult",
+    "CONTACT_EXCLUSION_RAD",
+    "CheckResult",
+    "ClearanceResult",
+    "ContactLoads",
+    "CuspSeat",
+    "FrictionResult",
+    "G_STANDARD_M_S2",
+    "INTERFERENCE_TOL_REL",
+    "SAFETY_CAUTIONS",
+    "analyze_cycle",
+    "check_scenario",
+    "clearance",
+    "contact_loads",
+    "cusp_seating",
+    "cycle_nodes",
+    "friction_demand",
+]

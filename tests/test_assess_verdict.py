@@ -1,0 +1,220 @@
+"""Tests of the scenario verdict (ridesim.assess.verdict) on the demo scenarios and a triangle.
+
+Sources: L. Hall & S. Wagon, "Roads and Wheels", Mathematics Magazine 65(5), 1992 (n-gon
+roads, the triangle's interference); the polar moment of a regular n-gon plate of
+circumradius R about its centre, I = m R^2 (1 + 2 cos^2(pi/n)) / 6 ([memory]; for the
+square it gives m s^2/6 with side s, the textbook plate value); the Kepler relations of
+the ellipse (r = a(1 - e cos E), dtheta/dE = b/r; e.g. Murray & Dermott, "Solar System
+Dynamics", 1999 [memory]).
+"""
+
+import json
+import math
+from pathlib import Path
+
+import numpy as np
+import pytest
+
+from ridesim.assess.verdict import SAFETY_CAUTIONS, CheckResult, check_scenario
+from ridesim.errors import InputError
+from ridesim.io.scenario import load_scenario, scenario_from_dict
+
+SCENARIOS = Path(__file__).resolve().parent.parent / "scenarios"
+G = 9.80665
+
+
+def load(name):
+    return load_scenario(SCENARIOS / f"{name}.toml")
+
+
+def assert_plain(value, path="$"):
+    """Only JSON types (exactly: numpy scalars are not allowed)."""
+    t = type(value)
+    if t is dict:
+        for k, v in value.items():
+            assert type(k) is str, path
+            assert_plain(v, f"{path}.{k}")
+    elif t is list:
+        for i, v in enumerate(value):
+            assert_plain(v, f"{path}[{i}]")
+    else:
+        assert t in (bool, int, float, str, type(None)), f"{path}: {t.__name__}"
+        if t is float:
+            assert math.isfinite(value), path
+
+
+def contract(d):
+    assert type(d["rollable"]) is bool
+    assert all(type(r) is str for r in d["reasons"])
+    assert {"min_m", "at_x_m"} <= set(d["clearance"])
+    assert {"required_peak", "at_x_m", "available", "slips"} <= set(d["friction"])
+    assert {"peak_Nm", "rms_Nm"} <= set(d["torque"])
+    assert "lift_off_speed_m_s" in d
+    assert d["cautions"] and all(type(c) is str for c in d["cautions"])
+    assert_plain(d)
+    json.dumps(d, allow_nan=False)
+    if d["rollable"]:
+        assert d["reasons"] == []
+    else:
+        assert d["reasons"]
+
+
+@pytest.fixture(scope="module")
+def demos():
+    return {n: check_scenario(load(n)) for n in
+            ("hexagon_trolley", "ellipse_pull_toy", "wave_track_sculpture")}
+
+
+def test_demo_contract(demos):
+    for res in demos.values():
+        assert isinstance(res, CheckResult)
+        contract(res.to_dict())
+        assert res.to_text().strip()
+
+
+def test_hexagon_trolley(demos):
+    """Regular hexagon, apothem a = 0.12 m, on its catenary road, two axles in phase.
+
+    Friction: tan(pi/6) at the cusps (Hall & Wagon 1992). Torque: both wheels driven, so each
+    shaft only spins its own wheel up and down, T = I alpha, peak I v^2 sin(2 pi/n)/(2 a^2)
+    and RMS I v^2/a^2 sqrt(sin^3(pi/n)/(3 asinh(tan(pi/n)))) (derived in
+    test_assess_analytic); the plate is 18 mm plywood at 600 kg/m^3 with area
+    n a^2 tan(pi/n).
+    """
+    d = demos["hexagon_trolley"].to_dict()
+    n, a, v = 6, 0.12, 0.4
+    assert d["rollable"] is True
+    assert d["clearance"]["min_m"] >= -1e-9 * a / math.cos(math.pi / n)
+    np.testing.assert_allclose(d["friction"]["required_peak"], math.tan(math.pi / n), rtol=1e-8)
+    assert d["friction"]["available"] == 0.7 and d["friction"]["slips"] is False
+    m = 600.0 * 0.018 * n * a * a * math.tan(math.pi / n)
+    R = a / math.cos(math.pi / n)
+    inertia = m * R * R * (1 + 2 * math.cos(math.pi / n) ** 2) / 6
+    scale = inertia * v * v / (a * a)
+    np.testing.assert_allclose(d["torque"]["peak_Nm"], 0.5 * math.sin(2 * math.pi / n) * scale,
+                               rtol=1e-8)
+    uc = math.asinh(math.tan(math.pi / n))
+    np.testing.assert_allclose(d["torque"]["rms_Nm"],
+                               math.sqrt(math.sin(math.pi / n) ** 3 / (3 * uc)) * scale, rtol=1e-9)
+    assert d["lift_off_speed_m_s"] is None  # centre of mass on the axle, level axle
+    np.testing.assert_allclose(d["shaft_speed_max_rad_s"], v / a, rtol=1e-12)
+
+
+def test_ellipse_pull_toy(demos):
+    """Ellipse a = 0.05, b = 0.04 m about its focus (c = 0.03 m): road y = -a + c cos(x/b).
+
+    Its steepest slope is c/b = 0.75, above the toy's surface friction of 0.6, so it slips
+    (the wheel's own off-axle mass adds a little more demand). Lift-off: the centre of mass
+    (the ellipse centre) is c above the axle when the contact is at the least radius a - c
+    (slope 0), so the wheel unloads when m c omega^2 = W + m g, omega = v/(a - c).
+    """
+    d = demos["ellipse_pull_toy"].to_dict()
+    a, b, c = 0.05, 0.04, 0.03
+    assert d["rollable"] is False
+    assert d["friction"]["slips"] is True
+    assert d["friction"]["required_peak"] >= c / b * (1 - 1e-9)
+    assert any("friction" in r for r in d["reasons"])
+    assert d["clearance"]["interferes"] is False
+    m = 700.0 * 0.012 * math.pi * a * b
+    v_lift = (a - c) * math.sqrt((0.4 * G + m * G) / (m * c))
+    # least over the cycle nodes; flat to second order at the minimum: 1e-6
+    np.testing.assert_allclose(d["lift_off_speed_m_s"], v_lift, rtol=1e-6)
+
+
+def test_wave_track_sculpture(demos):
+    """Track-first wave f = A cos(2 pi x/lambda): friction peak 2 pi A/lambda (the steepest slope).
+
+    The three-lobed wheel is symmetric, so its centre of mass is on the axle: the contact
+    force stays vertical and nothing lifts it off.
+    """
+    d = demos["wave_track_sculpture"].to_dict()
+    A, lam = 0.02, 0.3
+    assert d["rollable"] is True
+    # even grid of 2048 nodes over 3 wavelengths: the peak of |sin| is missed by < 1e-5
+    np.testing.assert_allclose(d["friction"]["required_peak"], 2 * math.pi * A / lam, rtol=2e-5)
+    assert d["lift_off_speed_m_s"] is None
+    assert d["cusps"]["count"] == 0
+
+
+def triangle_dict(**extra):
+    data = {"wheel": {"shape": "polygon", "sides": 3, "apothem_m": 0.2},
+            "vehicle": {"body_mass_kg": 5.0}, "surface": {"friction": 0.8}}
+    data.update(extra)
+    return data
+
+
+def test_triangle_scenario_does_not_roll():
+    """Hall & Wagon (1992): the triangle interferes with its road; its cusps need tan 60 deg."""
+    res = check_scenario(scenario_from_dict(triangle_dict()))
+    d = res.to_dict()
+    contract(d)
+    assert d["rollable"] is False
+    assert d["clearance"]["interferes"] is True and d["clearance"]["min_m"] < 0
+    np.testing.assert_allclose(d["friction"]["required_peak"], math.tan(math.pi / 3), rtol=1e-8)
+    assert d["friction"]["slips"] is True
+    assert len(d["reasons"]) == 2
+    assert "cuts" in d["reasons"][0] and "more sides" in d["reasons"][0]
+    # the cusps open by pi/3, a right angle is needed: approach margin pi/3 - pi/2
+    np.testing.assert_allclose(d["cusps"]["approach_margin_min_rad"], -math.pi / 6, atol=1e-9)
+
+
+def hexagon_dict(**vehicle):
+    return {"wheel": {"shape": "polygon", "sides": 6, "apothem_m": 0.12},
+            "vehicle": {"body_mass_kg": 8.0, "axles": 2, **vehicle},
+            "surface": {"friction": 0.9}}
+
+
+def test_coupled_axles_need_whole_periods():
+    """Wheels on one chain turn alike, so r(x + wheelbase) = r(x): whole track periods only."""
+    period = 2 * 0.12 * math.asinh(math.tan(math.pi / 6))  # Hall & Wagon (1992)
+    ok = check_scenario(scenario_from_dict(hexagon_dict(coupled=True, wheelbase_m=3 * period)))
+    bad = check_scenario(scenario_from_dict(hexagon_dict(coupled=True, wheelbase_m=2.5 * period)))
+    assert ok.rollable is True
+    assert bad.rollable is False and any("coupled" in r for r in bad.reasons)
+    contract(ok.to_dict())
+    assert "chain_peak_Nm" in ok.to_dict()["torque"]
+
+
+def test_lift_off_blocks_a_fast_eccentric_wheel():
+    """Circle about an axle e below its centre: unloads at v = (R - e) sqrt((W + m g)/(m e))."""
+    R, e, body = 0.1, 0.03, 0.5
+    m = 700.0 * 0.02 * math.pi * R * R
+    v_lift = (R - e) * math.sqrt((body * G + m * G) / (m * e))
+    base = {"wheel": {"shape": "circle", "radius_m": R, "axle_m": [0.0, -e]},
+            "vehicle": {"body_mass_kg": body}, "surface": {"friction": 0.9}}
+    slow = check_scenario(scenario_from_dict({**base, "drive": {"speed_m_s": 0.9 * v_lift}}))
+    fast = check_scenario(scenario_from_dict({**base, "drive": {"speed_m_s": 1.1 * v_lift}}))
+    assert not any("leaves the track" in r for r in slow.reasons)
+    assert fast.rollable is False and any("leaves the track" in r for r in fast.reasons)
+    np.testing.assert_allclose(fast.to_dict()["lift_off_speed_m_s"], v_lift, rtol=1e-6)
+    contract(fast.to_dict())
+
+
+def test_acceleration_adds_friction_demand():
+    """A driven wheel pushing mass M on a flat road: mu = (M + m) a / ((M + m) g) = a / g (Newton)."""
+    data = {"wheel": {"shape": "circle", "radius_m": 0.1}, "vehicle": {"body_mass_kg": 10.0},
+            "drive": {"speed_m_s": 0.5, "accel_m_s2": 9.0}, "surface": {"friction": 0.8}}
+    d = check_scenario(scenario_from_dict(data)).to_dict()
+    # solved flat track: slope noise < 1e-10
+    np.testing.assert_allclose(d["friction"]["required_peak"], 9.0 / G, rtol=1e-8)
+    assert d["friction"]["slips"] is True and d["rollable"] is False
+    assert "peak_accelerating_Nm" in d["torque"]
+
+
+def test_cautions_name_the_standards():
+    text = " ".join(SAFETY_CAUTIONS)
+    for std in ("ASTM F2291", "EN 13814", "ISO 12100", "ISO 13857"):
+        assert std in text
+
+
+def test_unclosed_track_is_not_rollable():
+    """A track-first solve at a depth that does not close gives no wheel at all."""
+    data = {"track": {"shape": "wave", "amplitude_m": 0.02, "wavelength_m": 0.3, "depth_m": 0.2}}
+    d = check_scenario(scenario_from_dict(data)).to_dict()
+    contract(d)
+    assert d["rollable"] is False and "close" in d["reasons"][0]
+
+
+def test_bad_input():
+    with pytest.raises(InputError, match="Scenario"):
+        check_scenario({"wheel": {}})
