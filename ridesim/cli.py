@@ -89,6 +89,13 @@ def _cmd_simulate(sc, args) -> tuple[dict, str]:
     return res.to_dict(), _text_of(res)
 
 
+def _cmd_size_motor(sc, args) -> tuple[dict, str]:
+    from ridesim.metrics.motor import size_motor
+
+    res = size_motor(sc)
+    return res.to_dict(), res.to_text()
+
+
 def _text_of(res) -> str:
     """A result's own text, or a plain listing of its figures."""
     if hasattr(res, "to_text"):
@@ -173,6 +180,7 @@ _COMMANDS: dict[str, tuple[Callable, str]] = {
     "solve": (_cmd_solve, "solve the track for the wheel (or the wheel for the track)"),
     "check": (_cmd_check, "will it roll? clearance, friction demand and shaft torque"),
     "simulate": (_cmd_simulate, "rigid-body simulation: bounce, slip onset, torque"),
+    "size-motor": (_cmd_size_motor, "motor torque, speed and power over a duty cycle"),
 }
 
 

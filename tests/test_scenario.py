@@ -91,7 +91,7 @@ def test_ellipse_pull_toy_values():
     assert w.thickness_m == 0.012 and w.density_kg_m3 == 700.0
     assert sc.vehicle.axles == 1 and sc.vehicle.body_mass_kg == 0.4
     assert sc.drive.speed_m_s == 0.3
-    assert sc.surface.friction == 0.6
+    assert sc.surface.friction == 0.9
 
 
 def test_wave_track_sculpture_values():
@@ -617,7 +617,8 @@ def test_to_dict_is_plain_and_omits_unset_keys():
     assert "track" not in d
     assert d["vehicle"]["seat_m"] == [0.0, 0.3]
     assert "driven_axles" not in d["vehicle"]
-    assert set(d) == {"name", "description", "wheel", "vehicle", "drive", "surface", "run"}
+    assert set(d) == {"name", "description", "wheel", "vehicle", "drive", "surface", "run",
+                      "duty", "motor"}
 
 
 def test_to_dict_round_trip_for_many_shapes(tmp_path):

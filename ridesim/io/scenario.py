@@ -47,6 +47,8 @@ __all__ = [
     "DriveSpec",
     "SurfaceSpec",
     "RunSpec",
+    "DutySpec",
+    "MotorSpec",
     "Scenario",
     "load_scenario",
     "scenario_from_dict",
@@ -101,7 +103,7 @@ _TRACK_SHAPE_KEYS: dict[str, tuple[str, ...]] = {
 }
 _TRACK_BUILD = ("height_error_m", "error_seed", "joint_step_m", "section_length_m")
 _TRACK_COMMON = ("shape", "lobes", "depth_m") + _TRACK_BUILD
-_SECTIONS = ("wheel", "track", "vehicle", "drive", "surface", "run")
+_SECTIONS = ("wheel", "track", "vehicle", "drive", "surface", "run", "duty", "motor")
 _TOP_KEYS = ("name", "description") + _SECTIONS
 
 # Groups of keys of which at most one may be given. ``Scenario.replace`` drops
@@ -383,6 +385,62 @@ class RunSpec:
 
 
 @dataclass(frozen=True)
+class DutySpec:
+    """Validated ``[duty]`` section: the duty cycle used to size the motor.
+
+    The cycle starts from rest, accelerates at ``drive.accel_m_s2`` to
+    ``drive.speed_m_s``, cruises, then brakes to rest.
+
+    Attributes
+    ----------
+    cruise_s : float
+        Time at the target speed in s.
+    brake_m_s2 : float or None
+        Braking deceleration in m/s^2 (> 0); None: the same as the acceleration.
+    grade_rad : float
+        Grade of the whole run in rad (positive uphill), added as a slope force.
+    rest_s : float
+        Standstill at the end of the cycle in s (counts in the r.m.s. torque).
+    """
+
+    cruise_s: float = 10.0
+    brake_m_s2: float | None = None
+    grade_rad: float = 0.0
+    rest_s: float = 0.0
+
+
+@dataclass(frozen=True)
+class MotorSpec:
+    """Validated ``[motor]`` section: an optional motor and gear ratios to check.
+
+    Attributes
+    ----------
+    gear_ratios : tuple of float
+        Candidate reductions (motor turns per wheel turn, > 0); empty: none given.
+    rated_torque_Nm : float or None
+        Motor's continuous torque rating in N*m (compared with the r.m.s. torque).
+    peak_torque_Nm : float or None
+        Motor's intermittent (peak) torque rating in N*m; None: 2 x rated.
+    rated_speed_rad_s : float or None
+        Motor's rated speed in rad/s (compared with the top shaft speed).
+    efficiency : float
+        Gear efficiency (0, 1].
+    safety_factor : float
+        Margin the ratings must keep over the duty (>= 1).
+    inertia_kg_m2 : float
+        Motor rotor inertia in kg*m^2 (reflected to the wheel as i^2 J).
+    """
+
+    gear_ratios: tuple[float, ...] = ()
+    rated_torque_Nm: float | None = None
+    peak_torque_Nm: float | None = None
+    rated_speed_rad_s: float | None = None
+    efficiency: float = 0.85
+    safety_factor: float = 1.5
+    inertia_kg_m2: float = 0.0
+
+
+@dataclass(frozen=True)
 class Scenario:
     """A validated scenario: one build and how to run it.
 
@@ -424,6 +482,8 @@ class Scenario:
     drive: DriveSpec
     surface: SurfaceSpec
     run: RunSpec
+    duty: DutySpec = DutySpec()
+    motor: MotorSpec = MotorSpec()
     source: str = field(default="<dict>", compare=False)
     base_dir: str = field(default=".", compare=False)
 
@@ -451,6 +511,8 @@ class Scenario:
         out["drive"] = _spec_dict(self.drive)
         out["surface"] = _spec_dict(self.surface)
         out["run"] = _spec_dict(self.run)
+        out["duty"] = _spec_dict(self.duty)
+        out["motor"] = _spec_dict(self.motor)
         return out
 
     def replace(self, key: str, value: Any) -> Scenario:
@@ -586,7 +648,8 @@ def scenario_keys() -> frozenset[str]:
     keys |= {f"wheel.{k}" for k in set(_WHEEL_COMMON).union(*_WHEEL_SHAPE_KEYS.values())}
     keys |= {f"track.{k}" for k in set(_TRACK_COMMON).union(*_TRACK_SHAPE_KEYS.values())}
     for section, spec in (("vehicle", VehicleSpec), ("drive", DriveSpec),
-                          ("surface", SurfaceSpec), ("run", RunSpec)):
+                          ("surface", SurfaceSpec), ("run", RunSpec), ("duty", DutySpec),
+                          ("motor", MotorSpec)):
         keys |= {f"{section}.{f.name}" for f in fields(spec)}
     return frozenset(keys)
 
@@ -711,6 +774,8 @@ def scenario_from_dict(
         drive=_parse_drive(data.get("drive", {})),
         surface=_parse_surface(data.get("surface", {})),
         run=_parse_run(data.get("run", {})),
+        duty=_parse_duty(data.get("duty", {})),
+        motor=_parse_motor(data.get("motor", {})),
         source=source,
         base_dir=str(base),
     )
@@ -991,6 +1056,42 @@ def _parse_surface(raw: Any) -> SurfaceSpec:
     return SurfaceSpec(
         friction=t.real("friction", 0.8, gt=0),
         rolling_resistance=t.real("rolling_resistance", 0.0, ge=0),
+    )
+
+
+def _parse_duty(raw: Any) -> DutySpec:
+    """Validate the ``[duty]`` section."""
+    t = _Table("duty", raw)
+    t.only([f.name for f in fields(DutySpec)])
+    return DutySpec(
+        cruise_s=t.real("cruise_s", 10.0, ge=0),
+        brake_m_s2=t.real("brake_m_s2", None, gt=0),
+        grade_rad=t.real("grade_rad", 0.0, gt=-0.5, lt=0.5),
+        rest_s=t.real("rest_s", 0.0, ge=0),
+    )
+
+
+def _parse_motor(raw: Any) -> MotorSpec:
+    """Validate the ``[motor]`` section."""
+    t = _Table("motor", raw)
+    t.only([f.name for f in fields(MotorSpec)])
+    ratios: tuple[float, ...] = ()
+    if t.has("gear_ratios"):
+        items = _as_list(t.key("gear_ratios"), t.raw("gear_ratios"), "a list of gear ratios")
+        vals = []
+        for i, v in enumerate(items):
+            x = _as_float(f"motor.gear_ratios[{i}]", v)
+            _check_range(f"motor.gear_ratios[{i}]", x, gt=0)
+            vals.append(x)
+        ratios = tuple(vals)
+    return MotorSpec(
+        gear_ratios=ratios,
+        rated_torque_Nm=t.real("rated_torque_Nm", None, gt=0),
+        peak_torque_Nm=t.real("peak_torque_Nm", None, gt=0),
+        rated_speed_rad_s=t.real("rated_speed_rad_s", None, gt=0),
+        efficiency=t.real("efficiency", 0.85, gt=0, le=1),
+        safety_factor=t.real("safety_factor", 1.5, ge=1),
+        inertia_kg_m2=t.real("inertia_kg_m2", 0.0, ge=0),
     )
 
 

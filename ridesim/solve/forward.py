@@ -69,6 +69,7 @@ def track_for(wheel: Wheel, *, path: str = "line") -> RollingPair:
     k = wheel.symmetry
     if wheel.is_round:
         k = 1
+    round_wheel = wheel.is_round
     if wheel.is_polygon:
         rmap = CatenaryMap(wheel, theta0)
         rev = rmap.x_span
@@ -103,11 +104,20 @@ def track_for(wheel: Wheel, *, path: str = "line") -> RollingPair:
         rmap = TableMap(table, s_is_x=False, x_lo=0.0, theta_lo=theta0)
         rev = rmap.x_span
 
-        def y_rev(x: np.ndarray) -> np.ndarray:
-            return rmap.y(np.mod(x, rev))
+        if round_wheel:  # a circle about its centre rolls on an exactly flat track
 
-        def slope_rev(x: np.ndarray) -> np.ndarray:
-            return rmap.slope(np.mod(x, rev))
+            def y_rev(x: np.ndarray) -> np.ndarray:
+                return np.full(np.shape(x), -rmin)
+
+            def slope_rev(x: np.ndarray) -> np.ndarray:
+                return np.zeros(np.shape(x))
+        else:
+
+            def y_rev(x: np.ndarray) -> np.ndarray:
+                return rmap.y(np.mod(x, rev))
+
+            def slope_rev(x: np.ndarray) -> np.ndarray:
+                return rmap.slope(np.mod(x, rev))
 
         cusps = []
         for t in breaks[1:-1]:

@@ -1,0 +1,339 @@
+"""Motor sizing over a duty cycle: per-shaft torque, speed and power, and gear ratios that fit.
+
+The duty cycle starts from rest, accelerates at ``drive.accel_m_s2`` to
+``drive.speed_m_s``, cruises for ``duty.cruise_s``, brakes at
+``duty.brake_m_s2`` and rests for ``duty.rest_s``. At each instant the shaft
+torque of each driven wheel comes from the analytic model of
+:mod:`ridesim.assess.analytic` at the wheel's own position on the track, so the
+torque ripple of a non-circular wheel (inertia ``I·α`` with ``α = d(v/r)/dt``,
+the gravity torque of an off-axle wheel mass, rolling resistance ``C_rr·N·r``
+and the share of the vehicle's acceleration force) is in the figures, not only
+its mean. That model's torque at position ``x`` is linear in the acceleration
+``a`` and in ``v²``::
+
+    T(x; v, a) = T0(x) + v² T2(x) + a T1(x)
+
+so three analytic cycles give the three profiles; a fourth checks the
+linearity. A grade α adds ``M g sin α · r(x) / n_driven`` per driven shaft
+(tractive-force model: Ehsani et al., *Modern Electric, Hybrid Electric, and
+Fuel Cell Vehicles*, 3rd ed., 2018, ch. 2 [memory]; Gillespie, *Fundamentals of
+Vehicle Dynamics*, 1992 [memory]), with the lever arm the instantaneous contact
+radius ``r(x)``.
+
+Ratings (common practice in motor application notes): the r.m.s. torque over
+the cycle ``√(Σ T_i² t_i / Σ t_i)`` must stay within the continuous rating and
+the peak within the intermittent rating, each with the safety factor; through
+a reduction ``i`` with efficiency ``η`` the motor sees ``T/(i η)`` plus its own
+rotor inertia ``J i α_wheel``, and turns at ``i ω``.
+"""
+
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass, field
+
+import numpy as np
+
+from ridesim.errors import InputError
+
+__all__ = ["MotorSizing", "GearCheck", "duty_profile", "size_motor", "CAUTIONS"]
+
+G = 9.80665
+#: Assumed start acceleration [m/s^2] when a scenario gives none (flagged in the cautions).
+DEFAULT_ACCEL_M_S2 = 0.25
+RPM_PER_RAD_S = 60.0 / (2.0 * math.pi)
+
+CAUTIONS = (
+    "These figures are an engineering estimate from an idealised rigid-body model; they are"
+    " not a certified rating. A person can be pinched where a wheel corner enters a cusp,"
+    " caught by chains and sprockets, thrown by a sudden stop, or run over.",
+    "Choose a motor and gearbox with margin for starting under full load, emergency stops,"
+    " misalignment, wear and worse friction than assumed; add guarding, a speed limit, end"
+    " stops and an emergency stop.",
+    "Follow local codes and the applicable standards (amusement rides: ASTM F2291, EN 13814,"
+    " ISO 17842-1; machinery: ISO 12100, EN ISO 13854 gaps against crushing; toys: EN 71-1,"
+    " ASTM F963) and have any ride-on build reviewed by a licensed engineer.",
+)
+
+
+@dataclass(frozen=True)
+class GearCheck:
+    """One candidate reduction checked against the motor's ratings.
+
+    Attributes
+    ----------
+    ratio : float
+        Reduction ``i`` (motor turns per wheel turn).
+    motor_rms_torque_Nm, motor_peak_torque_Nm : float
+        Motor-side r.m.s. and peak torque [N m] over the cycle.
+    motor_max_speed_rad_s : float
+        Top motor speed [rad/s].
+    fits : bool
+        True when every given rating holds with the safety factor.
+    limits : tuple of str
+        Which ratings are exceeded (empty when it fits).
+    """
+
+    ratio: float
+    motor_rms_torque_Nm: float
+    motor_peak_torque_Nm: float
+    motor_max_speed_rad_s: float
+    fits: bool
+    limits: tuple[str, ...]
+
+
+@dataclass(frozen=True)
+class MotorSizing:
+    """Per-driven-shaft duty over the cycle and the gear ratios that fit.
+
+    Attributes
+    ----------
+    t_s : ndarray
+        Time [s].
+    speed_m_s : ndarray
+        Vehicle speed [m/s].
+    torque_Nm : ndarray, shape (driven, n)
+        Shaft torque [N m] of each driven wheel.
+    shaft_speed_rad_s : ndarray, shape (driven, n)
+        Shaft speed [rad/s] of each driven wheel.
+    peak_torque_Nm, rms_torque_Nm : float
+        Largest ``|T|`` and the cycle r.m.s. [N m], worst driven shaft.
+    max_shaft_speed_rpm : float
+        Top shaft speed [rpm] (``v / r_min``).
+    peak_power_W, mean_power_W : float
+        Largest shaft power [W] and the cycle mean of the delivered power (braking power
+        counted as zero: a drive that cannot recover energy) [W], worst shaft.
+    gears : tuple of GearCheck
+        The candidate ratios, in the order given.
+    best_ratio : float or None
+        The smallest candidate ratio that fits (least motor speed), or None.
+    cautions : tuple of str
+        Safety cautions and the assumptions behind the figures.
+    """
+
+    t_s: np.ndarray
+    speed_m_s: np.ndarray
+    torque_Nm: np.ndarray
+    shaft_speed_rad_s: np.ndarray
+    peak_torque_Nm: float
+    rms_torque_Nm: float
+    max_shaft_speed_rpm: float
+    peak_power_W: float
+    mean_power_W: float
+    accel_m_s2: float
+    brake_m_s2: float
+    cycle_s: float
+    gears: tuple[GearCheck, ...] = ()
+    best_ratio: float | None = None
+    cautions: tuple[str, ...] = field(default_factory=tuple)
+
+    def to_dict(self) -> dict:
+        """JSON contract of ``ridesim size-motor`` (per driven shaft).
+
+        Returns
+        -------
+        dict
+        """
+        return {
+            "peak_torque_Nm": self.peak_torque_Nm,
+            "rms_torque_Nm": self.rms_torque_Nm,
+            "max_shaft_speed_rpm": self.max_shaft_speed_rpm,
+            "peak_power_W": self.peak_power_W,
+            "mean_power_W": self.mean_power_W,
+            "duty": {"accel_m_s2": self.accel_m_s2, "brake_m_s2": self.brake_m_s2,
+                     "cycle_s": self.cycle_s, "top_speed_m_s": float(self.speed_m_s.max())},
+            "gears": [
+                {"ratio": g.ratio, "motor_rms_torque_Nm": g.motor_rms_torque_Nm,
+                 "motor_peak_torque_Nm": g.motor_peak_torque_Nm,
+                 "motor_max_speed_rpm": g.motor_max_speed_rad_s * RPM_PER_RAD_S,
+                 "fits": g.fits, "limits": list(g.limits)}
+                for g in self.gears
+            ],
+            "best_ratio": self.best_ratio,
+            "cautions": list(self.cautions),
+        }
+
+    def to_text(self) -> str:
+        """Readable summary for the command line."""
+        lines = [
+            "motor sizing per driven wheel shaft (duty: "
+            f"{self.accel_m_s2:g} m/s^2 up, cruise, {self.brake_m_s2:g} m/s^2 down;"
+            f" {self.cycle_s:.1f} s cycle)",
+            f"  peak torque        {self.peak_torque_Nm:10.4g} N m",
+            f"  r.m.s. torque      {self.rms_torque_Nm:10.4g} N m   (continuous rating)",
+            f"  top shaft speed    {self.max_shaft_speed_rpm:10.4g} rpm",
+            f"  peak power         {self.peak_power_W:10.4g} W",
+            f"  mean power         {self.mean_power_W:10.4g} W",
+        ]
+        for g in self.gears:
+            verdict = "fits" if g.fits else "exceeds " + ", ".join(g.limits)
+            lines.append(f"  ratio {g.ratio:g}: motor {g.motor_rms_torque_Nm:.4g} N m r.m.s.,"
+                         f" {g.motor_peak_torque_Nm:.4g} N m peak,"
+                         f" {g.motor_max_speed_rad_s * RPM_PER_RAD_S:.0f} rpm: {verdict}")
+        if self.gears:
+            lines.append(f"  best ratio: {self.best_ratio if self.best_ratio else 'none fits'}")
+        lines.append("cautions:")
+        lines.extend(f"  - {c}" for c in self.cautions)
+        return "\n".join(lines)
+
+
+def duty_profile(top_speed_m_s: float, accel_m_s2: float, brake_m_s2: float, cruise_s: float,
+                 rest_s: float, dt_s: float) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+    """Trapezoidal speed profile from rest to rest.
+
+    Parameters
+    ----------
+    top_speed_m_s : float
+        Cruise speed [m/s].
+    accel_m_s2, brake_m_s2 : float
+        Acceleration and braking deceleration [m/s^2], both > 0.
+    cruise_s, rest_s : float
+        Time at speed and at rest at the end [s].
+    dt_s : float
+        Sample spacing [s].
+
+    Returns
+    -------
+    t_s, v_m_s, a_m_s2 : ndarray
+        Sample times (midpoints of equal steps), speed and acceleration.
+    """
+    t_a = top_speed_m_s / accel_m_s2
+    t_b = top_speed_m_s / brake_m_s2
+    total = t_a + cruise_s + t_b + rest_s
+    n = max(int(math.ceil(total / dt_s)), 8)
+    t = (np.arange(n) + 0.5) * (total / n)
+    v = np.where(t < t_a, accel_m_s2 * t,
+                 np.where(t < t_a + cruise_s, top_speed_m_s,
+                          np.maximum(top_speed_m_s - brake_m_s2 * (t - t_a - cruise_s), 0.0)))
+    a = np.where(t < t_a, accel_m_s2,
+                 np.where(t < t_a + cruise_s, 0.0,
+                          np.where(t < t_a + cruise_s + t_b, -brake_m_s2, 0.0)))
+    return t, v, a
+
+
+def _profiles(pair, sc, mp, v_top: float, a_ref: float):
+    """T0, T1 (per m/s^2), T2 (per (m/s)^2) of each axle over one revolution."""
+    from ridesim.assess.analytic import analyze_cycle
+
+    def cyc(v, a):
+        return analyze_cycle(pair, vehicle=sc.vehicle, surface=sc.surface, wheel_mass=mp,
+                             speed_m_s=v, accel_m_s2=a, drive=sc.drive)
+
+    v1, v2 = v_top, 0.5 * v_top
+    c1, c2, c3 = cyc(v1, 0.0), cyc(v2, 0.0), cyc(v1, a_ref)
+    T2 = (c1.torque_Nm - c2.torque_Nm) / (v1 * v1 - v2 * v2)
+    T0 = c1.torque_Nm - v1 * v1 * T2
+    T1 = (c3.torque_Nm - c1.torque_Nm) / a_ref
+    check = cyc(0.75 * v_top, 0.5 * a_ref)
+    model = T0 + (0.75 * v_top) ** 2 * T2 + 0.5 * a_ref * T1
+    scale = max(float(np.max(np.abs(check.torque_Nm))), 1e-12)
+    if float(np.max(np.abs(model - check.torque_Nm))) > 1e-6 * scale:
+        raise InputError("the analytic torque is not linear in acceleration and speed squared"
+                         " for this scenario; motor sizing cannot use it (report this case)")
+    return c1, T0, T1, T2
+
+
+def size_motor(sc, *, dt_s: float | None = None) -> MotorSizing:
+    """Size the drive for a scenario's duty cycle (per driven wheel shaft).
+
+    Parameters
+    ----------
+    sc : Scenario
+        Validated scenario: drive speed and acceleration, ``[duty]``, ``[motor]``.
+    dt_s : float, optional
+        Time step [s]; default resolves each track period with at least 64 samples.
+
+    Returns
+    -------
+    MotorSizing
+    """
+    from ridesim.io.build import solve_scenario, wheel_mass
+    from ridesim.model.vehicle import axle_offsets_m
+
+    pair = solve_scenario(sc)
+    mp = wheel_mass(sc, pair.wheel)
+    cautions = list(CAUTIONS)
+    v_top = float(sc.drive.speed_m_s)
+    if sc.drive.mode == "shaft_speed":
+        v_top = float(sc.drive.shaft_speed_rad_s) * pair.revolution_length / (2 * math.pi)
+    accel = float(sc.drive.accel_m_s2)
+    if accel <= 0:
+        accel = DEFAULT_ACCEL_M_S2
+        cautions.append(f"drive.accel_m_s2 is not given: the duty cycle assumes a gentle start"
+                        f" at {accel:g} m/s^2; give the real figure, starting torque grows with it")
+    brake = float(sc.duty.brake_m_s2) if sc.duty.brake_m_s2 is not None else accel
+    c1, T0, T1, T2 = _profiles(pair, sc, mp, v_top, accel)
+    # Profiles over one revolution, per axle, as functions of the wheel's own track x.
+    L = pair.revolution_length
+    xw = np.mod(c1.wheel_x_m, L)
+    driven = list(c1.driven)
+    period = pair.track.period
+    if dt_s is None:
+        dt_s = min(0.01, period / (64.0 * v_top))
+    t, v, a = duty_profile(v_top, accel, brake, sc.duty.cruise_s, sc.duty.rest_s, dt_s)
+    h = t[1] - t[0]
+    x = np.cumsum(v) * h - 0.5 * v * h  # position of the chassis origin [m]
+    offsets = axle_offsets_m(sc.vehicle.axles, sc.vehicle.wheelbase_m)
+    m_total = sc.vehicle.body_mass_kg + sc.vehicle.axles * mp.mass_kg
+    grade = float(sc.duty.grade_rad)
+    torque = np.empty((len(driven), t.size))
+    omega = np.empty_like(torque)
+    for k, i in enumerate(driven):
+        order = np.argsort(xw[i], kind="stable")
+        xs, keep = np.unique(xw[i][order], return_index=True)
+        idx = order[keep]
+        pos = np.mod(x + offsets[i], L)
+
+        def at(profile, idx=idx, xs=xs, pos=pos):
+            return np.interp(pos, xs, profile[idx], period=L)
+
+        r = pair.contact_radius(pos)
+        tq = at(T0[i]) + v * v * at(T2[i]) + a * at(T1[i])
+        tq += m_total * G * math.sin(grade) * r / len(driven)
+        torque[k] = tq
+        omega[k] = v / r
+    # Cruise peaks of the exact cycle (one-sided values at cusps included).
+    cruise_peak = float(np.max(np.abs(c1.torque_Nm[driven]))) if sc.duty.cruise_s > 0 else 0.0
+    peak = max(float(np.max(np.abs(torque))), cruise_peak)
+    rms = float(np.max(np.sqrt(np.mean(torque**2, axis=1))))
+    power = torque * omega
+    peak_power = float(np.max(power))
+    mean_power = float(np.max(np.mean(np.maximum(power, 0.0), axis=1)))
+    rmin = float(pair.depth_range()[0])
+    max_rpm = v_top / rmin * RPM_PER_RAD_S
+    gears, best = _check_gears(sc, torque, omega, t)
+    if grade:
+        cautions.append("grade is modelled as a slope force on a level track profile (normal"
+                        " loads are not reduced by cos(grade)); fine for small grades only")
+    return MotorSizing(t_s=t, speed_m_s=v, torque_Nm=torque, shaft_speed_rad_s=omega,
+                       peak_torque_Nm=peak, rms_torque_Nm=rms, max_shaft_speed_rpm=max_rpm,
+                       peak_power_W=peak_power, mean_power_W=mean_power, accel_m_s2=accel,
+                       brake_m_s2=brake, cycle_s=float(t[-1] + 0.5 * (t[1] - t[0])),
+                       gears=gears, best_ratio=best, cautions=tuple(cautions))
+
+
+def _check_gears(sc, torque: np.ndarray, omega: np.ndarray, t: np.ndarray):
+    m = sc.motor
+    if not m.gear_ratios:
+        return (), None
+    sf, eta = m.safety_factor, m.efficiency
+    peak_rating = m.peak_torque_Nm if m.peak_torque_Nm is not None else (
+        2.0 * m.rated_torque_Nm if m.rated_torque_Nm is not None else None)
+    alpha = np.gradient(omega, t, axis=1)
+    out = []
+    for i in m.gear_ratios:
+        tm = torque / (i * eta) + m.inertia_kg_m2 * i * alpha
+        rms = float(np.max(np.sqrt(np.mean(tm**2, axis=1))))
+        pk = float(np.max(np.abs(tm)))
+        spd = float(np.max(omega)) * i
+        limits = []
+        if m.rated_torque_Nm is not None and rms * sf > m.rated_torque_Nm:
+            limits.append("continuous torque")
+        if peak_rating is not None and pk * sf > peak_rating:
+            limits.append("peak torque")
+        if m.rated_speed_rad_s is not None and spd * sf > m.rated_speed_rad_s:
+            limits.append("speed")
+        out.append(GearCheck(ratio=i, motor_rms_torque_Nm=rms, motor_peak_torque_Nm=pk,
+                             motor_max_speed_rad_s=spd, fits=not limits, limits=tuple(limits)))
+    fitting = [g.ratio for g in out if g.fits]
+    return tuple(out), (min(fitting) if fitting else None)
