@@ -24,6 +24,7 @@ import numpy as np
 
 from ridesim.assess.analytic import AnalyticResult, analyze_cycle
 from ridesim.assess.clearance import ClearanceResult, CuspSeat, clearance, cusp_seating
+from ridesim.assess.phasing import cart_phasing
 from ridesim.errors import InputError
 from ridesim.io.build import solve_scenario, wheel_mass
 from ridesim.io.scenario import Scenario
@@ -88,6 +89,9 @@ class CheckResult:
         The surface's friction coefficient [-].
     summary : dict
         The pair's solve summary (period, revolution length, depths).
+    cart : dict or None
+        Several axles: phase errors [rad], load shares, lifted axles, bounce [m], pitch range
+        [rad], seat bounce [m] and seat acceleration [m/s^2] (quasi-static estimate).
     """
 
     name: str
@@ -102,6 +106,7 @@ class CheckResult:
     accelerating: AnalyticResult | None
     friction_available: float
     summary: dict = field(default_factory=dict)
+    cart: dict | None = None
 
     # ------------------------------------------------------------------ friction summary
     def _friction(self) -> dict:
@@ -187,6 +192,8 @@ class CheckResult:
         else:
             out["cusps"] = {"count": 0}
         out["pair"] = dict(self.summary)
+        if self.cart is not None:
+            out["cart"] = dict(self.cart)
         out["cautions"] = list(self.cautions)
         return out
 
@@ -348,6 +355,20 @@ def check_scenario(sc: Scenario) -> CheckResult:
                 " the axles"
             )
 
+    # -- several axles: phasing, pitch and seat bounce (quasi-static)
+    cart = None
+    if veh.axles > 1:
+        cart = cart_phasing(pair, veh, speed_m_s=v)
+        for note in cart.notes:
+            if "not a whole number" in note:
+                reasons_bounce = (f"; the coupled cart would bounce {1000 * cart.bounce_m:.1f} mm"
+                                  f" and pitch {_deg(cart.pitch_range_rad):.2f} deg")
+                for i, r in enumerate(reasons):
+                    if "not a whole number" in r:
+                        reasons[i] = r + reasons_bounce
+            else:
+                notes.append(note)
+
     # -- drive
     peak_T = steady.torque_peak_Nm if acc is None else max(steady.torque_peak_Nm, acc.torque_peak_Nm)
     if peak_T > sc.drive.max_torque_Nm:
@@ -369,6 +390,7 @@ def check_scenario(sc: Scenario) -> CheckResult:
                  "lobes": int(pair.lobes), "depth_min_m": float(pair.depth_range()[0]),
                  "depth_max_m": float(pair.depth_range()[1]),
                  "wheel_mass_kg": float(mp.mass_kg), "wheel_inertia_kg_m2": float(mp.inertia_kg_m2)},
+        cart=None if cart is None else cart.to_dict(),
     )
 
 

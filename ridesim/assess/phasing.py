@@ -1,0 +1,326 @@
+"""Multi-axle carts: wheel phasing, resting axle heights, chassis pitch and seat bounce.
+
+Each wheel's ideal angle follows from its own position on the track,
+``wheel_angle(x + offset_i)``. Uncoupled wheels find that angle by rolling, so
+any wheelbase rides level (but their shafts turn at different rates, so each
+needs its own drive or a differential). Wheels coupled to one shaft keep the
+relative angles they were assembled with; when the wheelbase is not a whole
+number of track periods those angles drift from the ideal ones and the cart
+bounces and pitches.
+
+The quasi-static model here: the rear wheel's angle follows its ideal one, each
+other wheel keeps its assembly angle relative to it (plus any mounting error
+``vehicle.phase_offsets_rad``), and every wheel rests on the track at the
+lowest axle height that keeps its whole outline on or above the track,
+``h = max over rim points (y_track(x + p_x) - p_y)``. The chassis then rests on
+those heights as a rigid beam with the least body height (a two-variable linear
+programme, solved over the pairs of supporting axles); a wheel below the beam has
+lifted off. This ignores the slip and dynamics that the simulation includes.
+"""
+
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass
+
+import numpy as np
+
+from ridesim.errors import InputError
+from ridesim.model.vehicle import axle_offsets_m
+from ridesim.solve.pair import RollingPair
+
+__all__ = ["resting_height", "PhasingResult", "cart_phasing"]
+
+TWO_PI = 2.0 * math.pi
+
+
+class _Rim:
+    """The rim as a closed curve ``p(u)`` with ``u`` in [0, n).
+
+    Polygon wheels: vertex ``i`` at ``u = i``, straight edges between; smooth wheels: polar
+    angle ``2 pi u / n``.
+    """
+
+    def __init__(self, pair: RollingPair, n_smooth: int = 720, per_edge: int = 24) -> None:
+        w = pair.wheel
+        self.wheel = w
+        if w.is_polygon:
+            self.v = np.asarray(w.vertices)
+            self.n = len(self.v)
+            self.per = per_edge
+        else:
+            self.v = None
+            self.n = n_smooth
+            self.per = 1
+        self.u = np.arange(self.n * self.per) / self.per
+
+    def points(self, u: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+        if self.v is not None:
+            i = np.floor(u).astype(int) % self.n
+            f = u - np.floor(u)
+            a, b = self.v[i], self.v[(i + 1) % self.n]
+            p = a + f[..., None] * (b - a)
+            return p[..., 0], p[..., 1]
+        phi = TWO_PI * u / self.n
+        r = self.wheel.radius(phi)
+        return r * np.cos(phi), r * np.sin(phi)
+
+
+def _golden(f, lo: np.ndarray, hi: np.ndarray, steps: int) -> np.ndarray:
+    """Largest value of ``f`` on ``[lo, hi]`` (elementwise) by golden-section search."""
+    gr = 0.5 * (math.sqrt(5.0) - 1.0)
+    pc, pd = hi - gr * (hi - lo), lo + gr * (hi - lo)
+    fc, fd = f(pc), f(pd)
+    for _ in range(steps):
+        left = fc > fd  # the maximum lies in [lo, pd]
+        hi = np.where(left, pd, hi)
+        lo = np.where(left, lo, pc)
+        new_pt = np.where(left, hi - gr * (hi - lo), lo + gr * (hi - lo))
+        f_new = f(new_pt)
+        pd, fd, pc, fc = (np.where(left, pc, new_pt), np.where(left, fc, f_new),
+                          np.where(left, new_pt, pd), np.where(left, f_new, fd))
+    return np.maximum(np.maximum(fc, fd), np.maximum(f(lo), f(hi)))
+
+
+def resting_height(pair: RollingPair, x_m, theta_rad, *, chunk: int = 256,
+                   refine: int = 40) -> np.ndarray:
+    """Lowest axle height [m] at which the wheel, turned ``theta``, sits on the track at ``x``.
+
+    Parameters
+    ----------
+    pair : RollingPair
+        The solved pair (its track and wheel).
+    x_m : array_like
+        Axle positions [m].
+    theta_rad : array_like
+        Clockwise wheel angles [rad] (same shape as ``x_m``).
+    chunk : int
+        Poses evaluated at once (bounds memory).
+    refine : int
+        Golden-section steps that refine the touching rim point between samples.
+
+    Returns
+    -------
+    ndarray
+        ``max over the rim (y_track(x + p_x) - p_y)`` for each pose; 0 for the ideal pose.
+    """
+    x = np.atleast_1d(np.asarray(x_m, dtype=float))
+    th = np.broadcast_to(np.asarray(theta_rad, dtype=float), x.shape)
+    rim = _Rim(pair)
+    px0, py0 = rim.points(rim.u)
+    out = np.empty(x.shape)
+
+    def gap(xs, c, s, u):
+        px, py = rim.points(u)
+        # Clockwise rotation by theta: (px, py) -> (c px + s py, -s px + c py).
+        X = c * px + s * py
+        Y = -s * px + c * py
+        return pair.track.y(xs + X) - Y
+
+    for a in range(0, x.size, chunk):
+        xs, ts = x[a:a + chunk], th[a:a + chunk]
+        c, s = np.cos(ts)[:, None], np.sin(ts)[:, None]
+        X = c * px0[None, :] + s * py0[None, :]
+        Y = -s * px0[None, :] + c * py0[None, :]
+        g = pair.track.y(xs[:, None] + X) - Y
+        k = np.argmax(g, axis=1)
+        best = g[np.arange(len(xs)), k]
+        # Refine on each side of the best sample (golden section on the rim parameter; each
+        # side is smooth, a vertex sits at most at its end), and try the rim point on the
+        # ray straight down, which touches exactly in the ideal pose.
+        def along(u, xs=xs, cc=c[:, 0], ss=s[:, 0]):
+            return gap(xs, cc, ss, u)
+
+        f1 = _golden(along, rim.u[k] - 1.0 / rim.per, rim.u[k], refine)
+        f2 = _golden(along, rim.u[k], rim.u[k] + 1.0 / rim.per, refine)
+        r_down = pair.wheel.radius(ts - 0.5 * math.pi)
+        f_down = pair.track.y(xs) + r_down
+        best = np.maximum(best, f_down)
+        out[a:a + chunk] = np.maximum(best, np.maximum(f1, f2))
+    return out
+
+
+@dataclass(frozen=True)
+class PhasingResult:
+    """How a cart's wheels meet the track over one revolution.
+
+    Attributes
+    ----------
+    coupled : bool
+        Whether the wheels share one shaft angle.
+    wheelbase_periods : float
+        Wheelbase over the track period (a whole number keeps coupled wheels in phase).
+    phase_error_rad : ndarray, shape (axles,)
+        Largest angle [rad] by which each wheel departs from its ideal angle.
+    x_m : ndarray
+        Chassis positions [m] over one revolution.
+    axle_height_m : ndarray, shape (axles, n)
+        Axle heights [m] (0 for an ideal ride).
+    pitch_rad : ndarray
+        Chassis pitch [rad], nose up positive.
+    seat_height_m : ndarray
+        Seat point height [m].
+    load_share : ndarray, shape (axles,)
+        Fraction of the time-averaged static load carried by each axle.
+    lifted : ndarray of bool, shape (axles,)
+        True for an axle whose wheel leaves the track somewhere in the cycle.
+    bounce_m, pitch_range_rad, seat_bounce_m : float
+        Peak-to-peak axle height (worst axle), pitch and seat height.
+    seat_accel_peak_m_s2 : float or None
+        Peak vertical seat acceleration [m/s^2] at the given speed (``v² d²y/dx²``).
+    notes : tuple of str
+        Plain statements for the builder.
+    """
+
+    coupled: bool
+    wheelbase_periods: float
+    phase_error_rad: np.ndarray
+    x_m: np.ndarray
+    axle_height_m: np.ndarray
+    pitch_rad: np.ndarray
+    seat_height_m: np.ndarray
+    load_share: np.ndarray
+    lifted: np.ndarray
+    bounce_m: float
+    pitch_range_rad: float
+    seat_bounce_m: float
+    seat_accel_peak_m_s2: float | None
+    notes: tuple[str, ...]
+
+    def to_dict(self) -> dict:
+        """Summary with units in the keys (JSON-ready).
+
+        Returns
+        -------
+        dict
+        """
+        return {
+            "coupled": self.coupled,
+            "wheelbase_periods": float(self.wheelbase_periods),
+            "phase_error_rad": [float(v) for v in self.phase_error_rad],
+            "load_share": [float(v) for v in self.load_share],
+            "lifted": [bool(v) for v in self.lifted],
+            "bounce_m": float(self.bounce_m),
+            "pitch_range_rad": float(self.pitch_range_rad),
+            "seat_bounce_m": float(self.seat_bounce_m),
+            "seat_accel_peak_m_s2": self.seat_accel_peak_m_s2,
+            "notes": list(self.notes),
+        }
+
+
+def _rest_beam(xa: np.ndarray, h: np.ndarray):
+    """Lowest line ``a + b x`` on or above points ``(xa_i, h_i)`` at x = 0, per column."""
+    n = len(xa)
+    if n == 1:
+        return h[0].copy(), np.zeros(h.shape[1])
+    best_a = np.full(h.shape[1], np.inf)
+    best_b = np.zeros(h.shape[1])
+    tol = 1e-12 * max(1.0, float(np.max(np.abs(h))))
+    for i in range(n):
+        for j in range(i + 1, n):
+            b = (h[j] - h[i]) / (xa[j] - xa[i])
+            a = h[i] - b * xa[i]
+            ok = np.all(a[None, :] + b[None, :] * xa[:, None] >= h - tol, axis=0)
+            better = ok & (a < best_a)
+            best_a = np.where(better, a, best_a)
+            best_b = np.where(better, b, best_b)
+    return best_a, best_b
+
+
+def cart_phasing(pair: RollingPair, vehicle, *, speed_m_s: float | None = None,
+                 phase_offsets_rad=None, samples: int = 720) -> PhasingResult:
+    """Phase errors, axle heights, chassis pitch and seat bounce of a cart over a revolution.
+
+    Parameters
+    ----------
+    pair : RollingPair
+        The solved pair every axle rolls on.
+    vehicle : VehicleSpec
+        Axles, wheelbase [m], coupling, seat point [m].
+    speed_m_s : float, optional
+        Speed [m/s] for the seat acceleration estimate.
+    phase_offsets_rad : sequence of float, optional
+        Mounting error [rad] of each wheel on a shared shaft (coupled wheels only).
+    samples : int
+        Chassis positions over one revolution.
+
+    Returns
+    -------
+    PhasingResult
+    """
+    offs = axle_offsets_m(vehicle.axles, vehicle.wheelbase_m)
+    n_ax = len(offs)
+    deltas = np.zeros(n_ax) if phase_offsets_rad is None else np.asarray(phase_offsets_rad, float)
+    if deltas.shape != (n_ax,):
+        raise InputError(f"phase_offsets_rad must give one angle per axle ({n_ax}),"
+                         f" got {np.shape(phase_offsets_rad)}")
+    P, L = pair.track.period, pair.revolution_length
+    wb_periods = float(vehicle.wheelbase_m / P) if n_ax > 1 else 0.0
+    x = np.linspace(0.0, L, samples, endpoint=False)
+    ideal = np.array([pair.wheel_angle(x + o) for o in offs])
+    if vehicle.coupled:
+        start = ideal[:, :1] - ideal[:1, :1]  # assembly angles relative to the rear wheel
+        theta = ideal[:1, :] + start + deltas[:, None]
+    else:
+        theta = ideal.copy()
+    err = np.abs((theta - ideal + math.pi) % TWO_PI - math.pi)
+    phase_error = err.max(axis=1)
+    heights = np.array([resting_height(pair, x + o, th) for o, th in zip(offs, theta, strict=True)])
+    a, b = _rest_beam(offs, heights)
+    beam = a[None, :] + b[None, :] * offs[:, None]
+    gap = beam - heights
+    size = float(pair.depth_range()[1])
+    lifted = np.any(gap > 1e-6 * size, axis=1)
+    # Static load share: axles on the beam share the load by the lever rule; time-averaged.
+    share = np.zeros(n_ax)
+    on = gap <= 1e-6 * size
+    for k in range(x.size):
+        idx = np.flatnonzero(on[:, k])
+        if idx.size == 1:
+            share[idx[0]] += 1.0
+        elif idx.size >= 2:
+            lo_, hi_ = idx.min(), idx.max()
+            if offs[hi_] > 0 >= offs[lo_] or offs[lo_] < 0 <= offs[hi_]:
+                wgt = (offs[hi_] - 0.0) / (offs[hi_] - offs[lo_])
+                if idx.size == 2:
+                    share[lo_] += wgt
+                    share[hi_] += 1.0 - wgt
+                else:  # several axles on the beam: equal shares (statically indeterminate)
+                    share[idx] += 1.0 / idx.size
+            else:
+                share[idx] += 1.0 / idx.size
+    share /= x.size
+    pitch = np.arctan(b)
+    sx, sy = vehicle.seat_m
+    seat = a + b * sx + sy * np.cos(pitch) - sy
+    seat_acc = None
+    if speed_m_s is not None and samples >= 8:
+        dx = x[1] - x[0]
+        d2 = (np.roll(seat, -1) - 2 * seat + np.roll(seat, 1)) / dx**2
+        seat_acc = float(np.max(np.abs(d2)) * speed_m_s**2)
+    notes = []
+    if n_ax > 1:
+        whole = abs(wb_periods - round(wb_periods)) <= 1e-6
+        if vehicle.coupled and not whole:
+            notes.append(
+                f"the wheelbase is {wb_periods:.3f} track periods, not a whole number: coupled"
+                f" wheels drift up to {math.degrees(float(phase_error.max())):.1f} deg from their"
+                " ideal angles, so the cart bounces and pitches; use a wheelbase of"
+                f" {round(wb_periods) or 1} x {P:.4f} m or drive the wheels separately")
+        if not vehicle.coupled and not whole:
+            notes.append(
+                f"the wheelbase is {wb_periods:.3f} track periods: the uncoupled wheels each roll"
+                " ideally but their shafts turn at different rates at each moment, so each"
+                " driven wheel needs its own motor or a differential")
+        if np.any(lifted):
+            notes.append("axle(s) " + ", ".join(str(i) for i in np.flatnonzero(lifted))
+                         + " lift off the track during the cycle")
+    if vehicle.coupled and np.any(deltas):
+        notes.append("mounting errors on the shared shaft: "
+                     + ", ".join(f"axle {i} {math.degrees(d):+.2f} deg" for i, d in enumerate(deltas)))
+    return PhasingResult(
+        coupled=bool(vehicle.coupled), wheelbase_periods=wb_periods,
+        phase_error_rad=phase_error, x_m=x, axle_height_m=heights, pitch_rad=pitch,
+        seat_height_m=seat, load_share=share, lifted=lifted,
+        bounce_m=float(np.max(np.ptp(heights, axis=1))), pitch_range_rad=float(np.ptp(pitch)),
+        seat_bounce_m=float(np.ptp(seat)), seat_accel_peak_m_s2=seat_acc, notes=tuple(notes))
