@@ -96,6 +96,44 @@ def _cmd_size_motor(sc, args) -> tuple[dict, str]:
     return res.to_dict(), res.to_text()
 
 
+def _need_out(args, what: str) -> Path:
+    if not args.out:
+        raise ScenarioError_(f"ridesim {what} needs --out DIR (the folder to write into)")
+    return Path(args.out)
+
+
+def _cmd_render(sc, args) -> tuple[dict, str]:
+    from ridesim.render.scenario import render_scenario
+
+    out = _need_out(args, "render")
+    progress = None
+    if not args.json and sys.stderr.isatty():
+        progress = _progress_bar("drawing the clip")
+    w, h = (int(v) for v in args.size.lower().split("x")) if args.size else (640, 360)
+    items = render_scenario(sc, out, svg=args.svg, simulate=args.simulate, clip=not args.no_clip,
+                            clip_s=args.seconds, fps=args.fps, size=(w, h),
+                            follow=not args.fixed_camera, progress=progress)
+    if progress is not None:
+        sys.stderr.write("\n")
+    data = {"files": [{"path": str(p), "caption": c} for p, c in items],
+            "index": str(out / "index.md")}
+    text = "\n".join(f"{p}: {c}" for p, c in items)
+    return data, text
+
+
+def _cmd_export(sc, args) -> tuple[dict, str]:
+    from ridesim.io.build import solve_scenario
+    from ridesim.io.drawings import export_drawings
+
+    out = _need_out(args, "export")
+    pair = solve_scenario(sc)
+    thick = sc.wheel.thickness_m if sc.wheel is not None else None
+    files = export_drawings(pair, out, name=sc.name, max_section_m=args.section,
+                            wheel_thickness_m=thick, title_lines=(sc.description,) if sc.description else ())
+    data = {"files": [str(f) for f in files]}
+    return data, "\n".join(str(f) for f in files)
+
+
 def _text_of(res) -> str:
     """A result's own text, or a plain listing of its figures."""
     if hasattr(res, "to_text"):
@@ -181,6 +219,8 @@ _COMMANDS: dict[str, tuple[Callable, str]] = {
     "check": (_cmd_check, "will it roll? clearance, friction demand and shaft torque"),
     "simulate": (_cmd_simulate, "rigid-body simulation: bounce, slip onset, torque"),
     "size-motor": (_cmd_size_motor, "motor torque, speed and power over a duty cycle"),
+    "render": (_cmd_render, "plots (PNG, SVG on request) and a GIF clip into --out DIR"),
+    "export": (_cmd_export, "1:1 SVG and CSV cut files of the wheel and track into --out DIR"),
 }
 
 
@@ -208,6 +248,19 @@ def _build_parser(commands: dict) -> _Parser:
         sp.add_argument("scenario", metavar="SCENARIO.toml", help="scenario file")
         sp.add_argument("--json", action="store_true", help="print exactly one JSON object")
         sp.add_argument("--out", metavar="DIR", help="also write results into DIR")
+        if name == "render":
+            sp.add_argument("--svg", action="store_true", help="also write SVG copies of the plots")
+            sp.add_argument("--simulate", action="store_true",
+                            help="run the simulation: torque, bounce, comfort plots; the clip"
+                            " replays it (default: the ideal kinematics)")
+            sp.add_argument("--no-clip", action="store_true", help="skip the GIF clip")
+            sp.add_argument("--seconds", type=float, default=4.0, help="clip length [s]")
+            sp.add_argument("--fps", type=int, default=25, help="clip frames per second")
+            sp.add_argument("--size", default="640x360", help="clip size WIDTHxHEIGHT [px]")
+            sp.add_argument("--fixed-camera", action="store_true", help="do not follow the cart")
+        if name == "export":
+            sp.add_argument("--section", type=float, default=1.0,
+                            help="longest track section to cut [m]")
     sw = sub.add_parser("sweep", help="run a design sweep or tolerance study (resumable)",
                         description="Run every case of a sweep file; rerun the same command to"
                         " resume an interrupted sweep.")

@@ -98,3 +98,34 @@ def test_out_dir_keeps_previous_result_when_input_is_bad(tmp_path):
     bad.write_text('[wheel]\nshape = "polygon"\nsides = 2\napothem_m = 0.3\n')
     assert main(["solve", str(bad), "--out", str(tmp_path)]) == 2
     assert (tmp_path / "solve.json").read_text() == before
+
+
+def test_render_and_export_write_their_files(tmp_path):
+    # Cut files (geometry checked to 0.01 mm in test_drawings): the wheel SVG declares its
+    # size in mm and must hold the hexagon, 2a/cos(pi/6) wide and 2a tall (plane geometry).
+    import xml.etree.ElementTree as ET
+
+    r = run_cli("export", str(SCENARIOS / "hexagon_trolley.toml"), "--out", str(tmp_path / "cut"),
+                "--json")
+    assert r.returncode == 0, r.stderr
+    files = json.loads(r.stdout)["files"]
+    svg = next(f for f in files if f.endswith("_wheel.svg"))
+    root = ET.parse(svg).getroot()
+    a = 120.0
+    assert float(root.get("width").removesuffix("mm")) > 2 * a / math.cos(math.pi / 6)
+    assert float(root.get("height").removesuffix("mm")) > 2 * a
+    assert any(f.endswith("_track_01.csv") for f in files)
+    r = run_cli("render", str(SCENARIOS / "ellipse_pull_toy.toml"), "--out", str(tmp_path / "pic"),
+                "--seconds", "1", "--json")
+    assert r.returncode == 0, r.stderr
+    out = json.loads(r.stdout)
+    names = {Path(f["path"]).name for f in out["files"]}
+    assert {"wheel.png", "track.png", "friction.png", "clip.gif"} <= names
+    assert all(f["caption"] for f in out["files"])
+    index = (tmp_path / "pic" / "index.md").read_text()
+    assert "clip.gif" in index and "friction.png" in index
+
+
+def test_render_without_out_is_a_usage_error():
+    r = run_cli("render", str(SCENARIOS / "ellipse_pull_toy.toml"))
+    assert r.returncode == 2 and "--out" in r.stderr

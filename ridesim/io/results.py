@@ -18,6 +18,12 @@ import numpy as np
 __all__ = ["write_text_atomic", "write_bytes_atomic", "write_json_atomic", "json_ready"]
 
 
+def _umask() -> int:
+    mask = os.umask(0)
+    os.umask(mask)
+    return mask
+
+
 def write_bytes_atomic(path: str | Path, data: bytes) -> Path:
     """Write ``data`` to ``path`` through a temporary file and a rename.
 
@@ -41,6 +47,7 @@ def write_bytes_atomic(path: str | Path, data: bytes) -> Path:
             fh.write(data)
             fh.flush()
             os.fsync(fh.fileno())
+        os.chmod(tmp, 0o666 & ~_umask())  # mkstemp makes 0600; give the usual file mode
         os.replace(tmp, path)
     except BaseException:
         try:
