@@ -134,6 +134,19 @@ def _cmd_export(sc, args) -> tuple[dict, str]:
     return data, "\n".join(str(f) for f in files)
 
 
+def _cmd_report(sc, args) -> tuple[dict, str]:
+    from ridesim.render.report import write_report
+
+    out = _need_out(args, "report")
+    progress = None
+    if not args.json and sys.stderr.isatty():
+        progress = _progress_bar("drawing the clip")
+    page, figures = write_report(sc, out, simulate=not args.no_simulate, progress=progress)
+    if progress is not None:
+        sys.stderr.write("\n")
+    return {"report": str(page), **figures}, f"report written: {page}"
+
+
 def _text_of(res) -> str:
     """A result's own text, or a plain listing of its figures."""
     if hasattr(res, "to_text"):
@@ -221,6 +234,7 @@ _COMMANDS: dict[str, tuple[Callable, str]] = {
     "size-motor": (_cmd_size_motor, "motor torque, speed and power over a duty cycle"),
     "render": (_cmd_render, "plots (PNG, SVG on request) and a GIF clip into --out DIR"),
     "export": (_cmd_export, "1:1 SVG and CSV cut files of the wheel and track into --out DIR"),
+    "report": (_cmd_report, "one self-contained HTML page: verdict, figures, pictures, cautions"),
 }
 
 
@@ -258,6 +272,9 @@ def _build_parser(commands: dict) -> _Parser:
             sp.add_argument("--fps", type=int, default=25, help="clip frames per second")
             sp.add_argument("--size", default="640x360", help="clip size WIDTHxHEIGHT [px]")
             sp.add_argument("--fixed-camera", action="store_true", help="do not follow the cart")
+        if name == "report":
+            sp.add_argument("--no-simulate", action="store_true",
+                            help="leave the rigid-body simulation out (faster)")
         if name == "export":
             sp.add_argument("--section", type=float, default=1.0,
                             help="longest track section to cut [m]")

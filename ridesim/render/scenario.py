@@ -16,7 +16,7 @@ __all__ = ["render_scenario"]
 def render_scenario(sc, out_dir: str | Path, *, svg: bool = False, simulate: bool = False,
                     clip: bool = True, clip_s: float = 4.0, fps: int = 25,
                     size: tuple[int, int] = (640, 360), follow: bool = True,
-                    progress=None) -> list[tuple[Path, str]]:
+                    progress=None, sim_result=None) -> list[tuple[Path, str]]:
     """Write a scenario's pictures into ``out_dir`` with a captioned ``index.md``.
 
     Parameters
@@ -41,6 +41,8 @@ def render_scenario(sc, out_dir: str | Path, *, svg: bool = False, simulate: boo
         Camera follows the cart.
     progress : callable, optional
         ``progress(fraction)`` while the clip is drawn.
+    sim_result : SimResult, optional
+        A simulation already run for this scenario (reused instead of running again).
 
     Returns
     -------
@@ -85,7 +87,7 @@ def render_scenario(sc, out_dir: str | Path, *, svg: bool = False, simulate: boo
                 f" peak {steady.torque_peak_Nm:.4g} N·m, r.m.s. {steady.torque_rms_Nm:.4g} N·m."))
     frames = None
     if simulate:
-        items_sim, frames = _sim_plots(sc, steady, out, svg)
+        items_sim, frames = _sim_plots(sc, steady, out, svg, sim_result)
         items += items_sim
     if clip:
         offsets = tuple(float(o) for o in axle_offsets_m(n_ax, sc.vehicle.wheelbase_m))
@@ -96,13 +98,14 @@ def render_scenario(sc, out_dir: str | Path, *, svg: bool = False, simulate: boo
     return items
 
 
-def _sim_plots(sc, steady, out: Path, svg: bool):
+def _sim_plots(sc, steady, out: Path, svg: bool, res=None):
     """Simulated torque against the analytic model, axle and seat bounce, comfort spectrum."""
     from ridesim.metrics import comfort as cf
     from ridesim.render.plots import plot_series, plot_spectrum
     from ridesim.sim.run import simulate
 
-    res = simulate(sc)
+    if res is None:
+        res = simulate(sc)
     pr = res.probes
     t = pr["t_s"]
     items = []
