@@ -18,17 +18,9 @@ from collections.abc import Callable, Sequence
 import numpy as np
 
 from ridesim.errors import GeometryError, InputError
+from ridesim.model.checks import positive as _positive
 
 __all__ = ["Track"]
-
-
-def _positive(name: str, value: float) -> float:
-    if isinstance(value, bool) or not isinstance(value, (int, float, np.floating, np.integer)):
-        raise InputError(f"{name} must be a number in metres, got {value!r}")
-    v = float(value)
-    if not math.isfinite(v) or v <= 0:
-        raise InputError(f"{name} must be > 0, got {value!r}")
-    return v
 
 
 class Track:

@@ -20,29 +20,12 @@ from dataclasses import dataclass
 import numpy as np
 
 from ridesim.errors import GeometryError, InputError
+from ridesim.model.checks import point as _point
+from ridesim.model.checks import positive as _positive
 
 __all__ = ["Wheel", "MassProperties"]
 
 TWO_PI = 2.0 * math.pi
-
-
-def _positive(name: str, value: float) -> float:
-    if isinstance(value, bool) or not isinstance(value, (int, float, np.floating, np.integer)):
-        raise InputError(f"{name} must be a number in metres, got {value!r}")
-    v = float(value)
-    if not math.isfinite(v) or v <= 0:
-        raise InputError(f"{name} must be > 0, got {value!r}")
-    return v
-
-
-def _point(name: str, value: Sequence[float]) -> np.ndarray:
-    try:
-        p = np.asarray(value, dtype=float)
-    except (TypeError, ValueError):
-        raise InputError(f"{name} must be a pair [x, y] in metres, got {value!r}") from None
-    if p.shape != (2,) or not np.all(np.isfinite(p)):
-        raise InputError(f"{name} must be a pair [x, y] of finite numbers in metres, got {value!r}")
-    return p
 
 
 @dataclass(frozen=True)

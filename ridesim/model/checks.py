@@ -1,0 +1,57 @@
+"""Argument checks shared by the model constructors (one-line errors naming the parameter)."""
+
+from __future__ import annotations
+
+import math
+from collections.abc import Sequence
+
+import numpy as np
+
+from ridesim.errors import InputError
+
+__all__ = ["positive", "point"]
+
+
+def positive(name: str, value: float) -> float:
+    """Return ``value`` as a float after checking it is a finite number > 0.
+
+    Parameters
+    ----------
+    name : str
+        Parameter name for the message.
+    value : float
+        The value (a length [m] or another positive quantity).
+
+    Returns
+    -------
+    float
+    """
+    if isinstance(value, bool) or not isinstance(value, (int, float, np.floating, np.integer)):
+        raise InputError(f"{name} must be a number in metres, got {value!r}")
+    v = float(value)
+    if not math.isfinite(v) or v <= 0:
+        raise InputError(f"{name} must be > 0, got {value!r}")
+    return v
+
+
+def point(name: str, value: Sequence[float]) -> np.ndarray:
+    """Return ``value`` as a finite ``[x, y]`` array [m].
+
+    Parameters
+    ----------
+    name : str
+        Parameter name for the message.
+    value : pair of float
+        The point [m].
+
+    Returns
+    -------
+    ndarray, shape (2,)
+    """
+    try:
+        p = np.asarray(value, dtype=float)
+    except (TypeError, ValueError):
+        raise InputError(f"{name} must be a pair [x, y] in metres, got {value!r}") from None
+    if p.shape != (2,) or not np.all(np.isfinite(p)):
+        raise InputError(f"{name} must be a pair [x, y] of finite numbers in metres, got {value!r}")
+    return p
