@@ -21,6 +21,7 @@ MEDIA = ROOT / "media"
 
 
 def main() -> None:
+    """Write the pictures and the clip into media/ and list their sizes."""
     hexa = load_scenario(ROOT / "scenarios" / "hexagon_trolley.toml")
     with tempfile.TemporaryDirectory() as tmp:
         items = render_scenario(hexa, tmp, clip=False)

@@ -1,0 +1,105 @@
+"""Real-time factor of the rigid-body engine against pymunk's own stepping cost.
+
+Run from the repository root:  PYTHONPATH=. python benchmarks/bench_sim.py
+
+Builds a two-axle cart on 64-vertex wheels (a regular 64-gon on its catenary
+track, speed drive, 1 kHz) and times, on fresh copies of the same world:
+
+* raw C stepping: ``cpSpaceStep`` in a Python loop, no probes, no controller
+  (the engine's own cost);
+* ``pymunk.Space.step`` in a Python loop (the usual pymunk call, with its Python wrapper);
+* the engine: stepping plus every probe, the speed controller and the guard rails;
+* the engine's probe post-processing (slip, normal force, seat acceleration).
+
+The timings are interleaved and each figure is the least of several repeats, in process
+CPU time, so that other work on a shared machine disturbs them as little as possible.
+Prints steps per second, real-time factors and the overhead ratios.
+"""
+
+from __future__ import annotations
+
+import argparse
+import time
+
+from pymunk._chipmunk_cffi import lib
+
+from ridesim.io.scenario import scenario_from_dict
+from ridesim.sim.run import PymunkEngine
+
+
+def cart(sides: int, duration_s: float) -> dict:
+    a = 0.15
+    return {
+        "name": f"bench_{sides}gon",
+        "wheel": {"shape": "polygon", "sides": sides, "apothem_m": a},
+        "vehicle": {"body_mass_kg": 10.0, "axles": 2, "wheelbase_m": 0.5},
+        "drive": {"mode": "speed", "speed_m_s": 0.5, "max_torque_Nm": 20.0},
+        "surface": {"friction": 0.8},
+        "run": {"duration_s": duration_s, "timestep_s": 0.001, "settle_s": 0.2, "iterations": 30},
+    }
+
+
+def time_raw(sc, n: int, wrapper: bool) -> float:
+    eng = PymunkEngine.from_scenario(sc)
+    space = eng.world.space
+    dt = sc.run.timestep_s
+    if wrapper:
+        step = space.step
+        t0 = time.process_time()
+        for _ in range(n):
+            step(dt)
+        return time.process_time() - t0
+    sp, cp_step = space._space, lib.cpSpaceStep
+    t0 = time.process_time()
+    for _ in range(n):
+        cp_step(sp, dt)
+    return time.process_time() - t0
+
+
+def time_engine(sc, n: int) -> tuple[float, float]:
+    eng = PymunkEngine.from_scenario(sc)
+    t0 = time.process_time()
+    eng.step(n)
+    t1 = time.process_time()
+    eng.probes()
+    return t1 - t0, time.process_time() - t1
+
+
+def main() -> None:
+    ap = argparse.ArgumentParser(description=__doc__.splitlines()[0])
+    ap.add_argument("--sides", type=int, default=64)
+    ap.add_argument("--seconds", type=float, default=2.0, help="simulated seconds per timing")
+    ap.add_argument("--repeats", type=int, default=7)
+    args = ap.parse_args()
+    sc = scenario_from_dict(cart(args.sides, args.seconds))
+    n = int(round(args.seconds / sc.run.timestep_s))
+    eng = PymunkEngine.from_scenario(sc)
+    w = eng.world
+    n_static = sum(1 for s in w.space.shapes if s.body.body_type == s.body.STATIC)
+    print(f"two-axle cart, {args.sides}-gon wheels ({w.wheel_pieces} pieces each), {n_static} track"
+          f" shapes, dt = {sc.run.timestep_s * 1e3:g} ms, iterations {sc.run.iterations},"
+          f" {n} steps per timing, least of {args.repeats}")
+    raw, wrap, eng_t, post_t = [], [], [], []
+    for _ in range(args.repeats):
+        raw.append(time_raw(sc, n, False))
+        wrap.append(time_raw(sc, n, True))
+        e, p = time_engine(sc, n)
+        eng_t.append(e)
+        post_t.append(p)
+    raw, wrap, eng_t, post_t = min(raw), min(wrap), min(eng_t), min(post_t)
+    sim_s = n * sc.run.timestep_s
+    for label, t in (("raw cpSpaceStep loop", raw), ("pymunk Space.step loop", wrap),
+                     ("engine (probes, drive, guards)", eng_t),
+                     ("engine + probe post-processing", eng_t + post_t)):
+        print(f"  {label:34s} {n / t:10.0f} steps/s  {1e6 * t / n:7.2f} us/step"
+              f"  {sim_s / t:7.1f}x real time")
+    print(f"  overhead of probes+controller over raw C stepping: {100 * (eng_t / raw - 1):6.1f} %"
+          " (target <= 25 %)")
+    total = 100 * ((eng_t + post_t) / raw - 1)
+    print(f"  ... including post-processing:                      {total:6.1f} %")
+    print(f"  engine vs pymunk Space.step loop:                  {100 * (eng_t / wrap - 1):6.1f} %")
+    print(f"  real-time factor of the engine: {sim_s / (eng_t + post_t):.1f}x (target >= 50x)")
+
+
+if __name__ == "__main__":
+    main()

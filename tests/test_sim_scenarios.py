@@ -1,0 +1,230 @@
+"""Whole simulations: square wheels on their track, the demo scenarios, drives, guard rails.
+
+References: a square wheel rolls on inverted catenaries with its axle level (Hall & Wagon,
+"Roads and Wheels", Mathematics Magazine 65(5):283-301, 1992); the flank of those arches
+slopes at 45 degrees at the cusps, so rolling needs friction of at least tan(pi/4) = 1 there
+(the contact force is vertical at steady speed); at constant shaft speed the ground speed is
+``v = r(theta) omega``, so a regular n-gon surges by ``sec(pi/n)`` (REFERENCES.md, derived
+from ``dx = r dtheta``); energy conservation: with no losses the mean shaft torque over whole
+periods of a steady ride is zero. The analytic model of ``ridesim.assess.analytic`` is an
+independent closed-form computation of the same loads.
+"""
+
+import math
+
+import numpy as np
+import pytest
+
+from ridesim.errors import SimulationError
+from ridesim.io.build import solve_scenario, wheel_mass
+from ridesim.io.scenario import load_scenario, scenario_from_dict
+from ridesim.metrics import ride, simulate
+from ridesim.sim.run import PymunkEngine
+from ridesim.sim.world import STANDARD_GRAVITY_M_S2 as G
+
+A = 0.3
+DEMOS = ["hexagon_trolley", "ellipse_pull_toy", "wave_track_sculpture"]
+
+
+def square(mu, seconds=2.0, **vehicle):
+    v = {"body_mass_kg": 10.0, "axles": 1}
+    v.update(vehicle)
+    return scenario_from_dict({
+        "wheel": {"shape": "polygon", "sides": 4, "apothem_m": A},
+        "vehicle": v,
+        "drive": {"mode": "speed", "speed_m_s": 0.5},
+        "surface": {"friction": mu},
+        "run": {"duration_s": seconds, "timestep_s": 0.001, "settle_s": min(0.5, 0.5 * seconds)},
+    })
+
+
+def test_square_wheel_with_ample_friction_rides_level_without_slip():
+    # mu = 1.5 is 50 % above the demand tan(pi/4) = 1 at the cusps.
+    r = simulate(square(1.5))
+    assert r.axle_bounce_m < 0.01 * A
+    assert r.slip_onset_time_s is None
+    assert not r.contact_lost
+    np.testing.assert_allclose(r.speed["mean_m_s"], 0.5, rtol=0.01)
+
+
+def test_square_wheel_slips_below_the_cusp_friction():
+    # mu = 0.5 is half of tan(pi/4): the wheel cannot climb out of a cusp without slipping.
+    r = simulate(square(0.5))
+    assert r.slip_onset_time_s is not None
+    assert r.max_slip_speed_m_s > 10 * r.slip_threshold_m_s
+
+
+def test_two_axle_square_cart_stays_level():
+    # Wheelbase of two track periods: both wheels in the same phase, so the body neither pitches
+    # nor bounces more than one wheel alone.
+    r = simulate(square(1.5, axles=2, wheelbase_m=2 * 2 * A * math.asinh(1.0)))
+    assert r.axle_bounce_m < 0.01 * A
+    assert np.ptp(r.probes.pitch_rad[ride.settled(r.probes)]) < 1e-3
+    assert r.slip_onset_time_s is None
+
+
+@pytest.mark.parametrize("name", DEMOS)
+def test_demo_scenarios_run_briefly_with_finite_metrics(name):
+    sc = load_scenario(f"scenarios/{name}.toml").replace_many({"run.duration_s": 1.0,
+                                                               "run.settle_s": 0.3})
+    r = simulate(sc)
+    d = r.to_dict()
+    for key in ("axle_bounce_m",):
+        assert math.isfinite(d[key])
+    assert math.isfinite(d["slip"]["max_slip_speed_m_s"])
+    assert all(math.isfinite(d["torque"][k]) for k in ("peak_Nm", "rms_Nm", "peak_raw_Nm"))
+    assert all(math.isfinite(d["speed"][k]) for k in ("mean_m_s", "final_m_s"))
+    assert d["steps"] == 1000
+    assert d["axle_bounce_m"] < 0.05 * sc_r_min(sc)
+
+
+def sc_r_min(sc):
+    return solve_scenario(sc).wheel.extremes()[0]
+
+
+@pytest.mark.parametrize("name", DEMOS)
+def test_torque_against_the_analytic_model(name):
+    """Shaft torque over the track period at steady speed, simulated and analytic.
+
+    The simulated torque (10 ms average) is averaged in 40 bins of the vehicle's position
+    within a track period over three or more periods; the analytic torque is binned the same
+    way. Two parts are compared:
+
+    * the fluctuation (RMS about the mean): within 10 %;
+    * the mean. Energy conservation puts the analytic mean at zero; the engine loses a
+      little energy at its contacts (the solver hands the load between the straight pieces of
+      track and wheel outlines with small inelastic impulses, and the contact friction creeps
+      by a fraction of a millimetre per second). That loss shows as a small positive mean
+      torque, an equivalent rolling-resistance coefficient of 0.001 to 0.006 on these demos,
+      bounded here by 0.01 (mean torque below 0.01 x wheel load x mean radius): no more than
+      a car tyre on concrete, 0.01 to 0.015 (REFERENCES.md, engineering tables).
+    """
+    from ridesim.assess.analytic import analyze_cycle
+
+    sc = load_scenario(f"scenarios/{name}.toml")
+    pair = solve_scenario(sc)
+    P = pair.track.period
+    v = sc.drive.speed_m_s
+    settle = 1.0
+    duration = settle + max(3.0 * P / v, 2.0)
+    sc = sc.replace_many({"drive.accel_m_s2": 0.0, "run.duration_s": round(duration, 3),
+                          "run.settle_s": settle})
+    mp = wheel_mass(sc, pair.wheel)
+    an = analyze_cycle(pair, vehicle=sc.vehicle, surface=sc.surface, wheel_mass=mp, drive=sc.drive)
+    eng = PymunkEngine.from_scenario(sc, pair)
+    p = eng.run()
+    m = ride.settled(p)
+    axle = an.driven[0]
+    shaft = [i for i, ax in enumerate(p.shaft_axles) if axle in ax][0]
+    xs = np.mod(p.axle_x_m[m, axle] - eng.world.offsets_m[axle], P)
+    ts = ride.moving_average(p.shaft_torque_Nm[:, shaft], 10)[m]
+    xa = np.mod(an.x_m, P)
+    ta = an.torque_Nm[axle]
+    bins = np.linspace(0.0, P, 41)
+    sim_b = np.array([ts[(xs >= a) & (xs < b)].mean() for a, b in zip(bins[:-1], bins[1:], strict=True)])
+    an_b = np.array([ta[(xa >= a) & (xa < b)].mean() for a, b in zip(bins[:-1], bins[1:], strict=True)])
+    np.testing.assert_allclose(np.std(sim_b), np.std(an_b), rtol=0.10)
+    np.testing.assert_allclose(an.torque_mean_Nm, 0.0, atol=1e-9)
+    weight = (eng.world.body_mass_kg + len(eng.world.wheels) * mp.mass_kg) * G
+    r_mean = pair.revolution_length / (2 * math.pi)
+    share = weight / len(eng.world.wheels) * len(p.shaft_axles[shaft])
+    assert 0.0 <= float(np.mean(ts)) < 0.01 * share * r_mean
+
+
+def test_constant_shaft_speed_surges_by_sec_pi_over_n():
+    n, a, w = 6, 0.12, 3.0
+    sc = scenario_from_dict({
+        "wheel": {"shape": "polygon", "sides": n, "apothem_m": a},
+        "vehicle": {"body_mass_kg": 5.0, "axles": 1},
+        "drive": {"mode": "shaft_speed", "shaft_speed_rad_s": w, "max_torque_Nm": 50.0},
+        "surface": {"friction": 1.2},
+        "run": {"duration_s": 1.5, "settle_s": 0.3},
+    })
+    r = simulate(sc)
+    v = ride.moving_average(r.probes.speed_m_s, 5)[ride.settled(r.probes)]
+    # v = r omega between r_min = a and r_max = a sec(pi/n); 5-step averaging and the rounded
+    # corners trim the extremes slightly.
+    np.testing.assert_allclose(v.max() / v.min(), 1.0 / math.cos(math.pi / n), rtol=0.02)
+    np.testing.assert_allclose(v.min(), a * w, rtol=0.02)
+    # The motor holds the shaft speed within its torque limit; at the cusps, where a corner
+    # seats, it yields by up to about 1 % for a step or two.
+    rate = r.probes.wheel_rate_rad_s[ride.settled(r.probes), 0]
+    np.testing.assert_allclose(rate.mean(), w, rtol=1e-3)
+    np.testing.assert_allclose(rate, w, rtol=0.02)
+
+
+def test_coupled_axles_turn_as_one_shaft():
+    P = 2 * A * math.asinh(1.0)
+    sc = square(1.5, seconds=1.0, axles=2, wheelbase_m=1.5 * P, coupled=True)
+    r = simulate(sc)
+    ang = r.probes.wheel_angle_rad
+    d = ang[:, 1] - ang[:, 0]
+    np.testing.assert_allclose(d, d[0], atol=1e-4)
+    assert r.probes.shaft_axles == ((0, 1),)
+    assert any("common shaft" in c for c in r.cautions)
+
+
+def test_progress_is_reported_up_to_one():
+    seen = []
+    simulate(square(1.5, seconds=0.5), progress=seen.append)
+    assert seen and seen[-1] == pytest.approx(1.0)
+    assert all(b >= a for a, b in zip(seen, seen[1:], strict=False))
+
+
+def test_tunnelling_stops_with_a_fix_in_the_message():
+    # A 50 kg body on a 2 cm wheel, 20 ms steps and 2 solver iterations: the wheel sinks through.
+    sc = scenario_from_dict({
+        "wheel": {"shape": "circle", "radius_m": 0.02},
+        "vehicle": {"body_mass_kg": 50.0, "axles": 1},
+        "drive": {"mode": "torque", "torque_Nm": 1.0},
+        "surface": {"friction": 1.0},
+        "run": {"duration_s": 1.0, "timestep_s": 0.02, "settle_s": 0.1, "iterations": 2},
+    })
+    with pytest.raises(SimulationError) as info:
+        simulate(sc)
+    msg = str(info.value)
+    assert "\n" not in msg
+    assert "timestep_s" in msg and "iterations" in msg and "through the track" in msg
+
+
+def test_csv_of_a_run(tmp_path):
+    r = simulate(square(1.5, seconds=0.3))
+    path = r.write_csv(tmp_path / "run.csv")
+    data = np.loadtxt(path, delimiter=",", skiprows=1)
+    assert data.shape == (300, len(r.probes.columns()))
+    np.testing.assert_allclose(data[:, 0], r.probes.time_s, rtol=1e-8)
+
+
+def test_rolling_resistance_is_met_by_the_speed_drive():
+    # Rolling resistance F = C_rr N at each wheel (Gillespie, "Fundamentals of Vehicle Dynamics",
+    # 1992 [memory]); on round wheels at steady speed each of n driven shafts supplies
+    # T = C_rr (M g / n) r when the wheels share the load equally.
+    crr, r = 0.02, 0.1
+    sc = scenario_from_dict({
+        "wheel": {"shape": "circle", "radius_m": r},
+        "vehicle": {"body_mass_kg": 6.0, "axles": 2, "wheelbase_m": 0.4},
+        "drive": {"mode": "speed", "speed_m_s": 0.5},
+        "surface": {"friction": 0.8, "rolling_resistance": crr},
+        "run": {"duration_s": 1.5, "settle_s": 0.5},
+    })
+    res = simulate(sc)
+    w = res.probes.info
+    M = 6.0 + 2 * w["wheel_mass_kg"]
+    expected = crr * M * G / 2 * r
+    for t in res.torque:
+        np.testing.assert_allclose(t["mean_Nm"], expected, rtol=0.02)
+    np.testing.assert_allclose(res.speed["mean_m_s"], 0.5, rtol=1e-3)
+
+
+def test_a_wheel_spun_without_grip_stops_the_run():
+    # 20 N m on a 0.1 m wheel with friction 0.1 under a 6 kg cart: the rim can pass at most
+    # 0.1 x 6 x 9.8 x 0.1 = 0.6 N m; the rest spins the wheel up without bound.
+    sc = scenario_from_dict({
+        "wheel": {"shape": "circle", "radius_m": 0.1},
+        "vehicle": {"body_mass_kg": 5.0, "axles": 1},
+        "drive": {"mode": "torque", "torque_Nm": 20.0},
+        "surface": {"friction": 0.1},
+        "run": {"duration_s": 3.0, "settle_s": 0.1},
+    })
+    with pytest.raises(SimulationError, match="without grip"):
+        simulate(sc)
