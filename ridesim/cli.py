@@ -75,7 +75,7 @@ def _cmd_check(sc, args) -> tuple[dict, str]:
 
 
 def _cmd_simulate(sc, args) -> tuple[dict, str]:
-    from ridesim.sim.run import simulate
+    from ridesim.metrics.ride import simulate
 
     progress = None
     if not args.json and sys.stderr.isatty():
@@ -85,6 +85,7 @@ def _cmd_simulate(sc, args) -> tuple[dict, str]:
         progress(1.0)
         sys.stderr.write("\n")
     if args.out:
+        Path(args.out).mkdir(parents=True, exist_ok=True)
         res.write_csv(Path(args.out) / "probes.csv")
     return res.to_dict(), _text_of(res)
 
@@ -242,7 +243,7 @@ def _available() -> dict[str, tuple[Callable, str]]:
     """Commands whose layer is installed (the CLI lists only what works)."""
     import importlib.util
 
-    need = {"check": "ridesim.assess.verdict", "simulate": "ridesim.sim.run"}
+    need = {"check": "ridesim.assess.verdict", "simulate": "ridesim.metrics.ride"}
     out = {}
     for name, entry in _COMMANDS.items():
         mod = need.get(name)

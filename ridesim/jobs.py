@@ -26,7 +26,7 @@ def _check(sc: Scenario, progress=None) -> dict:
 
 
 def _simulate(sc: Scenario, progress=None) -> dict:
-    from ridesim.sim.run import simulate
+    from ridesim.metrics.ride import simulate
 
     return simulate(sc, progress=progress).to_dict()
 

@@ -36,7 +36,7 @@ import numpy as np
 
 from ridesim.errors import InputError
 
-__all__ = ["MotorSizing", "GearCheck", "duty_profile", "size_motor", "CAUTIONS"]
+__all__ = ["MotorSizing", "GearCheck", "TorqueModel", "duty_profile", "size_motor", "CAUTIONS"]
 
 G = 9.80665
 #: Assumed start acceleration [m/s^2] when a scenario gives none (flagged in the cautions).
@@ -233,6 +233,73 @@ def _profiles(pair, sc, mp, v_top: float, a_ref: float):
     return c1, T0, T1, T2
 
 
+class TorqueModel:
+    """Per-driven-shaft torque ``T0(x) + v² T2(x) + a T1(x)`` from the analytic cycle.
+
+    Parameters
+    ----------
+    pair : RollingPair
+        The solved pair.
+    sc : Scenario
+        Vehicle, surface and drive.
+    mp : MassProperties
+        One wheel's mass properties.
+    v_ref_m_s : float
+        Reference speed [m/s] for the fits (> 0).
+    a_ref_m_s2 : float
+        Reference acceleration [m/s^2] for the fits (> 0).
+    """
+
+    def __init__(self, pair, sc, mp, v_ref_m_s: float, a_ref_m_s2: float) -> None:
+        from ridesim.model.vehicle import axle_offsets_m
+
+        self.pair = pair
+        self.cycle, self.T0, self.T1, self.T2 = _profiles(pair, sc, mp, v_ref_m_s, a_ref_m_s2)
+        self.offsets = axle_offsets_m(sc.vehicle.axles, sc.vehicle.wheelbase_m)
+        self.m_total = sc.vehicle.body_mass_kg + sc.vehicle.axles * mp.mass_kg
+        L = pair.revolution_length
+        self.L = L
+        self._tables = []
+        for i in self.cycle.driven:
+            xw = np.mod(self.cycle.wheel_x_m[i], L)
+            order = np.argsort(xw, kind="stable")
+            xs, keep = np.unique(xw[order], return_index=True)
+            self._tables.append((i, xs, order[keep]))
+
+    def along(self, x_m, v_m_s, a_m_s2, *, grade_rad: float = 0.0):
+        """Shaft torque [N m] and shaft speed [rad/s] of each driven wheel along a motion.
+
+        Parameters
+        ----------
+        x_m, v_m_s, a_m_s2 : array_like
+            Chassis-origin position [m], speed [m/s] and acceleration [m/s^2] over time.
+        grade_rad : float
+            Grade [rad] (adds ``M g sin(grade) r / n_driven``).
+
+        Returns
+        -------
+        torque_Nm, shaft_speed_rad_s : ndarray, shape (driven, n)
+        """
+        x = np.asarray(x_m, dtype=float)
+        v = np.broadcast_to(np.asarray(v_m_s, dtype=float), x.shape)
+        a = np.broadcast_to(np.asarray(a_m_s2, dtype=float), x.shape)
+        n_d = len(self._tables)
+        torque = np.empty((n_d, x.size))
+        omega = np.empty_like(torque)
+        for k, (i, xs, idx) in enumerate(self._tables):
+            pos = np.mod(x + self.offsets[i], self.L)
+
+            def at(profile, idx=idx, xs=xs, pos=pos):
+                return np.interp(pos, xs, profile[idx], period=self.L)
+
+            r = self.pair.contact_radius(pos)
+            tq = at(self.T0[i]) + v * v * at(self.T2[i]) + a * at(self.T1[i])
+            tq += self.m_total * G * math.sin(grade_rad) * r / n_d
+            torque[k] = tq
+            omega[k] = v / r
+        return torque, omega
+
+
 def size_motor(sc, *, dt_s: float | None = None) -> MotorSizing:
     """Size the drive for a scenario's duty cycle (per driven wheel shaft).
 
@@ -248,7 +315,6 @@ def size_motor(sc, *, dt_s: float | None = None) -> MotorSizing:
     MotorSizing
     """
     from ridesim.io.build import solve_scenario, wheel_mass
-    from ridesim.model.vehicle import axle_offsets_m
 
     pair = solve_scenario(sc)
     mp = wheel_mass(sc, pair.wheel)
@@ -262,36 +328,17 @@ def size_motor(sc, *, dt_s: float | None = None) -> MotorSizing:
         cautions.append(f"drive.accel_m_s2 is not given: the duty cycle assumes a gentle start"
                         f" at {accel:g} m/s^2; give the real figure, starting torque grows with it")
     brake = float(sc.duty.brake_m_s2) if sc.duty.brake_m_s2 is not None else accel
-    c1, T0, T1, T2 = _profiles(pair, sc, mp, v_top, accel)
-    # Profiles over one revolution, per axle, as functions of the wheel's own track x.
-    L = pair.revolution_length
-    xw = np.mod(c1.wheel_x_m, L)
-    driven = list(c1.driven)
+    model = TorqueModel(pair, sc, mp, v_top, accel)
+    c1 = model.cycle
     period = pair.track.period
     if dt_s is None:
         dt_s = min(0.01, period / (64.0 * v_top))
     t, v, a = duty_profile(v_top, accel, brake, sc.duty.cruise_s, sc.duty.rest_s, dt_s)
     h = t[1] - t[0]
     x = np.cumsum(v) * h - 0.5 * v * h  # position of the chassis origin [m]
-    offsets = axle_offsets_m(sc.vehicle.axles, sc.vehicle.wheelbase_m)
-    m_total = sc.vehicle.body_mass_kg + sc.vehicle.axles * mp.mass_kg
     grade = float(sc.duty.grade_rad)
-    torque = np.empty((len(driven), t.size))
-    omega = np.empty_like(torque)
-    for k, i in enumerate(driven):
-        order = np.argsort(xw[i], kind="stable")
-        xs, keep = np.unique(xw[i][order], return_index=True)
-        idx = order[keep]
-        pos = np.mod(x + offsets[i], L)
-
-        def at(profile, idx=idx, xs=xs, pos=pos):
-            return np.interp(pos, xs, profile[idx], period=L)
-
-        r = pair.contact_radius(pos)
-        tq = at(T0[i]) + v * v * at(T2[i]) + a * at(T1[i])
-        tq += m_total * G * math.sin(grade) * r / len(driven)
-        torque[k] = tq
-        omega[k] = v / r
+    torque, omega = model.along(x, v, a, grade_rad=grade)
+    driven = list(c1.driven)
     # Cruise peaks of the exact cycle (one-sided values at cusps included).
     cruise_peak = float(np.max(np.abs(c1.torque_Nm[driven]))) if sc.duty.cruise_s > 0 else 0.0
     peak = max(float(np.max(np.abs(torque))), cruise_peak)

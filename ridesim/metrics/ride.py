@@ -14,7 +14,6 @@ from __future__ import annotations
 
 import math
 import os
-import tempfile
 from collections.abc import Callable
 from dataclasses import dataclass, field
 from pathlib import Path
@@ -398,6 +397,10 @@ class SimResult:
         See :func:`contact_lost`.
     cautions : list of str
         Safety and fidelity notes.
+    comfort : dict or None
+        ISO 2631-1 ride comfort at the seat point (``weighted_rms_m_s2``, ``vdv_m_s175``,
+        ``crest_factor``, ``band`` and extras), or ``{"unavailable": reason}`` when the record
+        is too short.
     """
 
     probes: Probes
@@ -412,6 +415,7 @@ class SimResult:
     speed: dict
     contact_lost: bool
     cautions: list = field(default_factory=list)
+    comfort: dict | None = None
 
     @classmethod
     def from_probes(cls, probes: Probes, name: str = "", cautions: list | None = None) -> SimResult:
@@ -435,12 +439,17 @@ class SimResult:
         t_on, ax_on, peak = slip_onset(probes, thr)
         notes = list(SAFETY_CAUTIONS) + list(probes.info.get("cautions", [])) + list(cautions or [])
         notes += _model_cautions(probes)
+        comfort = _comfort(probes)
+        for c in comfort.get("cautions", []):
+            # The simulation's own safety cautions already stand first; keep the comfort ones.
+            if c not in notes and not c.startswith("This is not a safety assessment"):
+                notes.append(c)
         return cls(
             probes=probes, name=name, axle_bounce_m=float(np.max(bounce)) if bounce.size else 0.0,
             axle_bounce_per_axle_m=[float(b) for b in bounce], slip_threshold_m_s=thr,
             slip_onset_time_s=t_on, slip_onset_axle=ax_on, max_slip_speed_m_s=peak,
             torque=torque_stats(probes), speed=speed_stats(probes), contact_lost=contact_lost(probes),
-            cautions=notes,
+            cautions=notes, comfort={k: v for k, v in comfort.items() if k != "cautions"},
         )
 
     def to_dict(self) -> dict:
@@ -480,6 +489,7 @@ class SimResult:
             "torque": top,
             "speed": dict(self.speed),
             "contact_lost": bool(self.contact_lost),
+            "comfort": dict(self.comfort) if self.comfort is not None else None,
             "steps": int(self.probes.steps),
             "sim_time_s": float(self.probes.steps * self.probes.dt_s),
             "timestep_s": float(self.probes.dt_s),
@@ -489,6 +499,36 @@ class SimResult:
             "wheel_polygon_error_m": info.get("wheel_polygon_error_m"),
             "cautions": list(self.cautions),
         })
+
+    def to_text(self) -> str:
+        """Readable summary for the command line."""
+        d = self.to_dict()
+        sl, sp, tq = d["slip"], d["speed"], d["torque"]
+        onset = ("none" if sl["onset_time_s"] is None else
+                 f"at {sl['onset_time_s']:.3f} s on axle {sl['onset_axle']}")
+        lines = [
+            f"{self.name}: simulated {d['sim_time_s']:.3g} s in {d['steps']} steps of"
+            f" {1000 * d['timestep_s']:.3g} ms ({d['engine']})",
+            f"axle bounce:  {1000 * d['axle_bounce_m']:.3f} mm peak to peak after"
+            f" {d['settle_s']:g} s",
+            f"slip:         {onset} (largest slip speed {1000 * sl['max_slip_speed_m_s']:.2f} mm/s,"
+            f" threshold {1000 * sl['threshold_m_s']:.1f} mm/s)",
+            f"torque:       peak {tq['peak_Nm']:.4g} N m (raw {tq['peak_raw_Nm']:.4g}),"
+            f" r.m.s. {tq['rms_Nm']:.4g} N m per driven shaft",
+            f"speed:        mean {sp['mean_m_s']:.4g} m/s, final {sp['final_m_s']:.4g} m/s,"
+            f" ripple {sp['ripple_pct'] if sp['ripple_pct'] is None else round(sp['ripple_pct'], 3)} %",
+            f"contact lost: {'yes' if d['contact_lost'] else 'no'}",
+        ]
+        c = d.get("comfort") or {}
+        if "weighted_rms_m_s2" in c:
+            lines.append(f"comfort:      seat a_w {c['weighted_rms_m_s2']:.3g} m/s^2 (ISO 2631-1 Wk),"
+                         f" VDV {c['vdv_m_s175']:.3g} m/s^1.75, crest factor"
+                         f" {c['crest_factor']:.3g}: {c['band']}")
+        elif c:
+            lines.append(f"comfort:      not evaluated ({c.get('unavailable', '')})")
+        lines.append("cautions:")
+        lines.extend(f"  - {x}" for x in d["cautions"])
+        return "\n".join(lines)
 
     def write_csv(self, path: str | os.PathLike) -> Path:
         """Write the probe time series as CSV, atomically (temporary file, then rename).
@@ -503,21 +543,30 @@ class SimResult:
         Path
             The written file.
         """
-        path = Path(path)
+        import io
+
+        from ridesim.io.results import write_text_atomic
+
         cols = self.probes.columns()
         names = list(cols)
         data = np.column_stack([np.asarray(cols[k], dtype=float) for k in names])
-        fd, tmp = tempfile.mkstemp(prefix=f".{path.name}.", suffix=".tmp", dir=path.parent or ".")
-        try:
-            with os.fdopen(fd, "w", encoding="utf-8", newline="") as fh:
-                fh.write(",".join(names) + "\n")
-                np.savetxt(fh, data, delimiter=",", fmt="%.9g")
-            os.replace(tmp, path)
-        except BaseException:
-            if os.path.exists(tmp):
-                os.unlink(tmp)
-            raise
-        return path
+        buf = io.StringIO()
+        buf.write(",".join(names) + "\n")
+        np.savetxt(buf, data, delimiter=",", fmt="%.9g")
+        return write_text_atomic(path, buf.getvalue())
+
+
+def _comfort(probes: Probes) -> dict:
+    """ISO 2631-1 comfort figures of the seat accelerations (vertical Wk, fore-aft Wd)."""
+    from ridesim.errors import InputError
+    from ridesim.metrics.comfort import comfort_report
+
+    try:
+        rep = comfort_report(probes.seat_ay_m_s2, probes.seat_ax_m_s2, 1.0 / probes.dt_s,
+                             settle_s=probes.settle_s)
+    except InputError as exc:
+        return {"unavailable": " ".join(str(exc).split())}
+    return rep.to_dict()
 
 
 def _finite_or_none(obj):

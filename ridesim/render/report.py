@@ -135,7 +135,7 @@ def write_report(sc, out_dir: str | Path, *, simulate: bool = True, clip_s: floa
                "size_motor": json_ready(size_motor(sc).to_dict())}
     sim = None
     if simulate:
-        from ridesim.sim.run import simulate as run_sim
+        from ridesim.metrics.ride import simulate as run_sim
 
         sim = run_sim(sc)
         figures["simulate"] = json_ready(sim.to_dict())

@@ -87,7 +87,7 @@ def render_scenario(sc, out_dir: str | Path, *, svg: bool = False, simulate: boo
                 f" peak {steady.torque_peak_Nm:.4g} N·m, r.m.s. {steady.torque_rms_Nm:.4g} N·m."))
     frames = None
     if simulate:
-        items_sim, frames = _sim_plots(sc, steady, out, svg, sim_result)
+        items_sim, frames = _sim_plots(sc, steady, out, svg, sim_result, pair, mp)
         items += items_sim
     if clip:
         offsets = tuple(float(o) for o in axle_offsets_m(n_ax, sc.vehicle.wheelbase_m))
@@ -98,39 +98,59 @@ def render_scenario(sc, out_dir: str | Path, *, svg: bool = False, simulate: boo
     return items
 
 
-def _sim_plots(sc, steady, out: Path, svg: bool, res=None):
-    """Simulated torque against the analytic model, axle and seat bounce, comfort spectrum."""
+def _sim_plots(sc, steady, out: Path, svg: bool, res, pair, mp):
+    """Simulated torque against the analytic model, axle heights, seat accelerations, comfort."""
+    from ridesim.errors import InputError
     from ridesim.metrics import comfort as cf
+    from ridesim.metrics.ride import simulate
     from ridesim.render.plots import plot_series, plot_spectrum
-    from ridesim.sim.run import simulate
 
     if res is None:
         res = simulate(sc)
     pr = res.probes
-    t = pr["t_s"]
+    t = pr.time_s
     items = []
     series = {}
-    for k, i in enumerate(steady.driven):
-        series[f"simulated: axle {i}"] = (t, pr["torque_Nm"][:, k])
-    tl = steady.t_s
-    reps = int(np.ceil(t[-1] / tl[-1])) + 1 if tl[-1] > 0 else 1
-    t_rep = np.concatenate([tl + m * tl[-1] for m in range(reps)])
-    series["analytic (steady speed)"] = (t_rep, np.tile(steady.torque_Nm[steady.driven[0]], reps))
-    items.append(plot_series(None, series, out / "torque.png", "shaft torque [N·m]",
-                             "Shaft torque: simulation against the analytic model", svg=svg))
+    for j, axles in enumerate(pr.shaft_axles):
+        series[f"simulated: shaft {j} (axle {', '.join(str(a) for a in axles)})"] = (
+            t, pr.shaft_torque_Nm[:, j])
+    if steady.driven:
+        # The analytic model along the simulated motion: its torque at the chassis's own
+        # position, speed and commanded acceleration (T0 + v^2 T2 + a T1, see metrics.motor).
+        from ridesim.metrics.motor import TorqueModel
+
+        v_cmd = float(sc.drive.speed_m_s)
+        acc = float(sc.drive.accel_m_s2)
+        model = TorqueModel(pair, sc, mp, v_cmd, acc if acc > 0 else 0.1)
+        x_ch = pr.axle_x_m.mean(axis=1)
+        a_cmd = np.where((acc > 0) & (t < v_cmd / acc if acc > 0 else 0.0), acc, 0.0)
+        tq_an, _ = model.along(x_ch, pr.speed_m_s, a_cmd)
+        series["analytic along the simulated motion"] = (t, tq_an[0])
     items.append(plot_series(
-        t, {f"axle {i}": 1000 * pr["axle_y_m"][:, i] for i in range(pr["axle_y_m"].shape[1])}
-        | {"seat": 1000 * (pr["seat_y_m"] - pr["seat_y_m"][0])},
-        out / "bounce.png", "height [mm]", "Axle and seat heights (simulated)", svg=svg))
-    fs = 1.0 / sc.run.timestep_s
+        None, series, out / "torque.png", "shaft torque [N·m]",
+        "Shaft torque: simulation against the analytic model", svg=svg,
+        caption=f"Simulated shaft torque (10 ms average peak {res.to_dict()['torque']['peak_Nm']:.4g}"
+                f" N·m) against the analytic steady-speed torque."))
+    heights = {f"axle {i}": (t, 1000 * pr.axle_y_m[:, i]) for i in range(pr.axle_y_m.shape[1])}
+    items.append(plot_series(
+        None, heights, out / "bounce.png", "axle height [mm]",
+        "Axle heights in the simulation (0 = the ideal axle line)", svg=svg,
+        caption=f"Axle heights over time: bounce {1000 * res.axle_bounce_m:.3f} mm peak to peak"
+                f" after {pr.settle_s:g} s."))
+    items.append(plot_series(
+        None, {"vertical": (t, pr.seat_ay_m_s2), "fore-aft": (t, pr.seat_ax_m_s2)},
+        out / "seat.png", "seat acceleration [m/s²]", "Seat-point acceleration (simulated)",
+        svg=svg, caption="Seat-point acceleration, vertical and fore-aft, gravity excluded."))
     try:
-        spec = cf.spectrum(pr["seat_accel_y_m_s2"], fs, "k", settle_s=sc.run.settle_s)
-        items.append(plot_spectrum(spec.centre_hz, spec.weighted_m_s2, out / "comfort.png",
-                                   title="Seat vibration, one-third octaves, Wk weighted",
-                                   svg=svg))
-    except Exception as exc:  # too short a record for a spectrum: say so in the index
-        items.append((out / "comfort.png", f"no comfort spectrum: {exc}"))
-    frames = {"t_s": t, "axle_x_m": pr["axle_x_m"], "axle_y_m": pr["axle_y_m"],
-              "wheel_angle_rad": pr["wheel_angle_rad"], "pitch_rad": pr["pitch_rad"],
-              "speed_m_s": pr["speed_m_s"]}
+        spec = cf.spectrum(pr.seat_ay_m_s2, 1.0 / pr.dt_s, "k", settle_s=pr.settle_s)
+        items.append(plot_spectrum(
+            spec.centre_hz, {"unweighted": spec.rms_m_s2, "Wk weighted": spec.weighted_rms_m_s2},
+            out / "comfort.png", ylabel="r.m.s. acceleration [m/s²]",
+            title="Seat vibration in one-third octave bands (ISO 2631-1 Wk)", svg=svg,
+            caption="Vertical seat vibration by one-third octave band, unweighted and Wk weighted."))
+    except InputError as exc:
+        items.append((out / "comfort.png", f"no comfort spectrum: {' '.join(str(exc).split())}"))
+    frames = {"t_s": t, "axle_x_m": pr.axle_x_m, "axle_y_m": pr.axle_y_m,
+              "wheel_angle_rad": pr.wheel_angle_rad, "pitch_rad": pr.pitch_rad,
+              "speed_m_s": pr.speed_m_s, "torque_Nm": pr.shaft_torque_Nm[:, 0]}
     return items, frames
