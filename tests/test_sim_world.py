@@ -83,7 +83,9 @@ def test_static_shapes_fill_the_ground_below_the_track_and_nothing_above(name):
         sc, pair, w = demo(name)
     space = w.space
     x0 = float(np.mean(w.offsets_m))
-    xs = np.linspace(x0 - pair.track.period, x0 + 2 * pair.track.period, 701)
+    lo, hi = w.x_range_m  # the built stretch of track (it depends on the run's length)
+    xs = np.linspace(max(x0 - pair.track.period, lo + 0.01), min(x0 + 2 * pair.track.period, hi - 0.01),
+                     701)
     y = pair.track.y(xs)
     flt = pymunk.ShapeFilter(group=99)
 
