@@ -24,9 +24,9 @@ def main() -> None:
     """Write the pictures and the clip into media/ and list their sizes."""
     hexa = load_scenario(ROOT / "scenarios" / "hexagon_trolley.toml")
     with tempfile.TemporaryDirectory() as tmp:
-        items = render_scenario(hexa, tmp, clip=False)
+        items = render_scenario(hexa, tmp, clip=False, simulate=True)
         for path, _ in items:
-            if path.name in ("track.png", "friction.png", "wheel.png"):
+            if path.name in ("track.png", "friction.png", "wheel.png", "torque.png"):
                 shutil.copy(path, MEDIA / f"hexagon_trolley_{path.name}")
     pair = solve_scenario(hexa)
     offsets = tuple(float(o) for o in axle_offsets_m(hexa.vehicle.axles, hexa.vehicle.wheelbase_m))

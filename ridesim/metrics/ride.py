@@ -512,7 +512,8 @@ class SimResult:
             f"axle bounce:  {1000 * d['axle_bounce_m']:.3f} mm peak to peak after"
             f" {d['settle_s']:g} s",
             f"slip:         {onset} (largest slip speed {1000 * sl['max_slip_speed_m_s']:.2f} mm/s,"
-            f" threshold {1000 * sl['threshold_m_s']:.1f} mm/s)",
+            f" threshold {1000 * sl['threshold_m_s']:.1f} mm/s held for"
+            f" {1000 * sl['min_duration_s']:.0f} ms)",
             f"torque:       peak {tq['peak_Nm']:.4g} N m (raw {tq['peak_raw_Nm']:.4g}),"
             f" r.m.s. {tq['rms_Nm']:.4g} N m per driven shaft",
             f"speed:        mean {sp['mean_m_s']:.4g} m/s, final {sp['final_m_s']:.4g} m/s,"
