@@ -80,3 +80,14 @@ def test_mounting_error_costs_bounce_like_the_closed_form():
     pair = rs.track_for(rs.Wheel.polygon(sides=4, apothem=a))
     res = cart_phasing(pair, VehicleSpec(axles=1, coupled=True), phase_offsets_rad=[d])
     assert res.bounce_m >= a * math.tan(d) * math.asinh(math.tan(d)) * 0.99
+
+
+def test_scenario_mounting_error_reaches_the_verdict():
+    from ridesim.assess.verdict import check_scenario
+    from ridesim.io.scenario import load_scenario
+
+    sc = load_scenario("scenarios/hexagon_trolley.toml").replace_many(
+        {"vehicle.coupled": True, "vehicle.phase_offsets_rad": [0.0, 0.02]})
+    d = check_scenario(sc).to_dict()
+    assert d["cart"]["bounce_m"] > 1e-4  # in phase it is below 1e-9 (test above)
+    assert any("mounting errors" in n for n in d["notes"])

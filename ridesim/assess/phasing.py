@@ -315,12 +315,15 @@ def cart_phasing(pair: RollingPair, vehicle, *, speed_m_s: float | None = None,
         if np.any(lifted):
             notes.append("axle(s) " + ", ".join(str(i) for i in np.flatnonzero(lifted))
                          + " lift off the track during the cycle")
+    bounce = float(np.max(np.ptp(heights, axis=1)))
     if vehicle.coupled and np.any(deltas):
-        notes.append("mounting errors on the shared shaft: "
-                     + ", ".join(f"axle {i} {math.degrees(d):+.2f} deg" for i, d in enumerate(deltas)))
+        notes.append("mounting errors on the shared shaft ("
+                     + ", ".join(f"axle {i} {math.degrees(d):+.2f} deg" for i, d in enumerate(deltas))
+                     + f") make the cart bounce {1000 * bounce:.2f} mm and pitch"
+                     f" {math.degrees(float(np.ptp(pitch))):.2f} deg")
     return PhasingResult(
         coupled=bool(vehicle.coupled), wheelbase_periods=wb_periods,
         phase_error_rad=phase_error, x_m=x, axle_height_m=heights, pitch_rad=pitch,
         seat_height_m=seat, load_share=share, lifted=lifted,
-        bounce_m=float(np.max(np.ptp(heights, axis=1))), pitch_range_rad=float(np.ptp(pitch)),
+        bounce_m=bounce, pitch_range_rad=float(np.ptp(pitch)),
         seat_bounce_m=float(np.ptp(seat)), seat_accel_peak_m_s2=seat_acc, notes=tuple(notes))

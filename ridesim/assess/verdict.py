@@ -358,7 +358,7 @@ def check_scenario(sc: Scenario) -> CheckResult:
     # -- several axles: phasing, pitch and seat bounce (quasi-static)
     cart = None
     if veh.axles > 1:
-        cart = cart_phasing(pair, veh, speed_m_s=v)
+        cart = cart_phasing(pair, veh, speed_m_s=v, phase_offsets_rad=veh.phase_offsets_rad)
         for note in cart.notes:
             if "not a whole number" in note:
                 reasons_bounce = (f"; the coupled cart would bounce {1000 * cart.bounce_m:.1f} mm"

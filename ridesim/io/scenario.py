@@ -290,6 +290,9 @@ class VehicleSpec:
         ride metrics report.
     driven_axles : tuple of int or None
         0-based indices of the driven axles; None: all axles.
+    phase_offsets_rad : tuple of float or None
+        Mounting error of each wheel on a shared shaft [rad] (clockwise positive), one per
+        axle; used when ``coupled`` (uncoupled wheels find their own angle by rolling).
     """
 
     body_mass_kg: float = 10.0
@@ -299,6 +302,7 @@ class VehicleSpec:
     coupled: bool = False
     seat_m: Point = (0.0, 0.3)
     driven_axles: tuple[int, ...] | None = None
+    phase_offsets_rad: tuple[float, ...] | None = None
 
     @property
     def driven_axle_indices(self) -> tuple[int, ...]:
@@ -1017,6 +1021,15 @@ def _parse_vehicle(raw: Any) -> VehicleSpec:
                 )
             seen.append(index)
         driven = tuple(seen)
+    phases = None
+    if t.has("phase_offsets_rad"):
+        items = _as_list("vehicle.phase_offsets_rad", t.raw("phase_offsets_rad"),
+                         "a list of angles in rad, one per axle")
+        if len(items) != axles:
+            raise ScenarioError(
+                f"vehicle.phase_offsets_rad must give one angle per axle ({axles}), got {len(items)}"
+            )
+        phases = tuple(_as_float(f"vehicle.phase_offsets_rad[{i}]", v) for i, v in enumerate(items))
     return VehicleSpec(
         body_mass_kg=t.real("body_mass_kg", 10.0, ge=0),
         body_inertia_kg_m2=t.real("body_inertia_kg_m2", None, gt=0),
@@ -1025,6 +1038,7 @@ def _parse_vehicle(raw: Any) -> VehicleSpec:
         coupled=t.boolean("coupled", False),
         seat_m=t.pair("seat_m", (0.0, 0.3)),
         driven_axles=driven,
+        phase_offsets_rad=phases,
     )
 
 
