@@ -62,7 +62,7 @@ from ridesim.model.vehicle import axle_offsets_m
 from ridesim.model.wheel import MassProperties
 from ridesim.solve.pair import RollingPair
 
-__all__ = ["AnalyticResult", "analyze_cycle"]
+__all__ = ["AnalyticResult", "analyze_cycle", "TorqueModel"]
 
 TWO_PI = 2.0 * math.pi
 
@@ -434,3 +434,88 @@ def analyze_cycle(
         shaft_speed_drive_surge=float(rmax / rmin),
         constant_torque_Nm=float(T_const), constant_torque_ripple=ripple_T,
     )
+
+
+def _profiles(pair, sc, mp, v_top: float, a_ref: float):
+    """T0, T1 (per m/s^2), T2 (per (m/s)^2) of each axle over one revolution."""
+    def cyc(v, a):
+        return analyze_cycle(pair, vehicle=sc.vehicle, surface=sc.surface, wheel_mass=mp,
+                             speed_m_s=v, accel_m_s2=a, drive=sc.drive)
+
+    v1, v2 = v_top, 0.5 * v_top
+    c1, c2, c3 = cyc(v1, 0.0), cyc(v2, 0.0), cyc(v1, a_ref)
+    T2 = (c1.torque_Nm - c2.torque_Nm) / (v1 * v1 - v2 * v2)
+    T0 = c1.torque_Nm - v1 * v1 * T2
+    T1 = (c3.torque_Nm - c1.torque_Nm) / a_ref
+    check = cyc(0.75 * v_top, 0.5 * a_ref)
+    model = T0 + (0.75 * v_top) ** 2 * T2 + 0.5 * a_ref * T1
+    scale = max(float(np.max(np.abs(check.torque_Nm))), 1e-12)
+    if float(np.max(np.abs(model - check.torque_Nm))) > 1e-6 * scale:
+        raise InputError("the analytic torque is not linear in acceleration and speed squared"
+                         " for this scenario; motor sizing cannot use it (report this case)")
+    return c1, T0, T1, T2
+
+
+class TorqueModel:
+    """Per-driven-shaft torque ``T0(x) + v² T2(x) + a T1(x)`` from the analytic cycle.
+
+    Parameters
+    ----------
+    pair : RollingPair
+        The solved pair.
+    sc : Scenario
+        Vehicle, surface and drive.
+    mp : MassProperties
+        One wheel's mass properties.
+    v_ref_m_s : float
+        Reference speed [m/s] for the fits (> 0).
+    a_ref_m_s2 : float
+        Reference acceleration [m/s^2] for the fits (> 0).
+    """
+
+    def __init__(self, pair, sc, mp, v_ref_m_s: float, a_ref_m_s2: float) -> None:
+        self.pair = pair
+        self.cycle, self.T0, self.T1, self.T2 = _profiles(pair, sc, mp, v_ref_m_s, a_ref_m_s2)
+        self.offsets = axle_offsets_m(sc.vehicle.axles, sc.vehicle.wheelbase_m)
+        self.m_total = sc.vehicle.body_mass_kg + sc.vehicle.axles * mp.mass_kg
+        L = pair.revolution_length
+        self.L = L
+        self._tables = []
+        for i in self.cycle.driven:
+            xw = np.mod(self.cycle.wheel_x_m[i], L)
+            order = np.argsort(xw, kind="stable")
+            xs, keep = np.unique(xw[order], return_index=True)
+            self._tables.append((i, xs, order[keep]))
+
+    def along(self, x_m, v_m_s, a_m_s2, *, grade_rad: float = 0.0):
+        """Shaft torque [N m] and shaft speed [rad/s] of each driven wheel along a motion.
+
+        Parameters
+        ----------
+        x_m, v_m_s, a_m_s2 : array_like
+            Chassis-origin position [m], speed [m/s] and acceleration [m/s^2] over time.
+        grade_rad : float
+            Grade [rad] (adds ``M g sin(grade) r / n_driven``).
+
+        Returns
+        -------
+        torque_Nm, shaft_speed_rad_s : ndarray, shape (driven, n)
+        """
+        x = np.asarray(x_m, dtype=float)
+        v = np.broadcast_to(np.asarray(v_m_s, dtype=float), x.shape)
+        a = np.broadcast_to(np.asarray(a_m_s2, dtype=float), x.shape)
+        n_d = len(self._tables)
+        torque = np.empty((n_d, x.size))
+        omega = np.empty_like(torque)
+        for k, (i, xs, idx) in enumerate(self._tables):
+            pos = np.mod(x + self.offsets[i], self.L)
+
+            def at(profile, idx=idx, xs=xs, pos=pos):
+                return np.interp(pos, xs, profile[idx], period=self.L)
+
+            r = self.pair.contact_radius(pos)
+            tq = at(self.T0[i]) + v * v * at(self.T2[i]) + a * at(self.T1[i])
+            tq += self.m_total * G_STANDARD_M_S2 * math.sin(grade_rad) * r / n_d
+            torque[k] = tq
+            omega[k] = v / r
+        return torque, omega

@@ -116,8 +116,8 @@ def _sim_plots(sc, steady, out: Path, svg: bool, res, pair, mp):
             t, pr.shaft_torque_Nm[:, j])
     if steady.driven:
         # The analytic model along the simulated motion: its torque at the chassis's own
-        # position, speed and commanded acceleration (T0 + v^2 T2 + a T1, see metrics.motor).
-        from ridesim.metrics.motor import TorqueModel
+        # position, speed and commanded acceleration (T0 + v^2 T2 + a T1, see assess.analytic).
+        from ridesim.assess.analytic import TorqueModel
 
         v_cmd = float(sc.drive.speed_m_s)
         acc = float(sc.drive.accel_m_s2)
