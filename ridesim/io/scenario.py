@@ -239,8 +239,9 @@ class TrackSpec:
         Depth in m of the axle path below which the wheel is closed, given
         instead of ``lobes``.
     height_error_m : float
-        As-built track: standard deviation in m of a random height error at
-        each track node of the simulation (seeded by ``error_seed``).
+        As-built track: standard deviation in m of the random height error of
+        each track section (constant along a section of ``section_length_m``
+        starting at x = 0, seeded by ``error_seed``; used by the simulation).
     error_seed : int
         Seed of the height error draws (same seed, same track).
     joint_step_m : float
@@ -963,7 +964,7 @@ def _track_build_values(t: _Table) -> dict[str, Any]:
         "height_error_m": t.real("height_error_m", 0.0, ge=0),
         "error_seed": t.integer("error_seed", 0, ge=0),
         "joint_step_m": t.real("joint_step_m", 0.0),
-        "section_length_m": t.real("section_length_m", 1.0, gt=0),
+        "section_length_m": t.real("section_length_m", 1.0, ge=0.002),
     }
 
 

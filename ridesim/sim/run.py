@@ -600,6 +600,7 @@ class PymunkEngine(Engine):
         d = self.scenario.drive
         info = {
             "engine": self.name,
+            "as_built": dict(w.as_built),
             "corner_radius_m": w.corner_radius_m,
             "corner_radius_source": w.corner_radius_source,
             "track_polyline_error_m": w.track_error_m,

@@ -39,7 +39,13 @@ Modelling choices, each stated where it is made:
   sits on the chassis, so its reaction acts on the body): a shaft-speed servo
   (``shaft_speed``), a saturated motor giving a set torque (``torque``), or a
   torque set every step by the ground-speed controller of
-  :mod:`ridesim.sim.run` (``speed``), all within ``max_torque_Nm``.
+  :mod:`ridesim.sim.run` (``speed``), all within ``max_torque_Nm``;
+* an as-built build (:class:`ridesim.model.tolerance.AsBuilt`: wheel scale and
+  axle error, track section heights and joint steps) changes the geometry and
+  the wheel's mass properties before any shape is made; each joint step is a
+  1 mm ramp (:data:`JOINT_RAMP_HALF_M`), and the vehicle starts with each wheel
+  just touching the as-built track (:func:`outline_clearance_m`). A nominal
+  build takes none of these paths.
 """
 
 from __future__ import annotations
@@ -52,6 +58,7 @@ import pymunk
 import pymunk.autogeometry
 
 from ridesim.errors import GeometryError, InputError
+from ridesim.model.tolerance import AsBuilt, joint_positions_m
 from ridesim.model.vehicle import axle_offsets_m
 
 __all__ = [
@@ -69,6 +76,9 @@ __all__ = [
     "build_world",
     "track_shapes",
     "travel_bounds_m",
+    "JOINT_RAMP_HALF_M",
+    "as_built_track_vertices",
+    "outline_clearance_m",
 ]
 
 STANDARD_GRAVITY_M_S2 = 9.80665
@@ -87,6 +97,15 @@ pentagon and hexagon wheels. The price is the dip at each cusp, about
 
 SLOP_M = 1e-3
 """Allowed contact overlap [m]: pymunk's default 0.1 means 10 cm at metre scale."""
+
+JOINT_RAMP_HALF_M = 5e-4
+"""Half-width [m] of the ramp that stands for a step at an as-built track joint.
+
+A step is built as a straight ramp from ``joint - 0.5 mm`` to ``joint + 0.5 mm`` (track nodes
+are put at both ends and none in between but the track's own kinks), so that it stays a short
+steep rise rather than a slope smeared over a chord of the nominal track (up to half the least
+wheel radius long where the track is nearly straight).
+"""
 
 _VEHICLE_GROUP = 1  # shape filter group: vehicle shapes never collide with each other
 _HUGE_RATE_RAD_S = 1e6  # torque-mode motor target: never reached, so the motor stays saturated
@@ -177,7 +196,7 @@ class World:
     track_error_m : float
         Largest measured gap [m] between the polyline and the ideal track.
     wheel_outline_m : ndarray, shape (K, 2)
-        Wheel polygon [m] in the axle frame (before corner rounding).
+        Wheel polygon [m] in the axle frame, as built (before corner rounding).
     wheel_error_m : float
         Largest measured gap [m] between the wheel polygon and the rim (0 for polygon wheels).
     wheel_pieces : int
@@ -195,7 +214,7 @@ class World:
     body_inertia_estimated : bool
         True when the chassis inertia was estimated (not given).
     r_min_m, r_max_m : float
-        Least and greatest rim radius [m].
+        Least and greatest rim radius [m] of the wheel as built (about its as-built axle).
     x_range_m : tuple of float
         Track start and end [m].
     r_mean_m : float
@@ -210,6 +229,11 @@ class World:
         True when the chassis is held level (one-axle vehicle).
     gravity_m_s2 : tuple of float
         Gravity vector [m/s^2] used.
+    as_built : dict
+        Manufacturing errors applied (:meth:`ridesim.model.tolerance.AsBuilt.to_dict`, with
+        ``is_nominal``) and, for an as-built build, what they did: ``track_joints`` (joints
+        built), ``track_step_max_m`` (largest joint step), ``start_lift_m`` (per axle: height
+        of the start pose above the nominal one) and ``start_pitch_rad``.
     """
 
     space: pymunk.Space
@@ -240,6 +264,7 @@ class World:
     rolling_torque_Nm: float
     pitch_held: bool
     gravity_m_s2: tuple[float, float]
+    as_built: dict = field(default_factory=dict)
 
 
 # ----------------------------------------------------------------------------- space
@@ -604,6 +629,207 @@ def wheel_pieces(v: np.ndarray, corner: np.ndarray, corner_radius_m: float,
     return pieces, 0.0
 
 
+# ----------------------------------------------------------------------------- as built
+
+
+def as_built_track_vertices(xy: np.ndarray, track, as_built: AsBuilt,
+                            ramp_half_m: float = JOINT_RAMP_HALF_M) -> tuple[np.ndarray, np.ndarray]:
+    """Track polyline of the as-built track: section heights added, a short ramp at each joint.
+
+    Nodes are put at ``joint -+ ramp_half_m`` on the nominal curve, the nominal nodes strictly
+    between them are dropped (the track's kinks excepted), and every node is raised by its
+    section's height error (:meth:`ridesim.model.tolerance.AsBuilt.track_error_m`). Within a
+    section the as-built track is the nominal one shifted by a constant, so each chord keeps
+    its gap to the (shifted) curve: the polyline error budget is unchanged outside the ramps.
+
+    Parameters
+    ----------
+    xy : ndarray, shape (M, 2)
+        Nominal polyline vertices [m], x increasing (:func:`track_vertices`).
+    track : ridesim.model.track.Track
+        The nominal track (for heights at the new nodes and its kinks).
+    as_built : AsBuilt
+        The track errors.
+    ramp_half_m : float
+        Half-width [m] of each joint ramp.
+
+    Returns
+    -------
+    xy : ndarray, shape (M', 2)
+        As-built vertices [m].
+    joints_x_m : ndarray
+        The joints [m] built (those whose ramp lies within the polyline).
+    """
+    L = float(as_built.section_length_m)
+    h = float(ramp_half_m)
+    if L < 4.0 * h:
+        raise InputError(
+            f"track.section_length_m = {L:g} m is too short: each joint is built as a"
+            f" {2e3 * h:g} mm ramp, so sections must be at least {4e3 * h:g} mm long;"
+            " lengthen section_length_m"
+        )
+    x = xy[:, 0]
+    joints = joint_positions_m(float(x[0]) + h, float(x[-1]) - h, L)
+    keep = np.ones(len(x), dtype=bool)
+    if len(joints):
+        jj = np.searchsorted(joints, x)
+        near = np.minimum(np.abs(x - joints[np.clip(jj - 1, 0, len(joints) - 1)]),
+                          np.abs(x - joints[np.clip(jj, 0, len(joints) - 1)]))
+        keep = near >= h
+        kinks = np.asarray(track.kinks, dtype=float)
+        if len(kinks) and not np.all(keep):
+            P = float(track.period)
+            d = np.mod(x[:, None] - kinks[None, :] + 0.5 * P, P) - 0.5 * P
+            keep |= np.any(np.abs(d) <= 1e-9 * P, axis=1)
+    xs = np.concatenate([x[keep], joints - h, joints + h])
+    ys = np.concatenate([xy[keep, 1], track.y(joints - h), track.y(joints + h)])
+    xs, first = np.unique(xs, return_index=True)
+    ys = ys[first] + as_built.track_error_m(xs)
+    return np.column_stack([xs, ys]), joints
+
+
+def outline_clearance_m(outline_m: np.ndarray, track_xy_m: np.ndarray, x_m, y_m, theta_rad) -> np.ndarray:
+    """Least vertical gap [m] between posed wheel outlines and a track polyline (< 0: overlap).
+
+    The vertical distance between two piecewise-linear curves is piecewise linear in x with
+    its breaks at the vertices of either, so its least value is found exactly at the outline's
+    vertices (against the track) and at the track's nodes under the wheel (against the
+    outline's lowest crossing at that x).
+
+    Parameters
+    ----------
+    outline_m : ndarray, shape (K, 2)
+        Closed outline [m] about the axle, wheel frame.
+    track_xy_m : ndarray, shape (M, 2)
+        Track polyline [m], x increasing.
+    x_m, y_m : array_like, shape (A,)
+        Axle positions [m].
+    theta_rad : array_like, shape (A,)
+        Clockwise wheel rotations [rad]: a wheel-frame point ``p`` is at ``(x, y) + R(-theta) p``.
+
+    Returns
+    -------
+    ndarray, shape (A,)
+        Least gap [m] per pose.
+    """
+    x = np.atleast_1d(np.asarray(x_m, dtype=float))
+    y = np.atleast_1d(np.asarray(y_m, dtype=float))
+    th = np.atleast_1d(np.asarray(theta_rad, dtype=float))
+    ox, oy = outline_m[:, 0], outline_m[:, 1]
+    tx, ty = track_xy_m[:, 0], track_xy_m[:, 1]
+    c, s = np.cos(th)[:, None], np.sin(th)[:, None]
+    px = x[:, None] + c * ox + s * oy
+    py = y[:, None] - s * ox + c * oy
+    gap = (py - np.interp(px, tx, ty)).min(axis=1)
+    for i in range(len(x)):
+        ax_, ay_ = px[i], py[i]
+        bx_, by_ = np.roll(ax_, -1), np.roll(ay_, -1)
+        sel = (tx >= ax_.min()) & (tx <= ax_.max())
+        X, Y = tx[sel], ty[sel]
+        if not len(X):
+            continue
+        lo, hi = np.minimum(ax_, bx_), np.maximum(ax_, bx_)
+        span = hi > lo
+        ins = (X[None, :] >= lo[:, None]) & (X[None, :] <= hi[:, None]) & span[:, None]
+        dx = np.where(span, bx_ - ax_, 1.0)
+        yw = ay_[:, None] + (X[None, :] - ax_[:, None]) / dx[:, None] * (by_ - ay_)[:, None]
+        low = np.where(ins, yw, np.inf).min(axis=0)
+        gap[i] = min(gap[i], float((low - Y).min()))
+    return gap
+
+
+def _radius_bounds(v: np.ndarray) -> tuple[float, float]:
+    """Least and greatest distance [m] from the origin to a closed polygon's boundary."""
+    a, b = v, np.roll(v, -1, axis=0)
+    e = b - a
+    t = np.clip(-(a * e).sum(axis=1) / np.maximum((e * e).sum(axis=1), 1e-300), 0.0, 1.0)
+    foot = a + t[:, None] * e
+    return float(np.hypot(foot[:, 0], foot[:, 1]).min()), float(np.hypot(v[:, 0], v[:, 1]).max())
+
+
+def _winds_origin(v: np.ndarray) -> bool:
+    """True when a closed polygon winds once around the origin."""
+    ang = np.arctan2(v[:, 1], v[:, 0])
+    d = np.diff(np.concatenate([ang, ang[:1]]))
+    d = (d + math.pi) % (2 * math.pi) - math.pi
+    return abs(float(d.sum())) > math.pi
+
+
+def _as_built_phase(pair, x_axle: np.ndarray, axle_error_m) -> tuple[np.ndarray, np.ndarray]:
+    """Wheel angles [rad] and axle heights [m] of as-built wheels on the nominal wheel's ideal roll.
+
+    The as-built axle ``A`` sits at ``C + R(-theta) e`` from the point ``C`` that was the nominal
+    axle, and the rim rolls ideally when ``C = (x_C, 0)`` with ``theta = wheel_angle(x_C)``. For an
+    axle at ``x_axle`` this gives ``x_C = x_axle - (R(-theta(x_C)) e)_x``, solved by fixed-point
+    iteration (a contraction: its slope is at most ``|e| / r_min``, well below 1).
+    """
+    ex, ey = float(axle_error_m[0]), float(axle_error_m[1])
+    xc = np.array(x_axle, dtype=float)
+    for _ in range(12):
+        th = np.asarray(pair.wheel_angle(xc), dtype=float)
+        xc = x_axle - (np.cos(th) * ex + np.sin(th) * ey)
+    th = np.asarray(pair.wheel_angle(xc), dtype=float)
+    return th, -np.sin(th) * ex + np.cos(th) * ey
+
+
+def _support_line(off: np.ndarray, lift: np.ndarray) -> tuple[float, float]:
+    """Line ``y = a + b off`` on which a rigid chassis rests on wheels that need heights ``lift``.
+
+    The chassis rests on the two wheels whose heights bound the upper convex hull of the
+    points ``(off_i, lift_i)`` across the chassis origin (midway between the end axles, about
+    where the weight acts): every other wheel then hangs at or below its track. Of several
+    such lines (collinear wheels, or a hull corner right at the origin) the least steep is
+    taken.
+    """
+    best = None
+    n = len(off)
+    for i in range(n):
+        for j in range(i + 1, n):
+            if not (off[i] <= 0.0 <= off[j]) or off[j] <= off[i]:
+                continue
+            b = (lift[j] - lift[i]) / (off[j] - off[i])
+            a = lift[i] - b * off[i]
+            if np.all(lift <= a + b * off + 1e-12) and (best is None or abs(b) < abs(best[1])):
+                best = (float(a), float(b))
+    if best is None:  # not reached for offsets on both sides of the origin; a level fallback
+        best = (float(np.max(lift)), 0.0)
+    return best
+
+
+def _as_built_pose(outline, track_xy, pair, offsets, level: bool, axle_error_m, phase_rad=None):
+    """Axle positions, wheel angles, chassis height and pitch of an as-built start pose.
+
+    Each wheel is posed on the ideal roll of the nominal rim (:func:`_as_built_phase`), then
+    lifted or lowered until its outline just touches the as-built track (a scaled wheel or a
+    track section error moves it off that roll); the chassis is set on the two wheels that
+    carry it (:func:`_support_line`; with more than two axles the others may hang slightly),
+    level when ``level``.
+    """
+    off = np.asarray(offsets, dtype=float)
+    extra = np.zeros(len(off)) if phase_rad is None else np.asarray(phase_rad, dtype=float)
+    th, y0 = _as_built_phase(pair, off, axle_error_m)
+    th = th + extra  # mounting errors on a shared shaft (clockwise positive)
+    lift = y0 - outline_clearance_m(outline, track_xy, off, y0, th)
+    if level or len(off) == 1:
+        a, b = float(np.max(lift)), 0.0
+    else:
+        a, b = _support_line(off, lift)
+    if not abs(b) < 0.5:
+        raise GeometryError(
+            f"the as-built track tilts the vehicle by {math.degrees(math.asin(min(abs(b), 1.0))):.0f}"
+            " degrees at the start; check track.height_error_m and joint_step_m (metres)"
+        )
+    beta = math.asin(b)
+    xs = off * math.cos(beta)
+    ys = a + off * b
+    # The pitch moves the axles in by off (1 - cos beta): touch again at the final phases.
+    th, _ = _as_built_phase(pair, xs, axle_error_m)
+    th = th + extra
+    a -= float(outline_clearance_m(outline, track_xy, xs, ys, th).min())
+    ys = a + off * b
+    return xs, ys, th, a, beta
+
+
 # ----------------------------------------------------------------------------- builder
 
 
@@ -678,7 +904,8 @@ def _miter_inset(xy: np.ndarray, r: float) -> np.ndarray:
 
 
 def track_shapes(xy: np.ndarray, clear_m: float, depth_m: float, max_edges: int = 48,
-                 round_fraction: float = 0.9, max_radius_m: float = np.inf):
+                 round_fraction: float = 0.9, max_radius_m: float = np.inf,
+                 joints_x_m: np.ndarray | None = None, joint_half_m: float = 0.0):
     """Static collision shapes for a track polyline: convex blocks on humps, segments in valleys.
 
     Where the polyline bends downwards (over a hump, or straight) the ground below it is
@@ -709,6 +936,12 @@ def track_shapes(xy: np.ndarray, clear_m: float, depth_m: float, max_edges: int 
         over the arcs it jumps only by the short straight remainder of each edge.
     max_radius_m : float
         Largest rounding radius [m].
+    joints_x_m : ndarray, optional
+        x [m] of as-built joint steps: vertices within ``joint_half_m`` of one are left out of
+        the track-wide least radius of curvature (a step's corners would otherwise set the
+        rounding of every hump); their own block is still limited by its edge lengths.
+    joint_half_m : float
+        Half-width [m] of the ramp at each joint.
 
     Returns
     -------
@@ -740,7 +973,15 @@ def track_shapes(xy: np.ndarray, clear_m: float, depth_m: float, max_edges: int 
     polys, segs = [], []
     kappa = np.zeros(len(xy))
     kappa[1:-1] = np.abs(turn[1:-1]) / (0.5 * (L[:-1] + L[1:]))
-    k_hump = float(np.max(kappa[~valley], initial=0.0))
+    if joints_x_m is not None and len(joints_x_m):
+        jx = np.asarray(joints_x_m, dtype=float)
+        jj = np.searchsorted(jx, xy[:, 0])
+        near = np.minimum(np.abs(xy[:, 0] - jx[np.clip(jj - 1, 0, len(jx) - 1)]),
+                          np.abs(xy[:, 0] - jx[np.clip(jj, 0, len(jx) - 1)]))
+        at_joint = near <= joint_half_m * (1.0 + 1e-9) + 1e-12
+        k_hump = float(np.max(kappa[~valley & ~at_joint], initial=0.0))
+    else:
+        k_hump = float(np.max(kappa[~valley], initial=0.0))
     rho_all = round_fraction / k_hump if k_hump > 0 else np.inf
     i = 0
     while i < m:
@@ -773,19 +1014,26 @@ def track_shapes(xy: np.ndarray, clear_m: float, depth_m: float, max_edges: int 
     return polys, segs
 
 
-def _start_speed(scenario, pair, offsets) -> float:
+def _start_speed(scenario, pair, offsets, radius_scale: float = 1.0) -> float:
     """Ground speed [m/s] at t = 0: the drive's own speed, rolling ideally (torque drives start at rest)."""
     d = scenario.drive
     if d.mode == "speed":
         return float(d.speed_m_s) if d.accel_m_s2 == 0 else 0.0
     if d.mode == "shaft_speed":
         ax = scenario.vehicle.driven_axle_indices[0]
-        return float(d.shaft_speed_rad_s or 0.0) * float(pair.contact_radius(float(offsets[ax])))
+        r = float(pair.contact_radius(float(offsets[ax])))
+        if radius_scale != 1.0:
+            r *= radius_scale
+        return float(d.shaft_speed_rad_s or 0.0) * r
     return 0.0
 
 
 def build_world(scenario, pair, mass, options: WorldOptions | None = None) -> World:
     """Build the pymunk world of a scenario and its solved pair, posed on the ideal roll.
+
+    The scenario's manufacturing errors (:class:`ridesim.model.tolerance.AsBuilt`) are
+    applied to the wheel outline, its mass properties and the track; the wheels of an
+    as-built build start just touching the as-built track.
 
     Parameters
     ----------
@@ -794,7 +1042,7 @@ def build_world(scenario, pair, mass, options: WorldOptions | None = None) -> Wo
     pair : RollingPair
         The solved pair (``ridesim.io.build.solve_scenario``).
     mass : MassProperties
-        Mass properties of one wheel (``ridesim.io.build.wheel_mass``).
+        Mass properties of one nominal wheel (``ridesim.io.build.wheel_mass``).
     options : WorldOptions, optional
         Settings not in the scenario (grade, tolerances, corner radius override).
 
@@ -806,6 +1054,8 @@ def build_world(scenario, pair, mass, options: WorldOptions | None = None) -> Wo
     veh, drv, srf, run = scenario.vehicle, scenario.drive, scenario.surface, scenario.run
     wheel = pair.wheel
     r_min, r_max, _ = wheel.extremes()
+    ab = AsBuilt.from_scenario(scenario)
+    wheel_ab, track_ab = not ab.wheel_is_nominal, not ab.track_is_nominal
     gmag = float(opt.gravity_m_s2)
     grav = (gmag * math.sin(opt.grade_rad), -gmag * math.cos(opt.grade_rad))
     space = make_space(run.iterations, grav, opt.collision_slop_m)
@@ -816,6 +1066,25 @@ def build_world(scenario, pair, mass, options: WorldOptions | None = None) -> Wo
     wtol = opt.wheel_tolerance_m if opt.wheel_tolerance_m is not None else tol
     if not (tol > 0 and wtol > 0):
         raise InputError(f"track/wheel tolerance must be > 0 m, got {tol!r}, {wtol!r}")
+
+    # --- wheel outline (pure geometry; shapes are made below)
+    v, werr, corner, k_rim = wheel_outline(wheel, wtol)
+    # Radii of the wheel as built: ranges, guard rails and speed caps use them; tolerances,
+    # corner radius and track shapes keep the nominal ones.
+    r_lo, r_hi = float(r_min), float(r_max)
+    if wheel_ab:
+        # The plate scaled (s^2 mass, s^4 inertia about its centre) and drilled off: explicit
+        # wheel.mass_kg / inertia_kg_m2 are taken as the nominal part's and scaled alike.
+        mass = ab.mass(mass)
+        v = ab.outline(v)
+        werr *= ab.scale
+        k_rim /= ab.scale
+        if not _winds_origin(v):
+            raise GeometryError(
+                f"wheel.axle_error_m = {list(ab.axle_error_m)} m puts the as-built axle outside the"
+                " wheel; give the hole's error from its nominal place (typically under 1e-3 m)"
+            )
+        r_lo, r_hi = _radius_bounds(v)
 
     # --- masses
     n_ax = int(veh.axles)
@@ -837,24 +1106,31 @@ def build_world(scenario, pair, mass, options: WorldOptions | None = None) -> Wo
     else:
         # Estimate: a uniform box spanning the wheels, length wheelbase span + 2 r_max,
         # height 2 r_max: J = m (L^2 + H^2) / 12.
-        L = float(offsets[-1] - offsets[0]) + 2 * r_max
-        j_b, j_est = m_b * (L * L + 4 * r_max * r_max) / 12.0, True
+        L = float(offsets[-1] - offsets[0]) + 2 * r_hi
+        j_b, j_est = m_b * (L * L + 4 * r_hi * r_hi) / 12.0, True
     total_mass = m_b + n_ax * m_w
 
     # --- track
     if opt.travel_m is not None:
         back, fwd = (float(opt.travel_m[0]), float(opt.travel_m[1]))
     else:
-        back, fwd = travel_bounds_m(scenario, r_min, r_max, total_mass, opt.grade_rad, gmag)
-    x_lo = float(offsets[0]) - r_max - back - 0.1 * r_max
-    x_hi = float(offsets[-1]) + r_max + fwd + 0.1 * r_max
+        back, fwd = travel_bounds_m(scenario, r_lo, r_hi, total_mass, opt.grade_rad, gmag)
+    x_lo = float(offsets[0]) - r_hi - back - 0.1 * r_hi
+    x_hi = float(offsets[-1]) + r_hi + fwd + 0.1 * r_hi
     # Nearly straight stretches may use segments up to half the least radius long.
     xy, terr = track_vertices(pair.track, x_lo, x_hi, tol, 0.5 * r_min)
+    joints = None
+    if track_ab:
+        xy, joints = as_built_track_vertices(xy, pair.track, ab)
     static = space.static_body
     # Track shapes need the corner radius: wheel corners meet the track at its valleys.
     cr_guess = _corner_radius(scenario, opt, r_min)
     clear = max(3.0 * cr_guess, 5.0 * opt.collision_slop_m)
-    polys, segs_xy = track_shapes(xy, clear, 0.5 * r_min, max_radius_m=2.0 * r_max)
+    if joints is None:
+        polys, segs_xy = track_shapes(xy, clear, 0.5 * r_min, max_radius_m=2.0 * r_max)
+    else:
+        polys, segs_xy = track_shapes(xy, clear, 0.5 * r_min, max_radius_m=2.0 * r_max,
+                                      joints_x_m=joints, joint_half_m=JOINT_RAMP_HALF_M)
     shapes = []
     for pts, rho in polys:
         sh = pymunk.Poly(static, [(float(a), float(b)) for a, b in pts], radius=rho)
@@ -871,7 +1147,6 @@ def build_world(scenario, pair, mass, options: WorldOptions | None = None) -> Wo
     space.add(*shapes, *segs)
 
     # --- wheel geometry
-    v, werr, corner, k_rim = wheel_outline(wheel, wtol)
     cr, src = cr_guess, _corner_radius_source(scenario, opt)
     if not np.any(corner):
         cr, src = 0.0, "none"
@@ -883,21 +1158,49 @@ def build_world(scenario, pair, mass, options: WorldOptions | None = None) -> Wo
     pieces, poly_r = ([], 0.0) if circle else wheel_pieces(v, corner, cr, wtol, r_smooth)
 
     # --- bodies, posed on the ideal roll
-    v0 = _start_speed(scenario, pair, offsets)
+    if wheel_ab:
+        v0 = _start_speed(scenario, pair, offsets, ab.scale)
+    else:
+        v0 = _start_speed(scenario, pair, offsets)
+    pose = None
+    phase = np.zeros(n_ax)
+    if veh.coupled and n_ax > 1 and veh.phase_offsets_rad is not None:
+        phase = np.asarray(veh.phase_offsets_rad, dtype=float)
+    if wheel_ab or track_ab or np.any(phase):
+        # As built, the ideal pose may overlap the track or hang above it: put every wheel
+        # (with its corners rounded as its collision shapes are) just on the as-built track.
+        if circle:  # the exact circle, not its inscribed polygon (7 nm chord gap at 0.1 m)
+            o = ab.outline(np.array([wheel.shape_offset], dtype=float))[0] if wheel_ab else \
+                np.array(wheel.shape_offset, dtype=float)
+            rc = float(wheel.params["radius_m"]) * (ab.scale if wheel_ab else 1.0)
+            ph = np.linspace(0.0, 2 * math.pi, 8192, endpoint=False)
+            rim = o + rc * np.column_stack([np.cos(ph), np.sin(ph)])
+        else:
+            rim = round_corners(v, corner, cr) if cr > 0 else v
+        pose = _as_built_pose(rim, xy, pair, offsets, n_ax == 1, ab.axle_error_m, phase)
     chassis = pymunk.Body(m_b, j_b)
-    chassis.position = (0.0, 0.0)
+    if pose is None:
+        chassis.position = (0.0, 0.0)
+    else:
+        chassis.angle = pose[4]
+        chassis.position = (0.0, pose[3])
     chassis.velocity = (v0, 0.0)
     space.add(chassis)
     wheels = []
     flt = pymunk.ShapeFilter(group=_VEHICLE_GROUP)
     for i in range(n_ax):
         x = float(offsets[i])
-        theta = float(pair.wheel_angle(x))
+        if pose is None:
+            pos, theta = (x, 0.0), float(pair.wheel_angle(x))
+        else:
+            pos, theta = (float(pose[0][i]), float(pose[1][i])), float(pose[2][i])
         r = float(pair.contact_radius(x))
+        if wheel_ab:
+            r *= ab.scale  # the as-built wheel rolls about that much further per turn
         body = pymunk.Body(m_w, j_cg)
         body.center_of_gravity = com
         body.angle = -theta  # pymunk turns a body about its centre of mass: set the angle first,
-        body.position = (x, 0.0)  # then put the body origin (the axle) in place
+        body.position = pos  # then put the body origin (the axle) in place
         w = -v0 / r  # clockwise when rolling forward
         c, s_ = math.cos(-theta), math.sin(-theta)
         cx, cy = c * com[0] - s_ * com[1], s_ * com[0] + c * com[1]
@@ -907,7 +1210,12 @@ def build_world(scenario, pair, mass, options: WorldOptions | None = None) -> Wo
         shapes = []
         if circle:
             # A circle wheel is one exact circle shape (its centre at the shape origin).
-            sh = pymunk.Circle(body, float(wheel.params["radius_m"]), offset=wheel.shape_offset)
+            if wheel_ab:
+                o = ab.outline(np.array([wheel.shape_offset], dtype=float))[0]
+                sh = pymunk.Circle(body, ab.scale * float(wheel.params["radius_m"]),
+                                   offset=(float(o[0]), float(o[1])))
+            else:
+                sh = pymunk.Circle(body, float(wheel.params["radius_m"]), offset=wheel.shape_offset)
             sh.friction = float(srf.friction)
             sh.elasticity = 0.0
             sh.filter = flt
@@ -938,6 +1246,8 @@ def build_world(scenario, pair, mass, options: WorldOptions | None = None) -> Wo
     # the weight and r the mean contact radius, opposing rotation relative to the chassis.
     xs = np.linspace(0.0, pair.revolution_length, 1025)
     r_mean = float(np.mean(pair.contact_radius(xs[:-1])))
+    if wheel_ab:
+        r_mean *= ab.scale
     rr_torque = float(srf.rolling_resistance) * total_mass * gmag / n_ax * r_mean
     if rr_torque > 0:
         for body in wheels:
@@ -971,6 +1281,20 @@ def build_world(scenario, pair, mass, options: WorldOptions | None = None) -> Wo
         drive.motor_axle.append(ax)
     drive.max_torque_Nm = limit
 
+    rev = pair.revolution_length * ab.scale if wheel_ab else pair.revolution_length
+    as_built = ab.to_dict()
+    if pose is not None:
+        steps = np.zeros(0)
+        if joints is not None and len(joints):
+            h = JOINT_RAMP_HALF_M
+            steps = ab.track_error_m(joints + h) - ab.track_error_m(joints - h)
+        as_built.update({
+            "track_joints": int(len(steps)),
+            "track_step_max_m": float(np.max(np.abs(steps), initial=0.0)),
+            "start_lift_m": [float(y) for y in pose[1]],
+            "start_pitch_rad": float(pose[4]),
+        })
+
     return World(
         space=space, chassis=chassis, wheels=wheels, drive=drive, offsets_m=offsets,
         seat_m=(float(veh.seat_m[0]), float(veh.seat_m[1])), track_xy_m=xy, track_error_m=terr,
@@ -978,9 +1302,9 @@ def build_world(scenario, pair, mass, options: WorldOptions | None = None) -> Wo
         wheel_pieces=1 if circle else len(pieces), corner_radius_m=cr,
         corner_radius_source=src, wheel_mass_kg=m_w, wheel_inertia_kg_m2=j_axle, wheel_com_m=com,
         body_mass_kg=m_b, body_inertia_kg_m2=j_b, body_inertia_estimated=j_est,
-        r_min_m=float(r_min), r_max_m=float(r_max), x_range_m=(x_lo, x_hi),
-        r_mean_m=pair.revolution_length / (2 * math.pi),
-        effective_mass_kg=total_mass + n_ax * j_axle * (2 * math.pi / pair.revolution_length) ** 2,
+        r_min_m=float(r_lo), r_max_m=float(r_hi), x_range_m=(x_lo, x_hi),
+        r_mean_m=rev / (2 * math.pi),
+        effective_mass_kg=total_mass + n_ax * j_axle * (2 * math.pi / rev) ** 2,
         start_speed_m_s=v0,
-        rolling_torque_Nm=rr_torque, pitch_held=pitch_held, gravity_m_s2=grav,
+        rolling_torque_Nm=rr_torque, pitch_held=pitch_held, gravity_m_s2=grav, as_built=as_built,
     )
