@@ -1,6 +1,6 @@
 """Sweep throughput: cases per second with 1 and 2 local workers, and the machinery's overhead.
 
-A 64-case simulate sweep (hexagon trolley, 2 s of simulated time per case,
+A 64-case simulate sweep (hexagon trolley, 6 s of simulated time per case,
 friction and speed varied). Baseline measured in the same run: the same 64 jobs
 called directly, one after another, with no sweep machinery. Overhead = (1-worker
 sweep time - direct time) / direct time.
@@ -27,7 +27,7 @@ def main() -> None:
         tmp = Path(tmp)
         base = tmp / "base.toml"
         base.write_text((ROOT / "scenarios" / "hexagon_trolley.toml").read_text()
-                        .replace("duration_s = 4.0", "duration_s = 2.0\nsettle_s = 0.5"))
+                        .replace("duration_s = 4.0", "duration_s = 6.0\nsettle_s = 1.0"))
         sweep = tmp / "sweep.toml"
         sweep.write_text(f'base = "{base}"\nrun = "simulate"\n[vary]\n'
                          '"surface.friction" = { from = 0.7, to = 1.4, count = 8 }\n'
@@ -45,7 +45,7 @@ def main() -> None:
             times[workers] = time.perf_counter() - t0
             assert out.done == 64 and out.failed == 0
         n = len(plan.cases)
-        print("64-case simulate sweep (2 s simulated per case)")
+        print("64-case simulate sweep (6 s simulated per case)")
         print(f"  direct calls, no sweep machinery : {direct:6.2f} s  {n / direct:6.2f} cases/s")
         for w, t in times.items():
             print(f"  sweep, {w} worker(s)              : {t:6.2f} s  {n / t:6.2f} cases/s")
