@@ -77,6 +77,7 @@ from dataclasses import dataclass
 import numpy as np
 
 from ridesim.errors import InputError
+from ridesim.model.checks import finite as _finite
 from ridesim.model.wheel import MassProperties
 from ridesim.solve.pair import RollingPair
 
@@ -94,19 +95,6 @@ G_STANDARD_M_S2 = 9.80665
 HALF_PI = 0.5 * math.pi
 _GL_ORDER = 16
 _GL_T, _GL_W = np.polynomial.legendre.leggauss(_GL_ORDER)
-
-
-def _finite(name: str, value, *, ge: float | None = None, gt: float | None = None) -> float:
-    if isinstance(value, bool) or not isinstance(value, (int, float, np.integer, np.floating)):
-        raise InputError(f"{name} must be a number, got {value!r}")
-    v = float(value)
-    if not math.isfinite(v):
-        raise InputError(f"{name} must be finite, got {value!r}")
-    if ge is not None and v < ge:
-        raise InputError(f"{name} must be >= {ge:g}, got {value!r}")
-    if gt is not None and v <= gt:
-        raise InputError(f"{name} must be > {gt:g}, got {value!r}")
-    return v
 
 
 def _check_pair(pair) -> None:

@@ -9,7 +9,7 @@ import numpy as np
 
 from ridesim.errors import InputError
 
-__all__ = ["positive", "point"]
+__all__ = ["positive", "point", "finite"]
 
 
 def positive(name: str, value: float) -> float:
@@ -55,3 +55,31 @@ def point(name: str, value: Sequence[float]) -> np.ndarray:
     if p.shape != (2,) or not np.all(np.isfinite(p)):
         raise InputError(f"{name} must be a pair [x, y] of finite numbers in metres, got {value!r}")
     return p
+
+
+def finite(name: str, value, *, ge: float | None = None, gt: float | None = None) -> float:
+    """Return ``value`` as a float after checking it is finite and within the bounds.
+
+    Parameters
+    ----------
+    name : str
+        Parameter name for the message.
+    value : float
+        The value, in the unit its name says.
+    ge, gt : float, optional
+        Lower bounds (inclusive, exclusive).
+
+    Returns
+    -------
+    float
+    """
+    if isinstance(value, bool) or not isinstance(value, (int, float, np.integer, np.floating)):
+        raise InputError(f"{name} must be a number, got {value!r}")
+    v = float(value)
+    if not math.isfinite(v):
+        raise InputError(f"{name} must be finite, got {value!r}")
+    if ge is not None and v < ge:
+        raise InputError(f"{name} must be >= {ge:g}, got {value!r}")
+    if gt is not None and v <= gt:
+        raise InputError(f"{name} must be > {gt:g}, got {value!r}")
+    return v

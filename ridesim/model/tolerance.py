@@ -33,6 +33,7 @@ from dataclasses import dataclass
 import numpy as np
 
 from ridesim.errors import InputError
+from ridesim.model.checks import finite as _finite
 from ridesim.model.wheel import MassProperties
 
 __all__ = [
@@ -48,19 +49,6 @@ __all__ = [
 
 SECTION_SEED_OFFSET = 2**20
 """Added to a section index to make the (non-negative) second seed word of its draw."""
-
-
-def _finite(name: str, value, *, ge: float | None = None, gt: float | None = None) -> float:
-    if isinstance(value, bool) or not isinstance(value, (int, float, np.floating, np.integer)):
-        raise InputError(f"{name} must be a number, got {value!r}")
-    v = float(value)
-    if not math.isfinite(v):
-        raise InputError(f"{name} must be finite, got {value!r}")
-    if ge is not None and v < ge:
-        raise InputError(f"{name} must be >= {ge:g}, got {value!r}")
-    if gt is not None and v <= gt:
-        raise InputError(f"{name} must be > {gt:g}, got {value!r}")
-    return v
 
 
 def _seed(value) -> int:
