@@ -339,6 +339,12 @@ def main(argv: list[str] | None = None) -> int:
     except KeyboardInterrupt:
         print("interrupted", file=sys.stderr)
         return 130
+    except BrokenPipeError:  # output piped into a reader that stopped early (e.g. head)
+        try:
+            sys.stdout = open(os.devnull, "w")  # noqa: SIM115 - silence the flush at exit
+        except OSError:
+            pass
+        return 0
     except Exception as exc:  # pragma: no cover - the last line of defence
         if os.environ.get("RIDESIM_DEBUG"):
             raise

@@ -153,3 +153,12 @@ def test_simulate_json_and_probe_csv_agree(tmp_path):
     a_w = weighted_rms(data["seat_ay_m_s2"], 1000.0, "k", settle_s=1.0)
     # CSV values carry 9 significant digits: agreement to 1e-6 relative.
     assert out["comfort"]["weighted_rms_m_s2"] == pytest.approx(a_w, rel=1e-6)
+
+
+def test_output_into_a_closed_pipe_is_not_an_error():
+    # A reader that stops early (head) closes the pipe: the command ends quietly, exit 0.
+    cmd = (f'"{sys.executable}" -m ridesim.cli solve "{SCENARIOS / "hexagon_trolley.toml"}"'
+           " | head -c 1 >/dev/null; echo ${PIPESTATUS[0]}")
+    r = subprocess.run(["bash", "-c", cmd], capture_output=True, text=True, cwd=ROOT)
+    assert r.stdout.strip() == "0"
+    assert "internal error" not in r.stderr and "Traceback" not in r.stderr
