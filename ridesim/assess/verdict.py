@@ -304,6 +304,13 @@ def check_scenario(sc: Scenario) -> CheckResult:
             " arch, so they clear it only just: wear, flex or a corner radius can make them catch"
             " (square wheels); round the corners slightly and check the track near the cusps"
         )
+    if pair.cusps and not cl.interferes:
+        notes.append(
+            f"the track has {len(pair.cusps)} corner(s) per wheel turn where the contact jumps"
+            " from one face to the next; this model treats them as exact, but a real wheel's"
+            " rounded corners and the impact there add bounce and torque spikes: run"
+            " `ridesim simulate` to see them"
+        )
     spec = sc.wheel
     if spec is not None and spec.corner_radius_m > 0:
         notes.append(f"clearance was checked for sharp corners; the {1000 * spec.corner_radius_m:g}"
