@@ -110,7 +110,13 @@ def _cmd_render(sc, args) -> tuple[dict, str]:
     progress = None
     if not args.json and sys.stderr.isatty():
         progress = _progress_bar("drawing the clip")
-    w, h = (int(v) for v in args.size.lower().split("x")) if args.size else (640, 360)
+    try:
+        w, h = (int(v) for v in args.size.lower().split("x"))
+    except ValueError:
+        raise ScenarioError_(f"--size must be WIDTHxHEIGHT in pixels, e.g. 640x360, got"
+                             f" {args.size!r}") from None
+    if args.seconds <= 0 or args.fps <= 0:
+        raise ScenarioError_(f"--seconds and --fps must be > 0, got {args.seconds} and {args.fps}")
     items = render_scenario(sc, out, svg=args.svg, simulate=args.simulate, clip=not args.no_clip,
                             clip_s=args.seconds, fps=args.fps, size=(w, h),
                             follow=not args.fixed_camera, progress=progress)
