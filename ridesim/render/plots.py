@@ -540,7 +540,9 @@ def render_solver_plots(pair, out_dir: str | Path, *, mass=None, svg: bool = Fal
     out = Path(out_dir)
     return [
         plot_wheel(pair, out / "wheel.png", mass=mass, svg=svg),
-        plot_track(pair, out / "track.png", svg=svg),
+        # A wheel much wider than a period hides the track under overlapping poses: fewer then.
+        plot_track(pair, out / "track.png", svg=svg,
+                   poses=3 if 2 * pair.depth_range()[1] > 1.5 * pair.track.period else 5),
         plot_roll(pair, out / "roll.png", svg=svg),
     ]
 
