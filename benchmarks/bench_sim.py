@@ -86,6 +86,11 @@ def main() -> None:
         e, p = time_engine(sc, n)
         eng_t.append(e)
         post_t.append(p)
+    # Paired ratios (raw and engine timed back to back in each repeat) are steadier than the
+    # ratio of separate minima on a machine whose speed drifts; report their medians too.
+    paired = sorted((e + p) / r for e, p, r in zip(eng_t, post_t, raw, strict=True))
+    paired_eng = sorted(e / r for e, r in zip(eng_t, raw, strict=True))
+    rtf = sorted(args.seconds / (e + p) for e, p in zip(eng_t, post_t, strict=True))
     raw, wrap, eng_t, post_t = min(raw), min(wrap), min(eng_t), min(post_t)
     sim_s = n * sc.run.timestep_s
     for label, t in (("raw cpSpaceStep loop", raw), ("pymunk Space.step loop", wrap),
@@ -99,6 +104,10 @@ def main() -> None:
     print(f"  ... including post-processing:                      {total:6.1f} %")
     print(f"  engine vs pymunk Space.step loop:                  {100 * (eng_t / wrap - 1):6.1f} %")
     print(f"  real-time factor of the engine: {sim_s / (eng_t + post_t):.1f}x (target >= 50x)")
+    mid = len(paired) // 2
+    print(f"  medians of paired repeats: overhead {100 * (paired_eng[mid] - 1):.1f} % (engine),"
+          f" {100 * (paired[mid] - 1):.1f} % (with post-processing); real-time factor"
+          f" {rtf[mid]:.1f}x (range {rtf[0]:.1f}-{rtf[-1]:.1f}x)")
 
 
 if __name__ == "__main__":
