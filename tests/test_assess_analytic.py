@@ -257,3 +257,36 @@ def test_com_on_axle_never_lifts_off():
     assert res.lift_off_speed_m_s is None
     np.testing.assert_allclose(res.normal_load_N[0] * np.sqrt(1 + pair.track.slope(res.x_m) ** 2),
                                (3.0 + 1.0) * G, rtol=1e-12)
+
+
+def test_constant_shaft_speed_torque_on_the_hexagon_closed_form():
+    """Constant shaft speed omega on a regular n-gon: v = omega r, a = omega^2 r dr/dx.
+
+    The wheel's angular acceleration is then zero, so each driven shaft only pushes the
+    vehicle: T = M a r / n_driven = M omega^2 r^2 r' / n_driven, with r = a_p cosh(x/a_p) and
+    r' = sinh(x/a_p) on an arch (Hall & Wagon 1992). Its peak is at the cusp, where
+    cosh = sec(pi/n) and sinh = tan(pi/n):  T_peak = M omega^2 a_p^2 sec^2(pi/n) tan(pi/n) / n_d
+    (derived; no rolling resistance here). The cycle's one-sided nodes at each cusp carry
+    the limit, so the peak is checked to 1e-6.
+    """
+    from ridesim.assess.analytic import shaft_speed_cycle
+    from ridesim.io.build import solve_scenario, wheel_mass
+    from ridesim.io.scenario import scenario_from_dict
+
+    ap, n, om = 0.12, 6, 3.0
+    sc = scenario_from_dict({
+        "wheel": {"shape": "polygon", "sides": n, "apothem_m": ap},
+        "vehicle": {"body_mass_kg": 8.0, "axles": 1},
+        "drive": {"mode": "shaft_speed", "shaft_speed_rad_s": om},
+    })
+    pair = solve_scenario(sc)
+    mp = wheel_mass(sc, pair.wheel)
+    res = shaft_speed_cycle(pair, sc, mp, om)
+    M = 8.0 + mp.mass_kg
+    c, t = 1 / math.cos(math.pi / n), math.tan(math.pi / n)
+    assert res["peak_Nm"] == pytest.approx(M * om**2 * ap**2 * c**2 * t, rel=1e-6)
+    # The figures come from the cycle's quadrature nodes: the nearest to an arch top lies
+    # within half a node spacing h (about 0.4 mm here), where r/a - 1 = (h/a)^2/2 < 1e-5.
+    assert res["speed_min_m_s"] == pytest.approx(om * ap, rel=1e-5)
+    # One-sided nodes sit 1e-10 of a revolution from each cusp.
+    assert res["speed_max_m_s"] == pytest.approx(om * ap * c, rel=1e-6)  # surge sec(pi/n)

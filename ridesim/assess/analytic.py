@@ -62,7 +62,7 @@ from ridesim.model.vehicle import axle_offsets_m
 from ridesim.model.wheel import MassProperties
 from ridesim.solve.pair import RollingPair
 
-__all__ = ["AnalyticResult", "analyze_cycle", "TorqueModel"]
+__all__ = ["AnalyticResult", "analyze_cycle", "TorqueModel", "shaft_speed_cycle"]
 
 TWO_PI = 2.0 * math.pi
 
@@ -519,3 +519,52 @@ class TorqueModel:
             torque[k] = tq
             omega[k] = v / r
         return torque, omega
+
+
+def shaft_speed_cycle(pair: RollingPair, sc, mp: MassProperties, omega_rad_s: float) -> dict:
+    """Shaft torque over one revolution when the drive holds a constant shaft speed.
+
+    The wheels then turn at ``omega`` whatever the contact radius, so the ground speed
+    surges: ``v = omega r(x)`` and ``a = dv/dt = omega^2 r dr/dx`` (rear axle as the
+    reference). The wheel's own angular acceleration is zero, but the whole vehicle is
+    pushed and held back every period; the torque comes from :class:`TorqueModel` at
+    that speed and acceleration, time-weighted (``dt = dx / v``).
+
+    Parameters
+    ----------
+    pair : RollingPair
+        The solved pair.
+    sc : Scenario
+        Vehicle, surface and drive.
+    mp : MassProperties
+        One wheel's mass properties.
+    omega_rad_s : float
+        Shaft speed [rad/s].
+
+    Returns
+    -------
+    dict
+        ``peak_Nm``, ``rms_Nm`` (per driven shaft, worst), ``speed_min_m_s``,
+        ``speed_max_m_s``, ``accel_peak_m_s2``.
+    """
+    off0 = float(axle_offsets_m(sc.vehicle.axles, sc.vehicle.wheelbase_m)[0])
+    r0 = pair.contact_radius(np.array([off0]))[0]
+    model = TorqueModel(pair, sc, mp, float(omega_rad_s * r0), 1.0)
+    # Evaluate at the analytic cycle's own nodes (one-sided values at cusps included), where
+    # the torque profiles are exact rather than interpolated across a cusp's jump.
+    c = model.cycle
+    x, wx = np.asarray(c.x_m, dtype=float), np.asarray(c.weight_m, dtype=float)
+    xr = np.asarray(c.wheel_x_m[0], dtype=float)
+    r = pair.contact_radius(xr)
+    drdx = -pair.track.slope(xr)
+    # One-sided slopes at the duplicated cusp nodes: take them from the neighbouring node.
+    v = omega_rad_s * r
+    a = omega_rad_s**2 * r * drdx
+    torque = np.empty((len(c.driven), x.size))
+    for k, i in enumerate(c.driven):
+        torque[k] = model.T0[i] + v * v * model.T2[i] + a * model.T1[i]
+    w = wx / v  # time spent at each node [s]
+    rms = np.sqrt((torque**2 * w).sum(axis=1) / w.sum())
+    return {"peak_Nm": float(np.max(np.abs(torque))), "rms_Nm": float(np.max(rms)),
+            "speed_min_m_s": float(v.min()), "speed_max_m_s": float(v.max()),
+            "accel_peak_m_s2": float(np.max(np.abs(a)))}

@@ -22,7 +22,7 @@ from dataclasses import dataclass, field
 
 import numpy as np
 
-from ridesim.assess.analytic import AnalyticResult, analyze_cycle
+from ridesim.assess.analytic import AnalyticResult, analyze_cycle, shaft_speed_cycle
 from ridesim.assess.clearance import ClearanceResult, CuspSeat, clearance, cusp_seating
 from ridesim.assess.phasing import cart_phasing
 from ridesim.errors import InputError
@@ -89,6 +89,8 @@ class CheckResult:
         The surface's friction coefficient [-].
     summary : dict
         The pair's solve summary (period, revolution length, depths).
+    shaft_drive : dict or None
+        Constant-shaft-speed drive: torque [N m] and speed surge [m/s] over a revolution.
     cart : dict or None
         Several axles: phase errors [rad], load shares, lifted axles, bounce [m], pitch range
         [rad], seat bounce [m] and seat acceleration [m/s^2] (quasi-static estimate).
@@ -107,6 +109,7 @@ class CheckResult:
     friction_available: float
     summary: dict = field(default_factory=dict)
     cart: dict | None = None
+    shaft_drive: dict | None = None
 
     # ------------------------------------------------------------------ friction summary
     def _friction(self) -> dict:
@@ -168,6 +171,11 @@ class CheckResult:
             if st.chain_torque_peak_Nm is not None:
                 tq["chain_peak_Nm"] = float(st.chain_torque_peak_Nm)
                 tq["chain_rms_Nm"] = _f(st.chain_torque_rms_Nm)
+            if self.shaft_drive is not None:  # the drive's own torque, not the steady-speed one
+                tq = {"peak_Nm": self.shaft_drive["peak_Nm"], "rms_Nm": self.shaft_drive["rms_Nm"],
+                      "peak_steady_speed_Nm": tq["peak_Nm"], "rms_steady_speed_Nm": tq["rms_Nm"],
+                      "mean_Nm": tq["mean_Nm"]}
+                out["shaft_drive"] = dict(self.shaft_drive)
             out["torque"] = tq
             out["lift_off_speed_m_s"] = _f(st.lift_off_speed_m_s)
             out["speed_m_s"] = _f(self.speed_m_s)
@@ -376,6 +384,26 @@ def check_scenario(sc: Scenario) -> CheckResult:
             else:
                 notes.append(note)
 
+    # -- a constant shaft speed makes the cart surge
+    shaft = None
+    if sc.drive.mode == "shaft_speed" and sc.drive.shaft_speed_rad_s:
+        shaft = shaft_speed_cycle(pair, sc, mp, float(sc.drive.shaft_speed_rad_s))
+        surge = analyze_cycle(pair, vehicle=sc.vehicle, surface=sc.surface, wheel_mass=mp,
+                              speed_m_s=shaft["speed_max_m_s"], accel_m_s2=shaft["accel_peak_m_s2"])
+        shaft["mu_peak_bound"] = float(max(surge.mu_peak, steady.mu_peak))
+        if shaft["mu_peak_bound"] > avail:
+            notes.append(f"while surging, the contact may need friction up to"
+                         f" {shaft['mu_peak_bound']:.2f} (bound: peak surge acceleration everywhere),"
+                         f" above the surface's {avail:.2f} (steady speed: {steady.mu_peak:.2f})")
+        notes.append(
+            f"a constant shaft speed of {sc.drive.shaft_speed_rad_s:.3g} rad/s makes the ground speed"
+            f" surge between {shaft['speed_min_m_s']:.3g} and {shaft['speed_max_m_s']:.3g} m/s"
+            f" (up to {shaft['accel_peak_m_s2']:.3g} m/s^2): each driven shaft then needs"
+            f" {shaft['peak_Nm']:.3g} N m peak, {shaft['rms_Nm']:.3g} N m r.m.s., far more than at a"
+            " steady ground speed, plus impacts where the contact jumps; a speed-regulating drive"
+            " avoids it"
+        )
+
     # -- drive
     peak_T = steady.torque_peak_Nm if acc is None else max(steady.torque_peak_Nm, acc.torque_peak_Nm)
     if peak_T > sc.drive.max_torque_Nm:
@@ -398,6 +426,7 @@ def check_scenario(sc: Scenario) -> CheckResult:
                  "depth_max_m": float(pair.depth_range()[1]),
                  "wheel_mass_kg": float(mp.mass_kg), "wheel_inertia_kg_m2": float(mp.inertia_kg_m2)},
         cart=None if cart is None else cart.to_dict(),
+        shaft_drive=shaft,
     )
 
 
