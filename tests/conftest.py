@@ -1,15 +1,23 @@
 """Shared fixtures for the ridesim tests, and the switch that skips slow tests.
 
 Tests marked ``@pytest.mark.slow`` (long simulations, big sweeps) run only when the
-environment variable ``RIDESIM_SLOW=1`` is set; CI leaves it unset.
+environment variable ``RIDESIM_SLOW=1`` is set; CI leaves it unset. With ``CI`` set,
+hypothesis draws its examples deterministically.
 """
 
 import os
 import re
 
 import pytest
+from hypothesis import settings
 
 import ridesim as rs
+
+# In CI the property tests draw the same examples every run (a failure there can be
+# reproduced); locally they explore new random examples each time.
+settings.register_profile("ci", derandomize=True, print_blob=True)
+if os.environ.get("CI"):
+    settings.load_profile("ci")
 
 
 def pytest_collection_modifyitems(config, items):
