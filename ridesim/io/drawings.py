@@ -33,6 +33,7 @@ import numpy as np
 
 from ridesim.errors import InputError
 from ridesim.io.results import write_text_atomic
+from ridesim.model.checks import positive as _positive
 
 __all__ = [
     "CHORD_TOL_M",
@@ -63,15 +64,6 @@ TWO_PI = 2.0 * math.pi
 
 
 # ---------------------------------------------------------------------------- validation
-def _positive(name: str, value: float, unit: str = "m") -> float:
-    if isinstance(value, bool) or not isinstance(value, (int, float, np.integer, np.floating)):
-        raise InputError(f"{name} must be a number in {unit}, got {value!r}")
-    v = float(value)
-    if not math.isfinite(v) or v <= 0:
-        raise InputError(f"{name} must be a finite number > 0 (in {unit}), got {value!r}")
-    return v
-
-
 def _safe_name(name: str) -> str:
     if not isinstance(name, str) or not name.strip():
         raise InputError(f"name must be a non-empty string, got {name!r}")

@@ -34,6 +34,7 @@ import numpy as np
 
 from ridesim.errors import InputError
 from ridesim.model.checks import finite as _finite
+from ridesim.model.checks import point
 from ridesim.model.wheel import MassProperties
 
 __all__ = [
@@ -58,12 +59,7 @@ def _seed(value) -> int:
 
 
 def _pair(name: str, value) -> tuple[float, float]:
-    try:
-        p = np.asarray(value, dtype=float)
-    except (TypeError, ValueError):
-        raise InputError(f"{name} must be a pair [x, y] in metres, got {value!r}") from None
-    if p.shape != (2,) or not np.all(np.isfinite(p)):
-        raise InputError(f"{name} must be a pair [x, y] of finite numbers in metres, got {value!r}")
+    p = point(name, value)
     return float(p[0]), float(p[1])
 
 
