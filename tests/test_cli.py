@@ -163,3 +163,19 @@ def test_output_into_a_closed_pipe_is_not_an_error():
     r = subprocess.run(["bash", "-c", cmd], capture_output=True, text=True, cwd=ROOT)
     assert r.stdout.strip() == "0"
     assert "internal error" not in r.stderr and "Traceback" not in r.stderr
+
+
+def test_render_with_simulation_writes_the_simulated_pictures(tmp_path):
+    # A scenario with no start acceleration (steady from the start) and a short run.
+    f = tmp_path / "wave.toml"
+    f.write_text((SCENARIOS / "wave_track_sculpture.toml").read_text()
+                 + '\n[run]\nduration_s = 3.2\nsettle_s = 1.0\n')
+    r = run_cli("render", str(f), "--out", str(tmp_path / "pic"), "--simulate", "--seconds", "1",
+                "--json")
+    assert r.returncode == 0, r.stderr
+    names = {Path(x["path"]).name for x in json.loads(r.stdout)["files"]}
+    assert {"torque.png", "bounce.png", "seat.png", "comfort.png", "clip.gif"} <= names
+    from PIL import Image
+
+    for n in ("torque.png", "bounce.png", "seat.png", "comfort.png"):
+        assert Image.open(tmp_path / "pic" / n).format == "PNG"

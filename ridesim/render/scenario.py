@@ -123,7 +123,7 @@ def _sim_plots(sc, steady, out: Path, svg: bool, res, pair, mp):
         acc = float(sc.drive.accel_m_s2)
         model = TorqueModel(pair, sc, mp, v_cmd, acc if acc > 0 else 0.1)
         x_ch = pr.axle_x_m.mean(axis=1)
-        a_cmd = np.where((acc > 0) & (t < v_cmd / acc if acc > 0 else 0.0), acc, 0.0)
+        a_cmd = np.where(t < v_cmd / acc, acc, 0.0) if acc > 0 else np.zeros_like(t)
         tq_an, _ = model.along(x_ch, pr.speed_m_s, a_cmd)
         series["analytic along the simulated motion"] = (t, tq_an[0])
     items.append(plot_series(
