@@ -70,6 +70,13 @@ def test_circle_cart_torques_match_newton():
     # Peak power is at the end of the ramp; midpoint samples stop a*dt/2 short of the top
     # speed (dt = 0.01 s here), a relative shortfall of a*dt/(2V) = 2.5e-3.
     assert res.peak_power_W == pytest.approx(Ta * (V - A * 0.005) / R, rel=1e-9)
+    # Mean delivered power (braking power counted as zero: here T_b < 0 since b > g C_rr):
+    # [int_0^ta T_a (A t)/R dt + T_c (V/R) t_c] / t_total; midpoint samples integrate the
+    # linear ramp exactly.
+    ta, tb = V / A, V / B
+    assert Tb < 0
+    mean = (Ta * A * ta**2 / (2 * R) + Tc * V / R * CRUISE) / (ta + CRUISE + tb)
+    assert res.mean_power_W == pytest.approx(mean, rel=1e-9)
 
 
 def test_duty_profile_is_trapezoidal():
