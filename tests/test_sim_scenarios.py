@@ -54,6 +54,28 @@ def test_square_wheel_slips_below_the_cusp_friction():
     assert r.max_slip_speed_m_s > 10 * r.slip_threshold_m_s
 
 
+def test_square_wheel_contact_sits_below_the_axle_and_carries_the_catenary_normal_load():
+    """Probe decoding against the geometry of the ideal pair (Hall & Wagon 1992).
+
+    The contact point lies straight below the axle (``r = -y``). At steady speed with a level
+    axle no body accelerates, so the track pushes straight up with the whole weight ``W``; the
+    normal component is ``W cos(phi)``, with ``tan(phi) = sinh(x/a)`` the arch slope at the
+    contact, so ``cos(phi) = sech(x/a)``. At constant speed the time average over whole arches
+    is the space average: ``(1/2U) integral_{-U}^{U} sech(u) du = pi / (4 asinh 1)``
+    (``U = asinh 1``, ``integral sech = 2 atan(e^u)``), 0.8911.
+    """
+    period_s = 2 * A * math.asinh(1.0) / 0.5
+    r = simulate(square(1.5, seconds=0.5 + 2 * period_s))
+    p = r.probes
+    s = (p.time_s > 0.5) & (p.time_s <= 0.5 + 2 * period_s)
+    below = np.abs(p.contact_x_m[s, 0] - p.axle_x_m[s, 0])
+    # Away from the hand-overs at the cusps (a corner-rounded vertex rocks across), within 1 % of a.
+    assert np.mean(below < 0.01 * A) > 0.95
+    w = (p.info["body_mass_kg"] + p.info["wheel_mass_kg"]) * G
+    np.testing.assert_allclose(np.mean(p.normal_force_N[s, 0]) / w, math.pi / (4 * math.asinh(1.0)),
+                               rtol=0.005)
+
+
 def test_two_axle_square_cart_stays_level():
     # Wheelbase of two track periods: both wheels in the same phase, so the body neither pitches
     # nor bounces more than one wheel alone.
