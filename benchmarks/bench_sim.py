@@ -5,8 +5,10 @@ Run from the repository root:  PYTHONPATH=. python benchmarks/bench_sim.py
 Builds a two-axle cart on 64-vertex wheels (a regular 64-gon on its catenary
 track, speed drive, 1 kHz) and times, on fresh copies of the same world:
 
-* raw C stepping: ``cpSpaceStep`` in a Python loop, no probes, no controller
-  (the engine's own cost);
+* raw C stepping: ``cpSpaceStep`` in a Python loop, no probes, no controller (the engine's
+  own cost); the same bodies are driven by pymunk's motors alone at the shaft speed of the
+  target ground speed, within the same torque limit, so both timings see the same motion and
+  contacts;
 * ``pymunk.Space.step`` in a Python loop (the usual pymunk call, with its Python wrapper);
 * the engine: stepping plus every probe, the speed controller and the guard rails;
 * the engine's probe post-processing (slip, normal force, seat acceleration).
@@ -39,30 +41,37 @@ def cart(sides: int, duration_s: float) -> dict:
     }
 
 
-def time_raw(sc, n: int, wrapper: bool) -> float:
+def time_raw(sc, n: int, wrapper: bool) -> tuple[float, float]:
+    """CPU time [s] of ``n`` steps, and the distance [m] the first axle travelled."""
     eng = PymunkEngine.from_scenario(sc)
-    space = eng.world.space
+    w = eng.world
+    x0 = w.wheels[0].position.x
+    for m in w.drive.motors:  # a plain pymunk speed drive: forward at v / r, torque-limited
+        m.rate = abs(sc.drive.speed_m_s) / w.r_mean_m
+        m.max_force = sc.drive.max_torque_Nm
+    space = w.space
     dt = sc.run.timestep_s
     if wrapper:
         step = space.step
         t0 = time.process_time()
         for _ in range(n):
             step(dt)
-        return time.process_time() - t0
+        return time.process_time() - t0, w.wheels[0].position.x - x0
     sp, cp_step = space._space, lib.cpSpaceStep
     t0 = time.process_time()
     for _ in range(n):
         cp_step(sp, dt)
-    return time.process_time() - t0
+    return time.process_time() - t0, w.wheels[0].position.x - x0
 
 
-def time_engine(sc, n: int) -> tuple[float, float]:
+def time_engine(sc, n: int) -> tuple[float, float, float]:
+    """CPU times [s] of stepping and of probe post-processing, and the first axle's travel [m]."""
     eng = PymunkEngine.from_scenario(sc)
     t0 = time.process_time()
     eng.step(n)
     t1 = time.process_time()
-    eng.probes()
-    return t1 - t0, time.process_time() - t1
+    p = eng.probes()
+    return t1 - t0, time.process_time() - t1, float(p.axle_x_m[-1, 0] - p.axle_x_m[0, 0])
 
 
 def main() -> None:
@@ -81,9 +90,10 @@ def main() -> None:
           f" {n} steps per timing, least of {args.repeats}")
     raw, wrap, eng_t, post_t = [], [], [], []
     for _ in range(args.repeats):
-        raw.append(time_raw(sc, n, False))
-        wrap.append(time_raw(sc, n, True))
-        e, p = time_engine(sc, n)
+        t, travel_raw = time_raw(sc, n, False)
+        raw.append(t)
+        wrap.append(time_raw(sc, n, True)[0])
+        e, p, travel_eng = time_engine(sc, n)
         eng_t.append(e)
         post_t.append(p)
     # Paired ratios (raw and engine timed back to back in each repeat) are steadier than the
@@ -104,6 +114,8 @@ def main() -> None:
     print(f"  ... including post-processing:                      {total:6.1f} %")
     print(f"  engine vs pymunk Space.step loop:                  {100 * (eng_t / wrap - 1):6.1f} %")
     print(f"  real-time factor of the engine: {sim_s / (eng_t + post_t):.1f}x (target >= 50x)")
+    print(f"  first axle travelled {travel_raw:.3f} m under the plain pymunk drive, {travel_eng:.3f} m"
+          " under the engine's speed drive")
     mid = len(paired) // 2
     print(f"  medians of paired repeats: overhead {100 * (paired_eng[mid] - 1):.1f} % (engine),"
           f" {100 * (paired[mid] - 1):.1f} % (with post-processing); real-time factor"
