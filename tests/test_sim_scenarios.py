@@ -104,6 +104,22 @@ def sc_r_min(sc):
     return solve_scenario(sc).wheel.extremes()[0]
 
 
+def test_ellipse_toy_bounce_shrinks_with_the_timestep_towards_the_ideal_zero():
+    """An ideal pair keeps its axle exactly level (Hall & Wagon 1992): the analytic bounce is 0.
+
+    The simulated bounce of the smooth ellipse-about-a-focus toy is the time-stepping error of
+    the contact solver: a periodic axle-height error at the track period that shrinks as the
+    step shrinks (about 0.23, 0.12 and 0.05 mm at 0.5, 0.25 and 0.125 ms when measured).
+    """
+    base = load_scenario("scenarios/ellipse_pull_toy.toml")
+    bounce = [simulate(base.replace_many({"run.duration_s": 3.0, "run.settle_s": 1.0,
+                                          "run.timestep_s": dt})).axle_bounce_m
+              for dt in (5e-4, 2.5e-4, 1.25e-4)]
+    assert bounce[0] > bounce[1] > bounce[2]
+    assert bounce[2] < 0.3 * bounce[0]
+    assert bounce[2] < 1e-4  # 0.1 mm on a wheel of 20 to 80 mm radius
+
+
 @pytest.mark.parametrize("name", DEMOS)
 def test_torque_against_the_analytic_model(name):
     """Shaft torque over the track period at steady speed, simulated and analytic.
