@@ -179,3 +179,20 @@ def test_render_with_simulation_writes_the_simulated_pictures(tmp_path):
 
     for n in ("torque.png", "bounce.png", "seat.png", "comfort.png"):
         assert Image.open(tmp_path / "pic" / n).format == "PNG"
+
+
+@pytest.mark.parametrize("command", ["check", "simulate", "size-motor"])
+def test_every_sizing_or_grading_output_carries_the_safety_cautions_once(command):
+    """Outputs that size motors or grade rides carry the usual cautions (common practice): the
+    one shared list first, each said once even where a result gathers several (a simulation
+    with its comfort grade)."""
+    from ridesim.safety import SAFETY_CAUTIONS
+
+    p = run_cli(command, str(SCENARIOS / "hexagon_trolley.toml"), "--json")
+    assert p.returncode == 0, p.stderr
+    cautions = json.loads(p.stdout)["cautions"]
+    assert cautions[: len(SAFETY_CAUTIONS)] == list(SAFETY_CAUTIONS)
+    assert len(cautions) == len(set(cautions))
+    assert len(cautions) > len(SAFETY_CAUTIONS)  # and the command's own model limits
+    if command == "simulate":
+        assert any("ISO 2631-1" in c for c in cautions)  # the comfort grade's own cautions

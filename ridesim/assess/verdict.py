@@ -28,27 +28,17 @@ from ridesim.assess.phasing import cart_phasing
 from ridesim.errors import InputError
 from ridesim.io.build import solve_scenario, wheel_mass
 from ridesim.io.scenario import Scenario
+from ridesim.safety import SAFETY_CAUTIONS, caution_lines, with_safety
 
-__all__ = ["CheckResult", "check_scenario", "SAFETY_CAUTIONS"]
+__all__ = ["CheckResult", "check_scenario", "SAFETY_CAUTIONS", "CHECK_CAUTIONS"]
 
 HALF_PI = 0.5 * math.pi
 
-#: Cautions carried by every check (the figures size motors and grade rides).
-SAFETY_CAUTIONS = (
-    "These figures are engineering estimates from an idealised rigid model (exact track, sharp"
-    " corners, no flex, wear or build error); build a prototype and measure before relying on them.",
-    "Where a wheel corner comes down into a cusp, and at chains and sprockets, fingers and feet"
-    " can be crushed or sheared: guard these points (EN ISO 13854 minimum gaps, ISO 13857 reach"
-    " distances).",
-    "Anything that carries people must meet local codes and ride and machinery safety standards"
-    " (ASTM F2291, EN 13814, ISO 17842, ISO 12100 risk assessment) and get a licensed engineering"
-    " review; toys must meet toy safety rules (EN 71-1, ASTM F963).",
-    "Carts on shaped tracks can slip near the cusps, run away or derail: fit end stops, speed"
-    " limiting and lateral guidance, keep people clear of the path, and supervise riders (size and"
-    " weight limits).",
-    "Size the motor for the peak torque with margin and limit its current; a stalled or runaway"
-    " drive can pinch, throw or run over people.",
+CHECK_CAUTIONS = (
+    "The check's model is exact: the track as solved, sharp wheel corners, steady loads and no"
+    " build error; `ridesim simulate` adds rounded corners, impacts and as-built errors.",
 )
+"""Cautions on the check's own model, after :data:`ridesim.safety.SAFETY_CAUTIONS`."""
 
 
 def _f(v) -> float | None:
@@ -237,8 +227,7 @@ class CheckResult:
                      else f"lift-off above {lo:.3g} m/s")
         for n in self.notes:
             lines.append(f"note: {n}")
-        lines.append("cautions:")
-        lines += [f"  * {c}" for c in self.cautions]
+        lines += caution_lines(self.cautions)
         return "\n".join(lines)
 
 
@@ -268,7 +257,7 @@ def check_scenario(sc: Scenario) -> CheckResult:
     if not isinstance(sc, Scenario):
         raise InputError(f"sc must be a Scenario (see load_scenario), got {type(sc).__name__}")
     pair = solve_scenario(sc)
-    cautions = list(SAFETY_CAUTIONS)
+    cautions = with_safety(CHECK_CAUTIONS)
     avail = float(sc.surface.friction)
     if not pair.closed:
         reason = (f"the wheel does not close: after {pair.lobes} track period(s) it is"

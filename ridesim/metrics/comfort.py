@@ -74,6 +74,7 @@ from typing import Any
 import numpy as np
 
 from ridesim.errors import InputError
+from ridesim.safety import with_safety
 
 __all__ = [
     "COMFORT_REACTIONS",
@@ -486,9 +487,7 @@ _STANDING_CAUTIONS = (
     "ISO 2631-1 applies its health and comfort weightings to 0.5-80 Hz; accelerations from the "
     "rigid-body simulation omit seat cushion and body dynamics, so the figures are engineering estimates.",
     "A short record gives an indicative value only; measure the built ride over a representative run.",
-    "This is not a safety assessment: people can be pinched, thrown or run over. Defer to local codes, "
-    "ride and machinery safety standards (ASTM F2291, EN 13814, ISO 17842-1, ISO 12100) and a licensed "
-    "engineering review.",
+    "A comfort grade is not a safety assessment.",
 )
 
 
@@ -630,7 +629,7 @@ def comfort_report(
     total = math.sqrt(rms_z**2 + (rms_x or 0.0) ** 2)
     ratio = vdv_z / (rms_z * span_s**0.25) if rms_z > 0 else math.nan
 
-    cautions = list(_STANDING_CAUTIONS)
+    cautions = with_safety(_STANDING_CAUTIONS)
     if settle < FILTER_SETTLE_S:
         cautions.append(
             f"settle_s = {settle:g} s is shorter than the weighting's {FILTER_SETTLE_S:.1f} s start-up "

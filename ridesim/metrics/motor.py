@@ -34,24 +34,24 @@ from dataclasses import dataclass, field
 
 import numpy as np
 
-__all__ = ["MotorSizing", "GearCheck", "duty_profile", "size_motor", "CAUTIONS"]
+from ridesim.safety import caution_lines, with_safety
+
+__all__ = ["MotorSizing", "GearCheck", "duty_profile", "size_motor", "CAUTIONS", "MOTOR_CAUTIONS"]
 
 G = 9.80665
 #: Assumed start acceleration [m/s^2] when a scenario gives none (flagged in the cautions).
 DEFAULT_ACCEL_M_S2 = 0.25
 RPM_PER_RAD_S = 60.0 / (2.0 * math.pi)
 
-CAUTIONS = (
-    "These figures are an engineering estimate from an idealised rigid-body model; they are"
-    " not a certified rating. A person can be pinched where a wheel corner enters a cusp,"
-    " caught by chains and sprockets, thrown by a sudden stop, or run over.",
-    "Choose a motor and gearbox with margin for starting under full load, emergency stops,"
-    " misalignment, wear and worse friction than assumed; add guarding, a speed limit, end"
-    " stops and an emergency stop.",
-    "Follow local codes and the applicable standards (amusement rides: ASTM F2291, EN 13814,"
-    " ISO 17842-1; machinery: ISO 12100, EN ISO 13854 gaps against crushing; toys: EN 71-1,"
-    " ASTM F963) and have any ride-on build reviewed by a licensed engineer.",
+MOTOR_CAUTIONS = (
+    "The sizing follows the duty cycle as given: starting under full load, emergency stops,"
+    " misalignment, wear and worse friction than assumed need more torque; check the motor's"
+    " thermal rating for the real duty and add a speed limit, end stops and an emergency stop.",
 )
+"""Cautions on the sizing's own model, after :data:`ridesim.safety.SAFETY_CAUTIONS`."""
+
+CAUTIONS = tuple(with_safety(MOTOR_CAUTIONS))
+"""Every caution a motor sizing carries."""
 
 
 @dataclass(frozen=True)
@@ -170,8 +170,7 @@ class MotorSizing:
                          f" {g.motor_max_speed_rad_s * RPM_PER_RAD_S:.0f} rpm: {verdict}")
         if self.gears:
             lines.append(f"  best ratio: {self.best_ratio if self.best_ratio else 'none fits'}")
-        lines.append("cautions:")
-        lines.extend(f"  - {c}" for c in self.cautions)
+        lines.extend(caution_lines(self.cautions))
         return "\n".join(lines)
 
 

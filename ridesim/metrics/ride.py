@@ -20,6 +20,7 @@ from pathlib import Path
 
 import numpy as np
 
+from ridesim.safety import SAFETY_CAUTIONS, caution_lines, with_safety
 from ridesim.sim.engine import Probes
 
 __all__ = [
@@ -33,6 +34,7 @@ __all__ = [
     "TURN_PER_STEP_CAUTION_RAD",
     "CONTACT_FLICKER_CAUTION",
     "SAFETY_CAUTIONS",
+    "SIM_CAUTIONS",
     "moving_average",
     "settled",
     "axle_bounce_m",
@@ -103,16 +105,12 @@ MASS_RATIO_CAUTION = 30.0
 """Body-to-wheel mass ratio above which a result carries a solver caution (the ellipse toy with
 a 4 kg body, ratio 76, slips at 30 iterations where the analytic model says it grips)."""
 
-SAFETY_CAUTIONS = (
-    "Figures are engineering estimates from a planar rigid-body model: they do not replace a"
-    " prototype test or licensed engineering review.",
-    "People can be pinched where a wheel corner enters a cusp of the track, by chains and"
-    " sprockets, and can be thrown or run over: guard moving parts and follow local codes and"
-    " ride or machinery safety standards (ASTM F2291, EN 13814, ISO 12100).",
-    "Size motors, brakes and end stops with margin over these figures; slip, rider weight and"
-    " build tolerances change them.",
+SIM_CAUTIONS = (
+    "Rigid bodies: no tyre or track compliance and no bearing play; contacts are resolved in"
+    " time steps, so single-step spikes of force, torque and seat acceleration are the solver's,"
+    " not the ride's.",
 )
-"""Cautions attached to every simulation result."""
+"""Cautions attached to every simulation result, after :data:`ridesim.safety.SAFETY_CAUTIONS`."""
 
 
 # ----------------------------------------------------------------------------- helpers
@@ -437,13 +435,9 @@ class SimResult:
         bounce = axle_bounce_m(probes)
         thr = slip_threshold_m_s(probes)
         t_on, ax_on, peak = slip_onset(probes, thr)
-        notes = list(SAFETY_CAUTIONS) + list(probes.info.get("cautions", [])) + list(cautions or [])
-        notes += _model_cautions(probes)
         comfort = _comfort(probes)
-        for c in comfort.get("cautions", []):
-            # The simulation's own safety cautions already stand first; keep the comfort ones.
-            if c not in notes and not c.startswith("This is not a safety assessment"):
-                notes.append(c)
+        notes = with_safety(SIM_CAUTIONS, probes.info.get("cautions", []), cautions or [],
+                            _model_cautions(probes), comfort.get("cautions", []))
         return cls(
             probes=probes, name=name, axle_bounce_m=float(np.max(bounce)) if bounce.size else 0.0,
             axle_bounce_per_axle_m=[float(b) for b in bounce], slip_threshold_m_s=thr,
@@ -527,8 +521,7 @@ class SimResult:
                          f" {c['crest_factor']:.3g}: {c['band']}")
         elif c:
             lines.append(f"comfort:      not evaluated ({c.get('unavailable', '')})")
-        lines.append("cautions:")
-        lines.extend(f"  - {x}" for x in d["cautions"])
+        lines.extend(caution_lines(d["cautions"]))
         return "\n".join(lines)
 
     def write_csv(self, path: str | os.PathLike) -> Path:
