@@ -138,6 +138,30 @@ def test_hexagon_wheel_svg_exact_vertices_and_sheet_size(hexagon_files):
     np.testing.assert_allclose(float(bar.get("x2")) - float(bar.get("x1")), 100.0, atol=1e-9)
 
 
+def test_wheel_cut_file_reads_back_as_the_same_wheel(hexagon_files, tmp_path):
+    """The wheel CSV (mm, header x_mm,y_mm) loads as an outline wheel in metres and rolls on the
+    same track: n arches of length 2 a asinh(tan(pi/n)) a revolution, from depth a to the
+    circumradius a / cos(pi/n) (Hall & Wagon 1992)."""
+    from ridesim.io.build import solve_scenario
+    from ridesim.io.scenario import scenario_from_dict
+
+    pair, out, files = hexagon_files
+    csv_path = next(f for f in files if str(f).endswith("_wheel.csv"))
+    sc = scenario_from_dict({"wheel": {"shape": "outline", "file": str(csv_path)}})
+    back = solve_scenario(sc)
+    a = 0.12
+    np.testing.assert_allclose(back.revolution_length, 6 * 2 * a * math.asinh(math.tan(math.pi / 6)),
+                               rtol=1e-6)
+    x = np.linspace(0.0, back.revolution_length, 2001)
+    depth = -back.track.y(x)
+    np.testing.assert_allclose([depth.min(), depth.max()], [a, a / math.cos(math.pi / 6)], rtol=1e-6)
+    # A header naming another length unit is refused, not read as metres.
+    bad = tmp_path / "inches.csv"
+    bad.write_text("x_in,y_in\n0,-1\n1,0\n0,1\n-1,0\n", encoding="utf-8")
+    with pytest.raises(rs.RidesimError, match="x_mm,y_mm"):
+        solve_scenario(scenario_from_dict({"wheel": {"shape": "outline", "file": str(bad)}}))
+
+
 def test_ellipse_wheel_outline_within_chord_tolerance(ellipse_files):
     pair, out, _, (a, b, c) = ellipse_files
     A, B, C = a * 1000, b * 1000, c * 1000  # mm

@@ -10,6 +10,7 @@ properties (explicit ``mass_kg``/``inertia_kg_m2`` override the plate model).
 from __future__ import annotations
 
 import csv
+import re
 from pathlib import Path
 
 import numpy as np
@@ -25,8 +26,16 @@ from ridesim.solve.pair import RollingPair
 __all__ = ["read_points_csv", "wheel_from_spec", "track_from_spec", "solve_scenario", "wheel_mass"]
 
 
+_CSV_UNITS_M = {"m": 1.0, "mm": 1e-3}
+"""Length units a points file's header may name (``x_m,y_m`` or ``x_mm,y_mm``), in metres."""
+
+
 def read_points_csv(path: str | Path, key: str) -> np.ndarray:
     """Read ``x, y`` pairs [m] from a CSV file (a header row and ``#`` comments allowed).
+
+    Values are in metres unless the header names another length unit: ``x_mm,y_mm`` (as
+    ridesim's own cut files are written) is read in millimetres and converted. A header
+    without a unit (``x,y``) means metres.
 
     Parameters
     ----------
@@ -38,8 +47,10 @@ def read_points_csv(path: str | Path, key: str) -> np.ndarray:
     Returns
     -------
     ndarray, shape (N, 2)
+        Points [m].
     """
     rows = []
+    scale = 1.0
     try:
         with open(path, newline="", encoding="utf-8") as fh:
             for lineno, row in enumerate(csv.reader(fh), start=1):
@@ -50,18 +61,43 @@ def read_points_csv(path: str | Path, key: str) -> np.ndarray:
                     vals = [float(c) for c in cells[:2]]
                 except ValueError:
                     if not rows:
+                        scale = _header_scale(cells, path, key, lineno)
                         continue  # header row
                     raise ScenarioError(
-                        f"{key}: line {lineno} of {path} is not two numbers x, y in metres"
+                        f"{key}: line {lineno} of {path} is not two numbers x, y"
                     ) from None
                 if len(vals) != 2:
-                    raise ScenarioError(f"{key}: line {lineno} of {path} needs two columns x, y in metres")
+                    raise ScenarioError(f"{key}: line {lineno} of {path} needs two columns x, y")
                 rows.append(vals)
     except OSError as exc:
         raise ScenarioError(f"{key}: cannot read {path}: {exc.strerror}") from None
     if len(rows) < 3:
         raise ScenarioError(f"{key}: {path} holds {len(rows)} points; at least 3 are needed")
-    return np.array(rows)
+    return scale * np.array(rows)
+
+
+_OTHER_LENGTH_UNITS = {"cm", "dm", "km", "um", "in", "inch", "inches", "ft", "feet", "foot"}
+
+
+def _header_scale(cells: list[str], path, key: str, lineno: int) -> float:
+    """Metres per unit that a header row names (``x_mm,y_mm``, ``x [mm]``); 1 when it names none.
+
+    The header's words are split at anything not a letter or digit (``x_mm``, ``x [mm]`` and
+    ``x (mm)`` all name mm). Any other length unit is refused rather than read as metres.
+    """
+    words = set()
+    for c in cells[:2]:
+        words.update(w for w in re.split(r"[^0-9a-z]+", c.lower()) if w)
+    named = words & (set(_CSV_UNITS_M) | _OTHER_LENGTH_UNITS)
+    if not named:
+        return 1.0
+    if len(named) == 1 and (u := next(iter(named))) in _CSV_UNITS_M:
+        return _CSV_UNITS_M[u]
+    raise ScenarioError(
+        f"{key}: the header on line {lineno} of {path} ({','.join(cells)}) names"
+        f" {', '.join(sorted(named))}: give the points in metres (header x_m,y_m) or millimetres"
+        " (header x_mm,y_mm)"
+    )
 
 
 def _wrap(prefix: str, fn, *args, **kw):

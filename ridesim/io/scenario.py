@@ -231,7 +231,8 @@ class TrackSpec:
     points_m : tuple of (float, float) or None
         Points given inline: [x, y] in m, at least 3, x strictly increasing.
     file : str or None
-        Points given as a CSV file of x, y in m: resolved absolute path.
+        Points given as a CSV file of x, y in m (in mm under an ``x_mm,y_mm`` header):
+        resolved absolute path.
     lobes : int or None
         Track periods per wheel revolution (>= 1). None when ``depth_m`` is
         given instead; 1 when neither is given.
