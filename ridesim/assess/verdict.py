@@ -83,7 +83,8 @@ class CheckResult:
         Constant-shaft-speed drive: torque [N m] and speed surge [m/s] over a revolution.
     cart : dict or None
         Several axles: phase errors [rad], load shares, lifted axles, bounce [m], pitch range
-        [rad], seat bounce [m] and seat acceleration [m/s^2] (quasi-static estimate).
+        [rad], seat bounce [m] and seat acceleration [m/s^2] (quasi-static estimate, vibration
+        up to 80 Hz, the top of the ISO 2631-1 band).
     """
 
     name: str
