@@ -608,8 +608,9 @@ def _model_cautions(probes: Probes) -> list[str]:
         out.append(f"The body is {mb / mw:.0f} times heavier than a wheel: the iterative contact solver"
                    " may under-resolve friction at such ratios; raise run.iterations (e.g. to 100) and"
                    " check that the figures do not change.")
-    out.append("Mean torques read slightly high: the engine loses a little energy at its contacts, like"
-               " a rolling-resistance coefficient of about 0.001 to 0.006 on the demo builds.")
+    out.append("Mean torques read slightly high: the time-stepped contacts lose a little energy, like"
+               " a rolling-resistance coefficient of about 0.001 to 0.006 on the demo builds; the loss"
+               " halves when run.timestep_s is halved.")
     if not info.get("torque_sign_known", True):
         out.append("Torque sign unknown in this pymunk build: figures are magnitudes.")
     return out
