@@ -295,3 +295,43 @@ def test_a_wheel_spun_without_grip_stops_the_run():
     })
     with pytest.raises(SimulationError, match="without grip"):
         simulate(sc)
+
+
+def test_a_triangle_wheel_jams_and_the_speed_drive_reports_a_stall():
+    """An equilateral triangle's vertex hits the next arch before it seats (Hall & Wagon 1992:
+    regular wheels need at least four sides), so the cart cannot keep its speed: the drive sits
+    at its torque limit and the result says the vehicle stalled. A square on its arches, with
+    friction above tan(pi/4), keeps its speed well inside the limit."""
+    def run(sides, mu):
+        return simulate(scenario_from_dict({
+            "wheel": {"shape": "polygon", "sides": sides, "apothem_m": 0.2},
+            "vehicle": {"body_mass_kg": 5.0, "axles": 1},
+            "drive": {"mode": "speed", "speed_m_s": 0.3, "max_torque_Nm": 10.0},
+            "surface": {"friction": mu},
+            "run": {"duration_s": 2.0, "settle_s": 0.5},
+        }))
+
+    tri = run(3, 1.2)
+    assert tri.drive["stalled"] and "target" in tri.drive["stall_reason"]
+    assert tri.drive["at_limit_pct"] > 90.0
+    assert "STALLED" in tri.to_text()
+    sq = run(4, 1.5)
+    assert not sq.drive["stalled"] and sq.drive["at_limit_pct"] == 0.0
+
+
+@pytest.mark.parametrize("ratio, stalls", [(0.5, True), (2.0, False)])
+def test_a_torque_below_the_rolling_resistance_does_not_move_the_cart(ratio, stalls):
+    """Rolling resistance C_rr N at the rim (Gillespie 1992 [memory]) needs T = C_rr N r on a
+    round wheel to start rolling: half of it leaves the cart standing, twice it moves it."""
+    crr, r = 0.05, 0.1
+    sc = scenario_from_dict({
+        "wheel": {"shape": "circle", "radius_m": r},
+        "vehicle": {"body_mass_kg": 6.0, "axles": 1},
+        "drive": {"mode": "torque", "torque_Nm": 1.0},
+        "surface": {"friction": 0.8, "rolling_resistance": crr},
+        "run": {"duration_s": 1.0, "settle_s": 0.3},
+    })
+    w = PymunkEngine.from_scenario(sc).world
+    t_start = crr * (w.body_mass_kg + w.wheel_mass_kg) * G * r
+    res = simulate(sc.replace_many({"drive.torque_Nm": ratio * t_start}))
+    assert res.drive["stalled"] is stalls

@@ -44,6 +44,9 @@ __all__ = [
     "torque_stats",
     "speed_stats",
     "contact_lost",
+    "drive_stats",
+    "AT_LIMIT_FRACTION",
+    "STALL_SPEED_FRACTION",
     "SimResult",
     "simulate",
 ]
@@ -341,6 +344,70 @@ def speed_stats(probes: Probes) -> dict:
     return {"mean_m_s": mean, "final_m_s": final, "ripple_pct": ripple}
 
 
+AT_LIMIT_FRACTION = 0.99
+"""A shaft counts as at its torque limit when its torque is at least this fraction of it."""
+
+STALL_SPEED_FRACTION = 0.5
+"""A speed or shaft-speed drive has stalled when the settled mean speed is below this fraction
+of its target: the drive cannot hold the vehicle anywhere near the speed asked of it."""
+
+
+def drive_stats(probes: Probes) -> dict:
+    """How hard the drive worked after settling, and whether the vehicle stalled.
+
+    Parameters
+    ----------
+    probes : Probes
+        Probe record.
+
+    Returns
+    -------
+    dict
+        ``mode``; ``torque_limit_Nm`` (the limit of a speed or shaft-speed drive, the constant
+        torque of a torque drive); ``at_limit_pct``, the share of settled steps in which some
+        driven shaft's torque was at :data:`AT_LIMIT_FRACTION` of that limit or more (None
+        for a torque drive, always at it); ``stalled`` and ``stall_reason``: a speed drive
+        whose mean ground speed, or a shaft-speed drive whose mean shaft speed, stays below
+        :data:`STALL_SPEED_FRACTION` of its target; a torque drive whose vehicle moves less
+        than 1 % of the least wheel radius over the settled record.
+    """
+    info = probes.info
+    mode = info.get("drive_mode")
+    limit = info.get("max_torque_Nm")
+    m = settled(probes)
+    T = probes.shaft_torque_Nm[m]
+    out = {"mode": mode, "torque_limit_Nm": limit, "at_limit_pct": None, "stalled": False,
+           "stall_reason": None}
+    if T.shape[1] == 0 or not np.any(m):
+        return out
+    if mode in ("speed", "shaft_speed") and limit:
+        at = np.any(np.abs(T) >= AT_LIMIT_FRACTION * float(limit), axis=1)
+        out["at_limit_pct"] = 100.0 * float(np.mean(at))
+    if mode == "speed" and probes.target_speed_m_s:
+        target = abs(float(probes.target_speed_m_s))
+        mean = float(np.mean(probes.speed_m_s[m]))
+        if mean < STALL_SPEED_FRACTION * target:
+            out["stalled"] = True
+            out["stall_reason"] = (f"mean speed {mean:.3g} m/s, {100 * mean / target:.0f} % of the"
+                                   f" {target:.3g} m/s target")
+    elif mode == "shaft_speed" and info.get("shaft_speed_rad_s"):
+        target = abs(float(info["shaft_speed_rad_s"]))
+        axle = [ax[0] for ax in probes.shaft_axles]
+        rate = float(np.min(np.mean(probes.wheel_rate_rad_s[m][:, axle], axis=0)))
+        if rate < STALL_SPEED_FRACTION * target:
+            out["stalled"] = True
+            out["stall_reason"] = (f"mean shaft speed {rate:.3g} rad/s, {100 * rate / target:.0f} %"
+                                   f" of the {target:.3g} rad/s asked")
+    elif mode == "torque":
+        travel = float(np.max(np.abs(probes.axle_x_m[m][-1] - probes.axle_x_m[m][0])))
+        r_min = float(info.get("r_min_m") or 0.0)
+        if r_min > 0 and travel < 0.01 * r_min:
+            out["stalled"] = True
+            out["stall_reason"] = (f"the vehicle moved {1000 * travel:.3g} mm in"
+                                   f" {float(np.sum(m)) * probes.dt_s:.3g} s under the drive torque")
+    return out
+
+
 def contact_lost(probes: Probes) -> bool:
     """True when a wheel is off the track for :data:`CONTACT_LOSS_MIN_S` or longer after settling.
 
@@ -393,6 +460,8 @@ class SimResult:
         See :func:`speed_stats`.
     contact_lost : bool
         See :func:`contact_lost`.
+    drive : dict
+        See :func:`drive_stats`.
     cautions : list of str
         Safety and fidelity notes.
     comfort : dict or None
@@ -412,6 +481,7 @@ class SimResult:
     torque: list
     speed: dict
     contact_lost: bool
+    drive: dict = field(default_factory=dict)
     cautions: list = field(default_factory=list)
     comfort: dict | None = None
 
@@ -443,7 +513,8 @@ class SimResult:
             axle_bounce_per_axle_m=[float(b) for b in bounce], slip_threshold_m_s=thr,
             slip_onset_time_s=t_on, slip_onset_axle=ax_on, max_slip_speed_m_s=peak,
             torque=torque_stats(probes), speed=speed_stats(probes), contact_lost=contact_lost(probes),
-            cautions=notes, comfort={k: v for k, v in comfort.items() if k != "cautions"},
+            drive=drive_stats(probes), cautions=notes,
+            comfort={k: v for k, v in comfort.items() if k != "cautions"},
         )
 
     def to_dict(self) -> dict:
@@ -483,6 +554,7 @@ class SimResult:
             "torque": top,
             "speed": dict(self.speed),
             "contact_lost": bool(self.contact_lost),
+            "drive": dict(self.drive),
             "comfort": dict(self.comfort) if self.comfort is not None else None,
             "steps": int(self.probes.steps),
             "sim_time_s": float(self.probes.steps * self.probes.dt_s),
@@ -514,6 +586,18 @@ class SimResult:
             f" ripple {sp['ripple_pct'] if sp['ripple_pct'] is None else round(sp['ripple_pct'], 3)} %",
             f"contact lost: {'yes' if d['contact_lost'] else 'no'}",
         ]
+        dr = d.get("drive") or {}
+        if dr.get("at_limit_pct") is not None:
+            line = (f"drive:        at its {dr['torque_limit_Nm']:.4g} N m limit"
+                    f" {dr['at_limit_pct']:.0f} % of the time")
+        elif dr.get("mode") == "torque":
+            line = f"drive:        constant {dr['torque_limit_Nm']:.4g} N m per driven shaft"
+        else:
+            line = None
+        if dr.get("stalled"):
+            line = (line + "; " if line else "drive:        ") + f"STALLED: {dr['stall_reason']}"
+        if line:
+            lines.append(line)
         c = d.get("comfort") or {}
         if "weighted_rms_m_s2" in c:
             lines.append(f"comfort:      seat a_w {c['weighted_rms_m_s2']:.3g} m/s^2 (ISO 2631-1 Wk),"

@@ -570,8 +570,8 @@ class PymunkEngine(Engine):
         spin = np.max(np.abs(np.stack([rows[:, c[5]] for c in self._col[1:]])), axis=0)
         if np.any(spin * w.r_max_m > self._v_cap):
             j = int(np.flatnonzero(spin * w.r_max_m > self._v_cap)[0])
-            return j, (f"a wheel spins at {float(spin[j]):.3g} rad/s, its rim at"
-                       f" {float(spin[j]) * w.r_max_m:.3g} m/s, beyond the {self._v_cap:.3g} m/s this"
+            return j, (f"a wheel spins at {float(spin[j]):.4g} rad/s, its rim at"
+                       f" {float(spin[j]) * w.r_max_m:.4g} m/s, beyond the {self._v_cap:.4g} m/s this"
                        " build can reach: the drive spins it without grip (lower drive.torque_Nm or"
                        " drive.max_torque_Nm, or raise surface.friction), or the solver lost the"
                        " contact (halve run.timestep_s or raise run.iterations)"), SimulationError
@@ -638,6 +638,8 @@ class PymunkEngine(Engine):
             "ramp_end_s": (abs(d.speed_m_s) / d.accel_m_s2 if d.mode == "speed" and d.accel_m_s2 > 0
                            else 0.0),
             "max_torque_Nm": w.drive.max_torque_Nm,
+            "shaft_speed_rad_s": (float(d.shaft_speed_rad_s or 0.0) if d.mode == "shaft_speed"
+                                  else None),
             "torque_sign_known": self._direct,
             "coupled": bool(self.scenario.vehicle.coupled and A > 1),
             "grade_rad": self.options.grade_rad,
