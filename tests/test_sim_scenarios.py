@@ -76,6 +76,43 @@ def test_square_wheel_contact_sits_below_the_axle_and_carries_the_catenary_norma
                                rtol=0.005)
 
 
+@pytest.mark.parametrize("sides", [4, 6, 8])
+def test_grip_limit_of_a_regular_polygon_is_tan_pi_over_n(sides):
+    """At steady speed with a level axle nothing accelerates, so the contact force is vertical
+    and the wheel needs friction tan(phi) where the track slopes by phi; the arches are steepest
+    at the cusps, phi = pi/n (Hall & Wagon 1992). 5 % above tan(pi/n) the simulated wheel does
+    not slip; 5 % below it slips in short bursts at the cusps (too short for a slip onset, which
+    needs 20 ms, so the brief-slip figures carry it); 15 % below it loses grip."""
+    crit = math.tan(math.pi / sides)
+
+    def scenario(factor):
+        return scenario_from_dict({
+            "wheel": {"shape": "polygon", "sides": sides, "apothem_m": 0.15},
+            "vehicle": {"body_mass_kg": 5.0, "axles": 1},
+            "drive": {"mode": "speed", "speed_m_s": 0.3},
+            "surface": {"friction": factor * crit},
+            "run": {"duration_s": 3.0, "settle_s": 0.5},
+        })
+
+    grips = simulate(scenario(1.05))
+    bursts = simulate(scenario(0.95))
+    # Above the limit at most a step or two of scrub where the square's corner strikes the next
+    # arch (1 ms measured; none for the hexagon and octagon); below it tens of milliseconds.
+    assert grips.slip_onset_time_s is None and grips.slip_time_s <= 0.002
+    assert bursts.slip_time_s > 0.01 and bursts.slip_distance_m > 1e-4
+    assert grips.slip_time_s < 0.1 * bursts.slip_time_s
+    assert "rim scrub" in bursts.to_text()
+    # Every burst within a tenth of a period of a cusp.
+    p = bursts.probes
+    over = np.nan_to_num(np.abs(ride.slip_speed_filtered(p))[:, 0]) > bursts.slip_threshold_m_s
+    over &= ride.settled(p)
+    pair = solve_scenario(scenario(0.95))
+    phase = np.mod(p.axle_x_m[over, 0] - pair.cusps[0].x_m, pair.track.period) / pair.track.period
+    assert np.all(np.minimum(phase, 1.0 - phase) < 0.1)
+    loses = simulate(scenario(0.85))
+    assert loses.slip_onset_time_s is not None
+
+
 def test_two_axle_square_cart_stays_level():
     # Wheelbase of two track periods: both wheels in the same phase, so the body neither pitches
     # nor bounces more than one wheel alone.

@@ -41,6 +41,7 @@ __all__ = [
     "slip_threshold_m_s",
     "slip_speed_filtered",
     "slip_onset",
+    "slip_scrub",
     "torque_stats",
     "speed_stats",
     "contact_lost",
@@ -284,6 +285,40 @@ def slip_onset(probes: Probes, threshold_m_s: float | None = None,
     return best[0], best[1], peak
 
 
+def slip_scrub(probes: Probes, threshold_m_s: float | None = None) -> tuple[float, float]:
+    """Brief slips as well as long ones: time and rim travel with the slip above the threshold.
+
+    :func:`slip_onset` counts only slip held for :data:`SLIP_MIN_DURATION_S`; near the grip
+    limit a wheel slips in short bursts where the track is steepest (at the cusps), which
+    wear the tread and shift the wheel's phase. These figures add up every step after
+    settling whose filtered slip speed is above the threshold.
+
+    Parameters
+    ----------
+    probes : Probes
+        Probe record.
+    threshold_m_s : float, optional
+        Threshold [m/s]; default :func:`slip_threshold_m_s`.
+
+    Returns
+    -------
+    time_s : float
+        Time [s] above the threshold, for the wheel with the most.
+    distance_m : float
+        Rim travel [m] relative to the track in those steps (sum of ``|slip speed| dt``), for
+        the wheel with the most.
+    """
+    thr = slip_threshold_m_s(probes) if threshold_m_s is None else float(threshold_m_s)
+    m = settled(probes)
+    if probes.slip_speed_m_s.size == 0 or not np.any(m):
+        return 0.0, 0.0
+    over = np.nan_to_num(np.abs(slip_speed_filtered(probes))[m]) > thr
+    raw = np.nan_to_num(np.abs(probes.slip_speed_m_s[m]))
+    dt = probes.dt_s
+    return (float(np.max(over.sum(axis=0))) * dt,
+            float(np.max(np.where(over, raw, 0.0).sum(axis=0))) * dt)
+
+
 def torque_stats(probes: Probes) -> list[dict]:
     """Drive torque figures per shaft after settling.
 
@@ -454,6 +489,9 @@ class SimResult:
         Axle that slipped first.
     max_slip_speed_m_s : float
         Largest filtered slip speed [m/s].
+    slip_time_s, slip_distance_m : float
+        Time [s] and rim travel [m] above the slip threshold, brief slips included
+        (:func:`slip_scrub`).
     torque : list of dict
         Per drive shaft (see :func:`torque_stats`).
     speed : dict
@@ -482,6 +520,8 @@ class SimResult:
     speed: dict
     contact_lost: bool
     drive: dict = field(default_factory=dict)
+    slip_time_s: float = 0.0
+    slip_distance_m: float = 0.0
     cautions: list = field(default_factory=list)
     comfort: dict | None = None
 
@@ -505,6 +545,7 @@ class SimResult:
         bounce = axle_bounce_m(probes)
         thr = slip_threshold_m_s(probes)
         t_on, ax_on, peak = slip_onset(probes, thr)
+        scrub_t, scrub_d = slip_scrub(probes, thr)
         comfort = _comfort(probes)
         notes = with_safety(SIM_CAUTIONS, probes.info.get("cautions", []), cautions or [],
                             _model_cautions(probes), comfort.get("cautions", []))
@@ -513,7 +554,7 @@ class SimResult:
             axle_bounce_per_axle_m=[float(b) for b in bounce], slip_threshold_m_s=thr,
             slip_onset_time_s=t_on, slip_onset_axle=ax_on, max_slip_speed_m_s=peak,
             torque=torque_stats(probes), speed=speed_stats(probes), contact_lost=contact_lost(probes),
-            drive=drive_stats(probes), cautions=notes,
+            drive=drive_stats(probes), slip_time_s=scrub_t, slip_distance_m=scrub_d, cautions=notes,
             comfort={k: v for k, v in comfort.items() if k != "cautions"},
         )
 
@@ -550,6 +591,8 @@ class SimResult:
                 "max_slip_speed_m_s": self.max_slip_speed_m_s,
                 "threshold_m_s": self.slip_threshold_m_s,
                 "min_duration_s": SLIP_MIN_DURATION_S,
+                "time_over_threshold_s": self.slip_time_s,
+                "distance_over_threshold_m": self.slip_distance_m,
             },
             "torque": top,
             "speed": dict(self.speed),
@@ -579,7 +622,10 @@ class SimResult:
             f" {d['settle_s']:g} s",
             f"slip:         {onset} (largest slip speed {1000 * sl['max_slip_speed_m_s']:.2f} mm/s,"
             f" threshold {1000 * sl['threshold_m_s']:.1f} mm/s held for"
-            f" {1000 * sl['min_duration_s']:.0f} ms)",
+            f" {1000 * sl['min_duration_s']:.0f} ms)"
+            + ("" if not sl["time_over_threshold_s"] else
+               f"; above the threshold {1000 * sl['time_over_threshold_s']:.0f} ms in all,"
+               f" {1000 * sl['distance_over_threshold_m']:.3g} mm of rim scrub"),
             f"torque:       peak {tq['peak_Nm']:.4g} N m (raw {tq['peak_raw_Nm']:.4g}),"
             f" r.m.s. {tq['rms_Nm']:.4g} N m per driven shaft",
             f"speed:        mean {sp['mean_m_s']:.4g} m/s, final {sp['final_m_s']:.4g} m/s,"
