@@ -377,3 +377,18 @@ def test_track_for_refuses_other_axle_paths(raises_one_line, square_wheel):
 
 def test_track_for_needs_a_wheel(raises_one_line):
     raises_one_line(InputError, ["wheel", "Wheel"], rs.track_for, "square")
+
+
+def test_convex_corners_make_valleys_and_reentrant_corners_make_crests():
+    """A convex wheel corner rolls into a V of the track (a cusp); a re-entrant corner of a
+    star-shaped wheel, where the rim turns inwards, puts a ridge in the track (elementary
+    geometry of r = -y: the rim's corner and the track's corner bend the same way)."""
+    hexagon = rs.track_for(rs.Wheel.polygon(sides=6, apothem=0.12))
+    assert [c.kind for c in hexagon.cusps] == ["valley"] * 6
+    ang = np.arange(10) * 2 * np.pi / 10
+    r = np.where(np.arange(10) % 2 == 0, 0.2, 0.15)  # tips at 0.2 m, notches at 0.15 m
+    star = rs.track_for(rs.Wheel.polygon_from_vertices(np.column_stack([r * np.cos(ang),
+                                                                       r * np.sin(ang)])))
+    for c in star.cusps:
+        assert c.kind == ("valley" if abs(c.depth_m - 0.2) < 1e-9 else "crest")
+    assert {c.kind for c in star.cusps} == {"valley", "crest"}

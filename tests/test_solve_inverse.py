@@ -175,6 +175,10 @@ def test_sawtooth_wheel_is_made_of_log_spirals(n):
                                atol=1e-15)
     depths = sorted(c.depth_m for c in pair.cusps)
     np.testing.assert_allclose(depths, [D] * n + [D + h] * n, rtol=1e-12)
+    # The flanks meet at crests (depth D: the track bends down) and in valleys (depth D + h:
+    # it bends up, where a wheel corner seats).
+    for c in pair.cusps:
+        assert c.kind == ("crest" if abs(c.depth_m - D) < 1e-9 else "valley")
     np.testing.assert_allclose(np.sort(pair.wheel.kinks), np.sort([c.phi_rad for c in pair.cusps]),
                                atol=1e-12)
 

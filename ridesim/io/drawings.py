@@ -440,10 +440,12 @@ def _section_svg(pair, name: str, k: int, sections: list[tuple[float, float]], p
         f"height at the ends y = {prof[0, 1]:.3f} and {prof[-1, 1]:.3f} (axle line y = 0)",
         f"strip {strip_mm:.1f} below the lowest point: flat bottom edge at y = {y_bottom_mm:.3f}",
     ]
-    inner = [c for c in cusps_mm if x0 < c[0] < x1]
-    if inner:
-        lines.append(f"{len(inner)} cusp tick(s) at x = " + ", ".join(f"{c[0]:.3f}" for c in inner[:6])
-                     + (" ..." if len(inner) > 6 else ""))
+    for valley, label in ((1.0, "cusp"), (0.0, "crest corner")):
+        inner = [c for c in cusps_mm if x0 < c[0] < x1 and c[2] == valley]
+        if inner:
+            lines.append(f"{len(inner)} {label} tick(s) at x = "
+                         + ", ".join(f"{c[0]:.3f}" for c in inner[:6])
+                         + (" ..." if len(inner) > 6 else ""))
     joints = []
     if k > 0:
         joints.append(f"J{k} at the start")
@@ -458,7 +460,7 @@ def _section_svg(pair, name: str, k: int, sections: list[tuple[float, float]], p
     strip = np.vstack([prof, [[x1, y_bottom_mm], [x0, y_bottom_mm]]])
     sheet.path(strip, CUT, closed=True, ident="strip")
     tick = min(4.0, 0.4 * strip_mm)
-    for c in inner:
+    for c in (c for c in cusps_mm if x0 < c[0] < x1):
         sheet.path(np.array([[c[0], c[1]], [c[0], c[1] - tick]]), SCORE, closed=False)
     ends = []
     if k > 0:
@@ -556,8 +558,9 @@ def export_drawings(pair, out_dir: str | Path, *, name: str, max_section_m: floa
         for j in range(math.floor((c0 - c.x_m) / rev), math.ceil((c1 - c.x_m) / rev) + 1):
             xc = c.x_m + j * rev
             if c0 < xc < c1:
-                cusps.append((xc * 1000, float(pair.track.y(xc)) * 1000))
-    cusps_mm = np.array(sorted(cusps)) if cusps else np.zeros((0, 2))
+                cusps.append((xc * 1000, float(pair.track.y(xc)) * 1000,
+                              1.0 if c.kind == "valley" else 0.0))
+    cusps_mm = np.array(sorted(cusps)) if cusps else np.zeros((0, 3))
     for k, prof in enumerate(profs):
         svg = _section_svg(pair, name, k, sections, prof, y_bottom, cusps_mm, title_lines, margin,
                            jm * 1000, strip * 1000)

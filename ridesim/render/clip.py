@@ -198,6 +198,8 @@ class _Painter:
         rev = pair.revolution_length
         cusps = []
         for c in pair.cusps:
+            if c.kind != "valley":  # the clip marks where corners seat; crests show themselves
+                continue
             for j in range(math.floor((x0 - c.x_m) / rev), math.ceil((x1 - c.x_m) / rev) + 1):
                 xc = c.x_m + j * rev
                 if x0 <= xc <= x1:

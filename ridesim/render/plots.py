@@ -107,10 +107,13 @@ def _wheel_title(wheel) -> str:
     return f"{wheel.kind} outline"
 
 
-def _cusp_points(pair, x0: float, x1: float) -> np.ndarray:
+def _cusp_points(pair, x0: float, x1: float, kind: str = "valley") -> np.ndarray:
+    """Track corners of one kind (see :class:`ridesim.solve.pair.Cusp`) between x0 and x1 [m]."""
     rev = pair.revolution_length
     out = []
     for c in pair.cusps:
+        if c.kind != kind:
+            continue
         for j in range(math.floor((x0 - c.x_m) / rev), math.ceil((x1 - c.x_m) / rev) + 1):
             xc = c.x_m + j * rev
             if x0 <= xc <= x1:
@@ -252,6 +255,7 @@ def plot_track(pair, path: str | Path, periods: float = 2.5, poses: int = 5, *,
     size = _size(size_px)
     pts = _outline(w)
     cusps = _cusp_points(pair, x0, x1)
+    crests = _cusp_points(pair, x0, x1, "crest")
     with style_context():
         fig = new_figure(size)
         ax = fig.add_subplot()
@@ -282,6 +286,9 @@ def plot_track(pair, path: str | Path, periods: float = 2.5, poses: int = 5, *,
         if len(cusps):
             ax.plot(cusps[:, 0] * 1000, cusps[:, 1] * 1000, ls="none", marker="v", ms=7,
                     color=COLOURS["cusp"], zorder=6, label="cusps")
+        if len(crests):
+            ax.plot(crests[:, 0] * 1000, crests[:, 1] * 1000, ls="none", marker="^", ms=7,
+                    mfc="white", mew=1.3, color=COLOURS["cusp"], zorder=6, label="crest corners")
         ax.set_aspect("equal", adjustable="box")
         ax.set_xlim(x0 * 1000, x1 * 1000)
         ax.set_ylim(base * 1000, top * 1000)

@@ -21,7 +21,7 @@ from ridesim.errors import ClosureError, GeometryError, InputError
 from ridesim.model.track import Track
 from ridesim.model.wheel import Wheel
 from ridesim.solve.forward import _check_path
-from ridesim.solve.pair import Cusp, RollingPair, SpiralMap, TableMap, _log1p_over
+from ridesim.solve.pair import Cusp, RollingPair, SpiralMap, TableMap, _log1p_over, classify_corners
 from ridesim.solve.table import build_map
 
 __all__ = ["wheel_for", "closure_depths", "closure_angle"]
@@ -243,7 +243,7 @@ def wheel_for(
             cusps.append(Cusp(x_m=float(xc - track.start), vertex=None,
                               phi_rad=float((th - HALF_PI) % TWO_PI),
                               depth_m=float(-lowered.y(np.array(xc)))))
-    pair.cusps = tuple(sorted(cusps, key=lambda c: c.x_m))
+    pair.cusps = classify_corners(lowered, sorted(cusps, key=lambda c: c.x_m))
     if closed:
         def radius_fn(phi: np.ndarray) -> np.ndarray:
             return -lowered.y(pair.axle_x(np.asarray(phi, dtype=float) + HALF_PI))

@@ -14,7 +14,7 @@ is extended periodically: ``theta(x + x_span) = theta(x) + theta_span``.
 from __future__ import annotations
 
 import math
-from dataclasses import dataclass
+from dataclasses import dataclass, replace
 
 import numpy as np
 
@@ -43,12 +43,42 @@ class Cusp:
         Wheel-frame polar angle [rad] of the rim corner that seats here.
     depth_m : float
         Distance [m] from the axle line down to the cusp (the corner's radius).
+    kind : str
+        ``"valley"``: the track bends up there, a V into which a convex wheel corner seats (a
+        cusp proper); ``"crest"``: it bends down, a ridge that a re-entrant corner of the
+        wheel rocks over (the peaks of a sawtooth track).
     """
 
     x_m: float
     vertex: int | None
     phi_rad: float
     depth_m: float
+    kind: str = "valley"
+
+
+def corner_kind(track: Track, x_m: float) -> str:
+    """Whether the track's corner at ``x_m`` [m] is a valley or a crest (see :class:`Cusp`).
+
+    Parameters
+    ----------
+    track : Track
+        The track (lowered as the pair uses it).
+    x_m : float
+        Position [m] of the corner.
+
+    Returns
+    -------
+    str
+        ``"valley"`` or ``"crest"``.
+    """
+    eps = 1e-6 * track.period
+    y = track.y(np.array([x_m - eps, x_m, x_m + eps]))
+    return "valley" if y[0] + y[2] - 2.0 * y[1] >= 0.0 else "crest"
+
+
+def classify_corners(track: Track, cusps) -> tuple[Cusp, ...]:
+    """``cusps`` with each one's :attr:`Cusp.kind` read off ``track``."""
+    return tuple(replace(c, kind=corner_kind(track, c.x_m)) for c in cusps)
 
 
 class CatenaryMap:
@@ -233,7 +263,7 @@ class RollingPair:
         self.lobes = int(lobes)
         self.closed = bool(closed)
         self.closure_gap_rad = float(closure_gap_rad)
-        self.cusps = cusps
+        self.cusps = classify_corners(track, cusps)
         self.path = path
         self._theta0 = theta_at_x0
         self.revolution_length = float(rmap.x_span * (TWO_PI / rmap.theta_span))
@@ -322,7 +352,8 @@ class RollingPair:
             "depth_max_m": float(dmax),
             "lobes": int(self.lobes),
             "cusps": [
-                {"x_m": c.x_m, "depth_m": c.depth_m, "phi_rad": c.phi_rad, "vertex": c.vertex}
+                {"x_m": c.x_m, "depth_m": c.depth_m, "phi_rad": c.phi_rad, "vertex": c.vertex,
+                 "kind": c.kind}
                 for c in self.cusps
             ],
             "depth_m": float(self.depth),
