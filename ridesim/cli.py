@@ -53,11 +53,13 @@ def _cmd_solve(sc, args) -> tuple[dict, str]:
         f"  ({out['lobes']} period(s) per wheel turn)",
         f"contact depth range:   {out['depth_min_m']:.6g} .. {out['depth_max_m']:.6g} m below the axle",
     ]
-    if out["cusps"]:
-        xs = ", ".join(f"{c['x_m']:.4f}" for c in out["cusps"][:8])
-        more = "" if len(out["cusps"]) <= 8 else f", ... ({len(out['cusps'])} in all)"
-        lines.append(f"cusps in one revolution at x = {xs}{more} m")
-    else:
+    for kind, label in (("valley", "cusps"), ("crest", "crest corners")):
+        cs = [c for c in out["cusps"] if c.get("kind", "valley") == kind]
+        if cs:
+            xs = ", ".join(f"{c['x_m']:.4f}" for c in cs[:8])
+            more = "" if len(cs) <= 8 else f", ... ({len(cs)} in all)"
+            lines.append(f"{label} in one revolution at x = {xs}{more} m")
+    if not out["cusps"]:
         lines.append("no cusps (smooth track)")
     if out["closed"]:
         lines.append("closure: the wheel closes after one revolution")
