@@ -46,6 +46,18 @@ def test_regular_polygon_peak_is_tan_pi_over_n(n):
     np.testing.assert_allclose(res2.peak, res.peak, rtol=1e-12)
 
 
+@pytest.mark.parametrize("n, rho", [(4, 0.006), (4, 0.03), (6, 0.01)])
+def test_rounded_corners_lower_the_peak_to_the_end_of_the_flat(n, rho):
+    """With the corners rounded to rho (faces kept at the apothem a), a flat ends where its
+    slope is tan(u_e) = (a - rho) tan(pi/n) / a, and the corner's arc turns the slope back to
+    level in the valley (derived; the flats are Hall & Wagon's arches), so the steepest
+    contact, and the friction a steady ride needs, is (1 - rho/a) tan(pi/n)."""
+    a = 0.3
+    pair = rs.track_for(rs.Wheel.polygon(sides=n, apothem=a, corner_radius=rho))
+    res = friction_demand(pair, available=0.9)
+    np.testing.assert_allclose(res.peak, (1 - rho / a) * math.tan(math.pi / n), rtol=1e-6)
+
+
 def test_ellipse_about_focus_peak():
     """Ellipse about a focus: the road is y = -a + c cos(x/b), so mu peaks at c/b.
 

@@ -207,3 +207,16 @@ def test_space_is_tuned_for_metres():
     assert w.space.collision_slop == pytest.approx(1e-3)
     assert w.space.iterations == sc.run.iterations
     np.testing.assert_allclose(tuple(w.space.gravity), (0.0, -9.80665))
+
+
+def test_inset_keeps_vertices_on_straight_runs():
+    """Moving a square's edges in by r (half side s) puts its corners at (+-(s - r), +-(s - r))
+    and points in the middle of a side at distance s - r from the centre (elementary geometry);
+    a vertex between two collinear edges has no mitre and must not turn into NaN."""
+    from ridesim.sim.world import _inset_convex
+
+    s, r = 0.2, 0.03
+    square = np.array([[s, -s], [s, 0.0], [s, s], [0.0, s], [-s, s], [-s, 0.0], [-s, -s], [0.0, -s]])
+    inner = _inset_convex(square, r)
+    expected = square * np.where(np.abs(square) > 0, (s - r) / s, 0.0)
+    np.testing.assert_allclose(inner, expected, atol=1e-15)

@@ -392,3 +392,83 @@ def test_convex_corners_make_valleys_and_reentrant_corners_make_crests():
     for c in star.cusps:
         assert c.kind == ("valley" if abs(c.depth_m - 0.2) < 1e-9 else "crest")
     assert {c.kind for c in star.cusps} == {"valley", "crest"}
+
+
+# ------------------------------------------------------------------ rounded corners
+
+
+def ellipe_beyond_one(phi, m):
+    """Incomplete elliptic integral E(phi | m) for m > 1 (with m sin^2 phi <= 1), from scipy's
+    m < 1 integrals by the reciprocal-modulus transformation (NIST DLMF 19.7.4, with k^2 = m):
+    E(phi, k) = k E(beta, 1/k) - (k^2 - 1)/k F(beta, 1/k), sin(beta) = k sin(phi)."""
+    k = math.sqrt(m)
+    beta = math.asin(k * math.sin(phi))
+    return k * ellipeinc(beta, 1.0 / m) - (m - 1.0) / k * ellipkinc(beta, 1.0 / m)
+
+
+def rounded_polygon_parts(n, a, rho):
+    """A regular n-gon (apothem a) with corners rounded to rho, faces kept at the apothem.
+
+    Each face's flat ends where the ray from the axle turns u_e from the face's foot,
+    tan(u_e) = (a - rho) tan(pi/n) / a; the arc about the corner's centre (distance
+    D = (a - rho)/cos(pi/n) from the axle) spans psi_e = pi/n - u_e either side of the corner.
+    With dx = r dtheta (Hall & Wagon 1992) a flat rolls over 2 a asinh(tan u_e) (r = a sec u),
+    an arc over 2 D sin(psi_e) + 2 rho E(psi_e | D^2/rho^2), since there
+    r = D cos(psi) + sqrt(rho^2 - D^2 sin^2 psi).
+    """
+    ue = math.atan((a - rho) * math.tan(math.pi / n) / a)
+    D = (a - rho) / math.cos(math.pi / n)
+    pe = math.pi / n - ue
+    flat = 2 * a * math.asinh(math.tan(ue))
+    arc = 2 * D * math.sin(pe) + 2 * rho * ellipe_beyond_one(pe, D * D / (rho * rho))
+    return ue, D, flat, arc
+
+
+@pytest.mark.parametrize("n, a, rho", [(3, 0.2, 0.02), (4, 0.3, 0.006), (4, 0.3, 0.05),
+                                       (6, 0.12, 0.01), (8, 0.1, 0.004)])
+def test_rounded_polygon_rolls_a_revolution_of_arches_and_arcs(n, a, rho):
+    pair = rs.track_for(rs.Wheel.polygon(sides=n, apothem=a, corner_radius=rho))
+    _, _, flat, arc = rounded_polygon_parts(n, a, rho)
+    # Adaptive Chebyshev tables against the closed form: 1e-12.
+    np.testing.assert_allclose(pair.revolution_length, n * (flat + arc), rtol=1e-12)
+    np.testing.assert_allclose(pair.track.period, flat + arc, rtol=1e-12)
+    assert pair.cusps == ()  # smooth valleys, no corners
+    # r = -y straight below the axle, everywhere.
+    x = np.linspace(0.0, pair.revolution_length, 2001)
+    r = pair.wheel.radius(pair.wheel_angle(x) - math.pi / 2)
+    np.testing.assert_allclose(-pair.track.y(x), r, rtol=1e-11)
+
+
+@pytest.mark.parametrize("n, a, rho", [(4, 0.3, 0.006), (6, 0.12, 0.01)])
+def test_rounded_polygon_flats_roll_on_catenaries_and_corners_on_round_valleys(n, a, rho):
+    """The flats roll on the same arches as the sharp polygon's, y = -a cosh((x - x_m)/a) with x_m
+    under the foot of the face (Hall & Wagon 1992), only shorter. In the valley, with r = -y and
+    dtheta/dx = 1/r, y'' = -(r r'' - r'^2)/r^3 (r' = dr/dtheta); at the valley bottom r' = 0 and
+    the arc gives r'' = -D (D + rho)/rho, so the valley's radius of curvature is
+    rho (D + rho)/D: a little wider than the corner that seats in it (derived)."""
+    pair = rs.track_for(rs.Wheel.polygon(sides=n, apothem=a, corner_radius=rho))
+    ue, D, flat, arc = rounded_polygon_parts(n, a, rho)
+    P = pair.track.period
+    # x = 0 is the crest (least radius, a face's foot below the axle).
+    u = np.linspace(-0.95, 0.95, 41) * a * math.asinh(math.tan(ue))
+    for k in range(n):
+        np.testing.assert_allclose(pair.track.y(k * P + u), -a * np.cosh(u / a), rtol=1e-11)
+    # Valley bottom halfway between crests: depth D + rho, curvature 1 / (rho (D + rho) / D).
+    xv = 0.5 * P
+    np.testing.assert_allclose(-pair.track.y(xv), D + rho, rtol=1e-11)
+    h = 1e-2 * rho  # central difference: truncation ~ (h/rho)^2/12, rounding ~ 1e-13 |y|/h^2
+    ypp = (pair.track.y(xv + h) - 2 * pair.track.y(xv) + pair.track.y(xv - h)) / h**2
+    np.testing.assert_allclose(1.0 / ypp, rho * (D + rho) / D, rtol=1e-4)
+
+
+def test_rounded_corners_limits_and_errors():
+    sharp = rs.track_for(rs.Wheel.polygon(sides=5, apothem=0.1))
+    tiny = rs.track_for(rs.Wheel.polygon(sides=5, apothem=0.1, corner_radius=1e-7))
+    np.testing.assert_allclose(tiny.revolution_length, sharp.revolution_length, rtol=1e-5)
+    with pytest.raises(rs.RidesimError, match="too large"):
+        rs.Wheel.polygon(sides=4, apothem=0.1, corner_radius=0.1)
+    with pytest.raises(rs.RidesimError, match="convex"):
+        rs.Wheel.polygon_from_vertices([(0.2, 0.0), (0.0, 0.05), (-0.2, 0.0), (0.0, 0.2)],
+                                       axle=(0.0, 0.1), corner_radius=0.01)
+    with pytest.raises(rs.RidesimError, match="corner_radius"):
+        rs.Wheel.polygon(sides=4, apothem=0.1, corner_radius=-0.01)

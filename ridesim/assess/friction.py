@@ -257,6 +257,8 @@ def contact_loads(
 def cycle_nodes(pair: RollingPair, n: int = 2048, offsets_m=(0.0,)) -> tuple[np.ndarray, np.ndarray]:
     """Quadrature nodes over one revolution, split at every cusp a wheel meets.
 
+    Also split where a smooth rim's curvature jumps (:attr:`ridesim.Wheel.breaks`).
+
     A vehicle reference point at ``x`` puts axle ``i`` at ``x + offsets_m[i]``, so a cusp
     at ``x_c`` is met at ``x = x_c - offsets_m[i]``. Between those breaks the loads are
     smooth and composite 16-point Gauss-Legendre panels integrate them to high order; at every break two
@@ -285,6 +287,12 @@ def cycle_nodes(pair: RollingPair, n: int = 2048, offsets_m=(0.0,)) -> tuple[np.
         raise InputError(f"n must be an integer >= 16, got {n!r}")
     L = float(pair.revolution_length)
     cusps = np.array([c.x_m for c in pair.cusps], dtype=float)
+    # Where a smooth rim's curvature jumps (a rounded polygon's flats meet its arcs) the loads
+    # have a kink and the slope its peak: split there too.
+    breaks = pair.wheel.breaks if pair.closed else ()
+    if breaks:
+        xb = pair.axle_x(np.asarray(breaks, dtype=float) + 0.5 * math.pi)
+        cusps = np.concatenate([cusps, np.mod(xb, L)])
     offs = np.asarray(offsets_m, dtype=float).ravel()
     if cusps.size == 0:
         x = L * np.arange(n) / n

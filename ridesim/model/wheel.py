@@ -20,6 +20,7 @@ from dataclasses import dataclass
 import numpy as np
 
 from ridesim.errors import GeometryError, InputError
+from ridesim.model.checks import finite as _finite
 from ridesim.model.checks import point as _point
 from ridesim.model.checks import positive as _positive
 
@@ -74,8 +75,10 @@ class Wheel:
         params: dict | None = None,
         shape_offset: Sequence[float] = (0.0, 0.0),
         symmetry: int | None = None,
+        breaks: Sequence[float] = (),
     ) -> None:
         self._kind = kind
+        self._breaks = tuple(sorted(float(b) % TWO_PI for b in breaks))
         self._params = dict(params or {})
         self._shape_offset = (float(shape_offset[0]), float(shape_offset[1]))
         if vertices is not None:
@@ -102,6 +105,7 @@ class Wheel:
         circumradius: float | None = None,
         side: float | None = None,
         axle: Sequence[float] = (0.0, 0.0),
+        corner_radius: float = 0.0,
     ) -> Wheel:
         """Regular polygon centred on the origin with one face at the bottom.
 
@@ -117,6 +121,10 @@ class Wheel:
             Side length [m]. Give exactly one of apothem, circumradius, side.
         axle : pair of float
             Axle position in the polygon's frame [m]; default the centre.
+        corner_radius : float
+            Radius [m] to which every corner is rounded, the faces staying at the apothem
+            (a smooth rim of flats and arcs; see :meth:`polygon_from_vertices`); 0 for sharp
+            corners.
 
         Returns
         -------
@@ -141,11 +149,14 @@ class Wheel:
         ax = _point("axle", axle)
         params = {"sides": int(sides), "apothem_m": a, "circumradius_m": R,
                   "side_m": 2 * a * math.tan(half), "axle_m": (float(ax[0]), float(ax[1]))}
+        if _finite("corner_radius", corner_radius, ge=0.0) > 0:
+            return cls._rounded(verts - ax, float(corner_radius), params, shape_offset=-ax)
         return cls._from_vertices("polygon", verts - ax, params, shape_offset=-ax)
 
     @classmethod
     def polygon_from_vertices(
-        cls, vertices: Sequence[Sequence[float]], axle: Sequence[float] = (0.0, 0.0)
+        cls, vertices: Sequence[Sequence[float]], axle: Sequence[float] = (0.0, 0.0), *,
+        corner_radius: float = 0.0,
     ) -> Wheel:
         """Polygon from its vertices (either orientation), axle given in the same frame.
 
@@ -155,6 +166,11 @@ class Wheel:
             Vertices [m], at least three.
         axle : pair of float
             Axle position [m] in the vertices' frame.
+        corner_radius : float
+            Radius [m] to which every corner is rounded (convex polygons only). The faces stay
+            where they are: the rim is the polygon's edges moved in by the radius, grown back
+            out by it (flats joined by circular arcs, tangent to both). It is smooth, so its
+            track has smooth valleys instead of cusps, which such a corner seats in.
 
         Returns
         -------
@@ -163,7 +179,79 @@ class Wheel:
         v = cls._vertex_array("vertices", vertices)
         ax = _point("axle", axle)
         params = {"vertices": len(v), "axle_m": (float(ax[0]), float(ax[1]))}
+        if _finite("corner_radius", corner_radius, ge=0.0) > 0:
+            return cls._rounded(v - ax, float(corner_radius), params, shape_offset=-ax)
         return cls._from_vertices("polygon", v - ax, params, shape_offset=-ax)
+
+    @classmethod
+    def _rounded(cls, v: np.ndarray, rho: float, params: dict, shape_offset) -> Wheel:
+        """The polygon ``v`` (axle frame) with every corner rounded to radius ``rho``."""
+        sharp = cls._from_vertices("polygon", v, {}, shape_offset=(0.0, 0.0))  # validates
+        v = np.array(sharp.vertices)  # anticlockwise
+        n = len(v)
+        nxt = np.roll(v, -1, axis=0)
+        edge = nxt - v
+        length = np.linalg.norm(edge, axis=1)
+        t = edge / length[:, None]
+        nrm = np.column_stack([t[:, 1], -t[:, 0]])  # outward for an anticlockwise outline
+        h = (v * nrm).sum(axis=1)  # distance of each edge line from the axle
+        prev = np.roll(np.arange(n), 1)
+        turn = t[prev, 0] * t[:, 1] - t[prev, 1] * t[:, 0]  # > 0 at a convex corner
+        scale = float(np.max(np.linalg.norm(v, axis=1)))
+        if np.any(turn <= 1e-12):
+            k = int(np.argmin(turn))
+            raise GeometryError(
+                f"corner_radius needs a convex polygon: the corner at vertex {k}"
+                f" {tuple(np.round(v[k], 6))} m turns inwards; give sharp corners (0) or a convex"
+                " outline"
+            )
+        # Centre of each corner's arc: the corner of the two edge lines moved in by rho.
+        c = np.empty_like(v)
+        for i in range(n):
+            A = np.array([nrm[prev[i]], nrm[i]])
+            c[i] = np.linalg.solve(A, [h[prev[i]] - rho, h[i] - rho])
+        # The flat of face i runs from c_i + rho n_i to c_{i+1} + rho n_i.
+        flat = ((np.roll(c, -1, axis=0) - c) * t).sum(axis=1)
+        if np.any(flat <= 1e-9 * scale) or np.any(h - rho <= 0):
+            i = int(np.argmin(flat))
+            raise GeometryError(
+                f"corner_radius = {rho:g} m is too large for this polygon: the flat of face {i}"
+                f" ({length[i]:.4g} m long) vanishes; use a smaller radius"
+            )
+        p_in = c + rho * nrm[prev]  # where each arc starts (end of the previous face's flat)
+        p_out = c + rho * nrm  # where it ends (start of face i's flat)
+        a_in = np.arctan2(p_in[:, 1], p_in[:, 0])
+        a_out = np.arctan2(p_out[:, 1], p_out[:, 0])
+        a0 = float(a_in[0])
+        # Unwrapped piece starts from a0: arc 0, face 0, arc 1, face 1, ... (anticlockwise).
+        starts = np.empty(2 * n)
+        starts[0::2] = np.mod(a_in - a0, TWO_PI)
+        starts[1::2] = np.mod(a_out - a0, TWO_PI)
+        starts[0] = 0.0
+        if np.any(np.diff(starts) <= 0):
+            raise GeometryError("corner_radius: the rounded outline is not star-shaped about the"
+                                " axle; move the axle inside or use a smaller radius")
+        alpha = np.arctan2(nrm[:, 1], nrm[:, 0])
+        cc = (c * c).sum(axis=1)
+
+        def radius_fn(phi: np.ndarray) -> np.ndarray:
+            phi = np.asarray(phi, dtype=float)
+            u = np.mod(phi - a0, TWO_PI)
+            j = np.clip(np.searchsorted(starts, u, side="right") - 1, 0, 2 * n - 1)
+            i = j // 2
+            dx, dy = np.cos(phi), np.sin(phi)
+            # Arc: the far root of |r d - c| = rho; face: the edge line h / cos(phi - alpha).
+            dc = dx * c[i, 0] + dy * c[i, 1]
+            arc = dc + np.sqrt(np.maximum(rho * rho - (cc[i] - dc * dc), 0.0))
+            with np.errstate(divide="ignore"):
+                face = h[i] / np.cos(phi - alpha[i])
+            return np.where(j % 2 == 0, arc, face)
+
+        out = dict(params)
+        out["corner_radius_m"] = rho
+        sym = sharp.symmetry
+        return cls("rounded_polygon", radius_fn=radius_fn, params=out, shape_offset=shape_offset,
+                   symmetry=sym, breaks=tuple(np.mod(np.concatenate([a_in, a_out]), TWO_PI)))
 
     @classmethod
     def outline(cls, points: Sequence[Sequence[float]], axle: Sequence[float] = (0.0, 0.0)) -> Wheel:
@@ -398,7 +486,7 @@ class Wheel:
     # ------------------------------------------------------------------ public API
     @property
     def kind(self) -> str:
-        """Constructor family: polygon, outline, ellipse, circle, polar or solved."""
+        """Constructor family: polygon, rounded_polygon, outline, ellipse, circle, polar or solved."""
         return self._kind
 
     @property
@@ -420,6 +508,15 @@ class Wheel:
     def kinks(self) -> tuple[float, ...]:
         """Polar angles [rad] in [0, 2π) of corners of the rim (vertices)."""
         return self._kinks
+
+    @property
+    def breaks(self) -> tuple[float, ...]:
+        """Polar angles [rad] in [0, 2π) where a smooth rim's curvature jumps.
+
+        The ends of the flats and arcs of a rounded polygon: not corners, but integrators
+        split there.
+        """
+        return self._breaks
 
     @property
     def symmetry(self) -> int:

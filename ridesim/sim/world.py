@@ -476,8 +476,12 @@ def _inset_convex(v: np.ndarray, r: float) -> np.ndarray:
     c = (v * nrm).sum(axis=1) - r  # offset lines n . p = c
     n0, c0 = np.roll(nrm, 1, axis=0), np.roll(c, 1)  # previous edge
     det = n0[:, 0] * nrm[:, 1] - n0[:, 1] * nrm[:, 0]
-    x = (c0 * nrm[:, 1] - c * n0[:, 1]) / det
-    y = (n0[:, 0] * c - nrm[:, 0] * c0) / det
+    # A vertex between two collinear edges (on a flat of a rounded polygon) has no mitre: it
+    # moves in along the common normal.
+    flat = np.abs(det) <= 1e-12
+    safe = np.where(flat, 1.0, det)
+    x = np.where(flat, v[:, 0] - r * nrm[:, 0], (c0 * nrm[:, 1] - c * n0[:, 1]) / safe)
+    y = np.where(flat, v[:, 1] - r * nrm[:, 1], (n0[:, 0] * c - nrm[:, 0] * c0) / safe)
     return np.column_stack([x, y])
 
 

@@ -93,9 +93,16 @@ def track_for(wheel: Wheel, *, path: str = "line") -> RollingPair:
             cusps.append(Cusp(x_m=float(x_v[i] % rev), vertex=j, phi_rad=phi,
                               depth_m=float(np.hypot(*verts[j]))))
     else:
-        kinks = [_wrap_pi(kk + HALF_PI - theta0) + theta0 for kk in wheel.kinks]
-        kinks = sorted(t + TWO_PI if t < theta0 else t for t in kinks)
-        breaks = [theta0, *[t for t in kinks if theta0 < t < theta0 + TWO_PI], theta0 + TWO_PI]
+        def unwrap(angles):
+            ts = [_wrap_pi(kk + HALF_PI - theta0) + theta0 for kk in angles]
+            return sorted(t + TWO_PI if t < theta0 else t for t in ts)
+
+        kinks = unwrap(wheel.kinks)
+        corner_t = [t for t in kinks if theta0 < t < theta0 + TWO_PI]
+        # Curvature breaks of a smooth rim (a rounded polygon's flats and arcs) split the
+        # tables too, but the track stays smooth there: no cusps.
+        smooth_t = [t for t in unwrap(wheel.breaks) if theta0 < t < theta0 + TWO_PI]
+        breaks = [theta0, *sorted(set(corner_t) | set(smooth_t)), theta0 + TWO_PI]
 
         def g(theta: np.ndarray) -> np.ndarray:
             return wheel.radius(theta - HALF_PI)
@@ -120,7 +127,7 @@ def track_for(wheel: Wheel, *, path: str = "line") -> RollingPair:
                 return rmap.slope(np.mod(x, rev))
 
         cusps = []
-        for t in breaks[1:-1]:
+        for t in corner_t:
             xc = float(table.forward.G(np.array([t]))[0])
             cusps.append(Cusp(x_m=xc, vertex=None, phi_rad=float((t - HALF_PI) % TWO_PI),
                               depth_m=float(wheel.radius(np.array(t - HALF_PI)))))
