@@ -15,6 +15,7 @@ import math
 import numpy as np
 import pytest
 
+import ridesim as rs
 from ridesim.errors import SimulationError
 from ridesim.io.build import solve_scenario, wheel_mass
 from ridesim.io.scenario import load_scenario, scenario_from_dict
@@ -372,3 +373,19 @@ def test_a_torque_below_the_rolling_resistance_does_not_move_the_cart(ratio, sta
     t_start = crr * (w.body_mass_kg + w.wheel_mass_kg) * G * r
     res = simulate(sc.replace_many({"drive.torque_Nm": ratio * t_start}))
     assert res.drive["stalled"] is stalls
+
+
+def test_rounded_corners_ride_level_on_the_track_solved_for_them():
+    """A square with 15 mm corners (5 % of its apothem) on the track solved for sharp corners
+    dips at every cusp (the corner cannot reach the cusp's bottom) and rocks out of phase; on
+    the track solved for the rounded wheel, an ideal pair, the axle stays level (Hall &
+    Wagon 1992) up to the solver's own error. The engine builds the rounded wheel exactly
+    (a pymunk polygon with that corner radius), not as facets."""
+    sc = square(1.5, seconds=3.0).replace_many({"wheel.corner_radius_m": 0.015})
+    on_sharp = simulate(sc)
+    pair = rs.track_for(rs.Wheel.polygon(sides=4, apothem=A, corner_radius=0.015))
+    eng = PymunkEngine(sc, pair, wheel_mass(sc, pair.wheel))
+    on_rounded = ride.SimResult.from_probes(eng.run())
+    assert eng.world.corner_radius_m == 0.015 and eng.world.wheel_error_m == 0.0
+    assert on_rounded.axle_bounce_m < 0.2e-3
+    assert on_rounded.axle_bounce_m < 0.3 * on_sharp.axle_bounce_m

@@ -79,6 +79,7 @@ class Wheel:
     ) -> None:
         self._kind = kind
         self._breaks = tuple(sorted(float(b) % TWO_PI for b in breaks))
+        self._rounding: tuple[np.ndarray, float] | None = None
         self._params = dict(params or {})
         self._shape_offset = (float(shape_offset[0]), float(shape_offset[1]))
         if vertices is not None:
@@ -250,8 +251,11 @@ class Wheel:
         out = dict(params)
         out["corner_radius_m"] = rho
         sym = sharp.symmetry
-        return cls("rounded_polygon", radius_fn=radius_fn, params=out, shape_offset=shape_offset,
-                   symmetry=sym, breaks=tuple(np.mod(np.concatenate([a_in, a_out]), TWO_PI)))
+        w = cls("rounded_polygon", radius_fn=radius_fn, params=out, shape_offset=shape_offset,
+                symmetry=sym, breaks=tuple(np.mod(np.concatenate([a_in, a_out]), TWO_PI)))
+        v.setflags(write=False)
+        w._rounding = (v, rho)
+        return w
 
     @classmethod
     def outline(cls, points: Sequence[Sequence[float]], axle: Sequence[float] = (0.0, 0.0)) -> Wheel:
@@ -517,6 +521,15 @@ class Wheel:
         split there.
         """
         return self._breaks
+
+    @property
+    def rounding(self) -> tuple[np.ndarray, float] | None:
+        """A rounded polygon's sharp vertices [m] and corner radius [m]; None for other wheels.
+
+        The vertices are in the axle frame, anticlockwise; the rim is that polygon's edges
+        moved in by the radius and grown back out by it.
+        """
+        return self._rounding
 
     @property
     def symmetry(self) -> int:

@@ -1073,6 +1073,11 @@ def build_world(scenario, pair, mass, options: WorldOptions | None = None) -> Wo
 
     # --- wheel outline (pure geometry; shapes are made below)
     v, werr, corner, k_rim = wheel_outline(wheel, wtol)
+    if wheel.rounding is not None:
+        # A rounded polygon is exact in pymunk: its sharp polygon moved in by the corner radius,
+        # as a Poly with that radius (flats and circular arcs, no facets).
+        v, werr = np.array(wheel.rounding[0], dtype=float), 0.0
+        corner, k_rim = np.ones(len(v), dtype=bool), np.inf
     # Radii of the wheel as built: ranges, guard rails and speed caps use them; tolerances,
     # corner radius and track shapes keep the nominal ones.
     r_lo, r_hi = float(r_min), float(r_max)
@@ -1152,6 +1157,8 @@ def build_world(scenario, pair, mass, options: WorldOptions | None = None) -> Wo
 
     # --- wheel geometry
     cr, src = cr_guess, _corner_radius_source(scenario, opt)
+    if wheel.rounding is not None:
+        cr, src = float(wheel.rounding[1]), "wheel"
     if not np.any(corner):
         cr, src = 0.0, "none"
     if cr < 0:
