@@ -727,6 +727,12 @@ def _model_cautions(probes: Probes) -> list[str]:
         out.append(f"Wheel corners are rounded by {1e3 * info['corner_radius_m']:.3g} mm ({frac:.0f} % of"
                    " the least radius; set wheel.corner_radius_m to the real edge radius). A rounded"
                    " corner cannot reach the bottom of a cusp, so the wheel dips slightly there.")
+    elif info.get("corner_radius_source") in ("scenario", "option") and info.get("corner_radius_m"):
+        out.append(f"The track was solved for sharp corners and the wheel's are rounded by"
+                   f" {1e3 * info['corner_radius_m']:.3g} mm: they cannot reach the bottom of the"
+                   " cusps, so the wheel dips there and rocks a little out of phase (more the larger"
+                   " the radius). For a polygon wheel the Python API solves the track for rounded corners:"
+                   " rs.track_for(rs.Wheel.polygon(..., corner_radius=...)).")
     if info.get("body_inertia_estimated") and not info.get("pitch_held"):
         out.append("Body inertia was estimated as a box spanning the wheels; give"
                    " vehicle.body_inertia_kg_m2 for pitch figures you rely on.")
