@@ -43,7 +43,7 @@ def _cmd_solve(sc, args) -> tuple[dict, str]:
     out = pair.to_dict()
     lines = [f"scenario: {sc.name}"]
     if out["solved_from"] == "wheel":
-        lines.append(f"solved the track for the {out['wheel']['kind']} wheel")
+        lines.append(f"solved the track for the {out['wheel']['kind'].replace('_', ' ')} wheel")
     else:
         lines.append(f"solved the wheel for the {sc.track.shape} track: lowered by"
                      f" depth {_fmt_m(out['depth_m'])}")

@@ -222,3 +222,23 @@ def test_unclosed_track_is_not_rollable():
 def test_bad_input():
     with pytest.raises(InputError, match="Scenario"):
         check_scenario({"wheel": {}})
+
+
+def test_fitting_the_track_to_rounded_corners():
+    """wheel.fit_track_to_corners solves the track for the rounded wheel: no cusps, and the
+    friction a steady ride needs is (1 - r/a) tan(pi/n), where a flat meets its corner's arc
+    (derived in tests/test_assess_friction.py from Hall & Wagon's arches). Without it the
+    track is the sharp polygon's, tan(pi/n), and the check says the corners change the
+    contact there."""
+    base = {"wheel": {"shape": "polygon", "sides": 6, "apothem_m": 0.12, "corner_radius_m": 0.006},
+            "vehicle": {"body_mass_kg": 8.0, "axles": 1}, "surface": {"friction": 0.9}}
+    sharp = check_scenario(scenario_from_dict(base)).to_dict()
+    np.testing.assert_allclose(sharp["friction"]["required_peak"], math.tan(math.pi / 6), rtol=1e-8)
+    assert any("checked for sharp corners" in n for n in sharp["notes"])
+    fitted = dict(base, wheel=dict(base["wheel"], fit_track_to_corners=True))
+    d = check_scenario(scenario_from_dict(fitted)).to_dict()
+    contract(d)
+    np.testing.assert_allclose(d["friction"]["required_peak"],
+                               (1 - 0.006 / 0.12) * math.tan(math.pi / 6), rtol=1e-6)
+    assert not any("checked for sharp corners" in n for n in d["notes"])
+    assert d["rollable"] is True and d["cusps"]["count"] == 0

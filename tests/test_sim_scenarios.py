@@ -383,9 +383,14 @@ def test_rounded_corners_ride_level_on_the_track_solved_for_them():
     (a pymunk polygon with that corner radius), not as facets."""
     sc = square(1.5, seconds=3.0).replace_many({"wheel.corner_radius_m": 0.015})
     on_sharp = simulate(sc)
+    assert any("solved for sharp corners" in c for c in on_sharp.cautions)
     pair = rs.track_for(rs.Wheel.polygon(sides=4, apothem=A, corner_radius=0.015))
     eng = PymunkEngine(sc, pair, wheel_mass(sc, pair.wheel))
     on_rounded = ride.SimResult.from_probes(eng.run())
     assert eng.world.corner_radius_m == 0.015 and eng.world.wheel_error_m == 0.0
     assert on_rounded.axle_bounce_m < 0.2e-3
     assert on_rounded.axle_bounce_m < 0.3 * on_sharp.axle_bounce_m
+    # The scenario key does the same.
+    fitted = simulate(sc.replace_many({"wheel.fit_track_to_corners": True}))
+    assert fitted.axle_bounce_m == on_rounded.axle_bounce_m
+    assert not any("solved for sharp corners" in c for c in fitted.cautions)

@@ -310,7 +310,7 @@ def check_scenario(sc: Scenario) -> CheckResult:
             " `ridesim simulate` to see them"
         )
     spec = sc.wheel
-    if spec is not None and spec.corner_radius_m > 0:
+    if spec is not None and spec.corner_radius_m > 0 and not spec.fit_track_to_corners:
         notes.append(f"clearance was checked for sharp corners; the {1000 * spec.corner_radius_m:g}"
                      " mm corner radius changes the contact near the cusps")
 

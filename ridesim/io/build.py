@@ -124,10 +124,15 @@ def wheel_from_spec(spec: WheelSpec) -> Wheel:
     s = spec.shape
     ax = spec.axle_m
     if s == "polygon":
+        # Rounded corners shape the wheel itself only when the track is to fit them; else they
+        # are the simulated wheel's edge radius on the track solved for sharp corners.
+        cr = float(spec.corner_radius_m) if spec.fit_track_to_corners else 0.0
         if spec.vertices_m is not None:
-            return _wrap("wheel", Wheel.polygon_from_vertices, spec.vertices_m, axle=ax)
+            return _wrap("wheel", Wheel.polygon_from_vertices, spec.vertices_m, axle=ax,
+                         corner_radius=cr)
         return _wrap("wheel", Wheel.polygon, spec.sides, apothem=spec.apothem_m,
-                     circumradius=spec.circumradius_m, side=spec.side_m, axle=ax)
+                     circumradius=spec.circumradius_m, side=spec.side_m, axle=ax,
+                     corner_radius=cr)
     if s == "ellipse":
         return _wrap("wheel", Wheel.ellipse, spec.semi_axes_m, axle=ax)
     if s == "circle":

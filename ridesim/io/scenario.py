@@ -77,7 +77,7 @@ Point = tuple[float, float]
 
 _POLYGON_SIZES = ("apothem_m", "circumradius_m", "side_m", "vertices_m")
 _WHEEL_SHAPE_KEYS: dict[str, tuple[str, ...]] = {
-    "polygon": ("sides",) + _POLYGON_SIZES,
+    "polygon": ("sides", "fit_track_to_corners") + _POLYGON_SIZES,
     "ellipse": ("semi_axes_m",),
     "circle": ("radius_m",),
     "polar": ("radius_formula",),
@@ -178,6 +178,11 @@ class WheelSpec:
     corner_radius_m : float
         Radius in m to which sharp corners are rounded in the simulation
         (0: sharp).
+    fit_track_to_corners : bool or None
+        Polygon wheels: the corners really are rounded to ``corner_radius_m`` and the track
+        is solved for the rounded wheel (smooth valleys instead of cusps), for the check, the
+        cut files and the simulation alike. None (false): the track is solved for sharp
+        corners.
     scale : float
         As-built size over nominal size (dimensionless, e.g. 1.002 for a wheel
         cut 0.2 % large); the simulation rolls the scaled wheel on the nominal
@@ -205,6 +210,7 @@ class WheelSpec:
     corner_radius_m: float = 0.0
     scale: float = 1.0
     axle_error_m: Point = (0.0, 0.0)
+    fit_track_to_corners: bool | None = None
 
 
 @dataclass(frozen=True)
@@ -810,7 +816,8 @@ def _parse_wheel(raw: Any, base: Path) -> WheelSpec:
             if key == "axle_m":
                 fix = "the polar radius is measured from the axle; shift the formula instead"
             else:
-                fix = f"use one of {', '.join(k for k in own if k != 'sides')}"
+                fix = ("use one of "
+                       + ", ".join(k for k in own if k not in ("sides", "fit_track_to_corners")))
             raise ScenarioError(f"wheel.{key} is not used by shape \"{shape}\"; {fix}")
         raise _unknown("wheel", key, sorted(allowed), sorted(every))
 
@@ -867,6 +874,13 @@ def _parse_wheel(raw: Any, base: Path) -> WheelSpec:
     values["corner_radius_m"] = t.real("corner_radius_m", 0.0, ge=0)
     values["scale"] = t.real("scale", 1.0, gt=0)
     values["axle_error_m"] = t.pair("axle_error_m", (0.0, 0.0))
+    if shape == "polygon" and t.boolean("fit_track_to_corners", False):
+        if values["corner_radius_m"] <= 0:
+            raise ScenarioError(
+                "wheel.fit_track_to_corners = true needs the corners' radius: add"
+                " wheel.corner_radius_m (e.g. 0.005)"
+            )
+        values["fit_track_to_corners"] = True  # None (left out of to_dict) when false
     return WheelSpec(**values)
 
 

@@ -731,8 +731,8 @@ def _model_cautions(probes: Probes) -> list[str]:
         out.append(f"The track was solved for sharp corners and the wheel's are rounded by"
                    f" {1e3 * info['corner_radius_m']:.3g} mm: they cannot reach the bottom of the"
                    " cusps, so the wheel dips there and rocks a little out of phase (more the larger"
-                   " the radius). For a polygon wheel the Python API solves the track for rounded corners:"
-                   " rs.track_for(rs.Wheel.polygon(..., corner_radius=...)).")
+                   " the radius). For a polygon wheel, wheel.fit_track_to_corners = true solves the"
+                   " track for the rounded corners.")
     if info.get("body_inertia_estimated") and not info.get("pitch_held"):
         out.append("Body inertia was estimated as a box spanning the wheels; give"
                    " vehicle.body_inertia_kg_m2 for pitch figures you rely on.")

@@ -95,6 +95,10 @@ def _wheel_title(wheel) -> str:
     p = wheel.params
     if wheel.kind == "polygon" and "sides" in p:
         return f"regular polygon, {p['sides']} sides, apothem {p['apothem_m'] * 1000:.1f} mm"
+    if wheel.kind == "rounded_polygon":
+        what = (f"regular polygon, {p['sides']} sides, apothem {p['apothem_m'] * 1000:.1f} mm"
+                if "sides" in p else "polygon")
+        return f"{what}, corners rounded to {p['corner_radius_m'] * 1000:.3g} mm"
     if wheel.kind == "ellipse":
         a, b = p["semi_axes_m"]
         return f"ellipse {a * 1000:.1f} × {b * 1000:.1f} mm (semi-axes)"
