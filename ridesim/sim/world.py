@@ -95,6 +95,14 @@ pentagon and hexagon wheels. The price is the dip at each cusp, about
 ``kappa r^2 / (2 cos(phi))``: 42 micrometres for the 0.3 m square (see the module notes).
 """
 
+TRACK_MAX_TURN_RAD = math.radians(2.0)
+"""Largest turn [rad] of the track from one polyline edge to the next within a smooth stretch.
+
+Where the track bends tightly (the valley in which a rounded wheel corner seats, a few
+millimetres across) the chord tolerance alone leaves facets of 10 degrees and more; a
+rounded corner rolling through such a faceted valley hops from facet to facet (1 to 3 mm
+of bounce measured on squares and hexagons with corners of 0.5 to 1 % of the apothem)."""
+
 SLOP_M = 1e-3
 """Allowed contact overlap [m]: pymunk's default 0.1 means 10 cm at metre scale."""
 
@@ -304,14 +312,17 @@ def make_space(iterations: int, gravity_m_s2: tuple[float, float], slop_m: float
 
 
 def _sagitta_positions(s: np.ndarray, kappa: np.ndarray, tol_m: float, max_seg_m: float,
-                       min_seg: int) -> np.ndarray:
+                       min_seg: int, max_turn_rad: float = np.inf) -> np.ndarray:
     """Arc-length positions of vertices so that each chord's sagitta is about ``tol_m``.
 
     A chord of length ``h`` across a curve of curvature ``kappa`` stands off it by
     ``kappa h^2 / 8``; the vertex density per unit length is therefore
-    ``sqrt(kappa / (8 tol))``, floored at ``1 / max_seg_m``.
+    ``sqrt(kappa / (8 tol))``, floored at ``1 / max_seg_m`` and, with ``max_turn_rad``, at
+    ``kappa / max_turn_rad`` (no chord turns the curve by more than that).
     """
     dens = np.maximum(np.sqrt(np.abs(kappa) / (8.0 * tol_m)), 1.0 / max_seg_m)
+    if np.isfinite(max_turn_rad):
+        dens = np.maximum(dens, np.abs(kappa) / max_turn_rad)
     ds = np.diff(s)
     cum = np.concatenate(([0.0], np.cumsum(0.5 * (dens[1:] + dens[:-1]) * ds)))
     n = max(min_seg, int(math.ceil(cum[-1])))
@@ -366,7 +377,7 @@ def track_vertices(track, x_lo: float, x_hi: float, tol_m: float,
         xd = np.linspace(a, b, max(64, int(dense_n * (b - a) / P)))
         pts = np.column_stack([xd, track.y(xd)])
         s, kappa = _discrete_curvature(pts)
-        sv = _sagitta_positions(s, kappa, tol_m, max_seg, 1)
+        sv = _sagitta_positions(s, kappa, tol_m, max_seg, 1, TRACK_MAX_TURN_RAD)
         base.append(np.interp(sv, s, xd)[:-1])
     xb = np.concatenate(base)
     x0 = float(track.pieces()[0][0])
