@@ -815,6 +815,8 @@ def _parse_wheel(raw: Any, base: Path) -> WheelSpec:
         if key in every:
             if key == "axle_m":
                 fix = "the polar radius is measured from the axle; shift the formula instead"
+            elif key == "fit_track_to_corners":
+                fix = "it applies to polygon wheels only; remove it"
             else:
                 fix = ("use one of "
                        + ", ".join(k for k in own if k not in ("sides", "fit_track_to_corners")))

@@ -203,8 +203,8 @@ class Wheel:
             k = int(np.argmin(turn))
             raise GeometryError(
                 f"corner_radius needs a convex polygon: the corner at vertex {k}"
-                f" {tuple(np.round(v[k], 6))} m turns inwards; give sharp corners (0) or a convex"
-                " outline"
+                f" ({float(v[k, 0]):.6g}, {float(v[k, 1]):.6g}) m turns inwards; give sharp corners"
+                " (0) or a convex outline"
             )
         # Centre of each corner's arc: the corner of the two edge lines moved in by rho.
         c = np.empty_like(v)
@@ -425,7 +425,7 @@ class Wheel:
             k = int(np.argmin(cross))
             raise GeometryError(
                 f"the outline is not star-shaped about the axle (edge {k} from vertex"
-                f" {tuple(np.round(v[k], 6))} m is not seen from inside); move the axle"
+                f" ({float(v[k, 0]):.6g}, {float(v[k, 1]):.6g}) m is not seen from inside); move the axle"
                 " inside the outline or fix the points"
             )
         edge = nxt - v
