@@ -123,8 +123,9 @@ def test_turned_square_rests_on_its_face_like_the_closed_form_along_the_arch():
 
 @pytest.mark.parametrize("f_hz, expected", [(3.0, 1.0), (60.0, 1.0), (120.0, 0.0)])
 def test_band_limited_seat_acceleration_of_a_sine(f_hz, expected):
-    """h = A cos(2 pi f t) has acceleration A (2 pi f)^2 (textbook kinematics); harmonics above
-    the ISO 2631-1 band's 80 Hz are dropped."""
+    """h = A cos(2 pi f t) has peak acceleration A (2 pi f)^2 (simple harmonic motion:
+    Halliday, Resnick & Walker, "Fundamentals of Physics" [memory]); harmonics above the
+    ISO 2631-1 band's 80 Hz are dropped."""
     from ridesim.assess.phasing import SEAT_BAND_HZ, band_limited_peak_accel
 
     amp, period = 1e-3, 1.0

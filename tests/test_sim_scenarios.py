@@ -210,8 +210,8 @@ def test_torque_against_the_analytic_model(name):
 
 def _loss_coefficient(wheel, dt):
     """Mean drive power over weight x speed at steady speed: an equivalent rolling-resistance
-    coefficient of the engine's own losses (energy conservation puts it at 0 for a lossless
-    rigid wheel rolling without slip)."""
+    coefficient of the engine's own losses (work-energy theorem: 0 for a lossless rigid wheel
+    rolling without slip at steady speed; Halliday, Resnick & Walker [memory])."""
     sc = scenario_from_dict({
         "wheel": wheel, "vehicle": {"body_mass_kg": 10.0, "axles": 1},
         "drive": {"mode": "speed", "speed_m_s": 0.5}, "surface": {"friction": 1.0},
