@@ -418,12 +418,15 @@ def wheel_outline(wheel, tol_m: float, max_vertices: int = 720) -> tuple[np.ndar
     error_m : float
         Largest measured gap [m] between the polygon and the rim (0 for polygon wheels).
     corner : ndarray of bool, shape (K,)
-        True at vertices that are true corners of the rim (polygon vertices, kinks).
+        True at vertices that are true corners of the rim (polygon vertices, kinks); for a
+        rounded polygon, its sharp polygon's vertices (to be rounded by its corner radius).
     curvature_max : float
         Largest rim curvature [1/m] away from kinks (inf for polygon wheels).
     """
-    if wheel.is_polygon:
-        v = np.array(wheel.vertices, dtype=float)
+    if wheel.is_polygon or wheel.rounding is not None:
+        # A rounded polygon is exact in pymunk as its sharp polygon with every corner rounded
+        # (its corner radius is applied to the collision pieces, see build_world): no facets.
+        v = np.array(wheel.vertices if wheel.is_polygon else wheel.rounding[0], dtype=float)
         return v, 0.0, np.ones(len(v), dtype=bool), np.inf
     kinks = np.array(sorted(wheel.kinks), dtype=float)
     if len(kinks):
@@ -1084,11 +1087,6 @@ def build_world(scenario, pair, mass, options: WorldOptions | None = None) -> Wo
 
     # --- wheel outline (pure geometry; shapes are made below)
     v, werr, corner, k_rim = wheel_outline(wheel, wtol)
-    if wheel.rounding is not None:
-        # A rounded polygon is exact in pymunk: its sharp polygon moved in by the corner radius,
-        # as a Poly with that radius (flats and circular arcs, no facets).
-        v, werr = np.array(wheel.rounding[0], dtype=float), 0.0
-        corner, k_rim = np.ones(len(v), dtype=bool), np.inf
     # Radii of the wheel as built: ranges, guard rails and speed caps use them; tolerances,
     # corner radius and track shapes keep the nominal ones.
     r_lo, r_hi = float(r_min), float(r_max)
