@@ -23,7 +23,7 @@ import numpy as np
 import pytest
 
 import ridesim as rs
-from ridesim.io.drawings import CHORD_TOL_M, export_drawings, sample_curve, track_sections
+from ridesim.io.drawings import CHORD_TOL_M, export_drawings, sample_curve, track_sections, wheel_outline_mm
 
 SVG = "{http://www.w3.org/2000/svg}"
 TOL_MM = 0.01  # the brief: coordinates within 0.01 mm; the files carry 1e-4 mm digits
@@ -205,6 +205,25 @@ def test_ellipse_wheel_outline_within_chord_tolerance(ellipse_files):
     # Sheet: extent 2a by 2b.
     check_sheet(width, height, margins, pts, shift, (2 * A, 2 * B))
     np.testing.assert_allclose(read_csv_mm(out / "ellipse_wheel.csv"), pts, atol=1e-4)
+
+
+def test_rounded_wheel_outline_within_chord_tolerance():
+    """A polygon with rounded corners is its edges moved in by r, grown back by r (a Minkowski
+    sum with a disk: elementary geometry), so a point inside the inset square lies
+    r + (its distance to the inset's edges) below the rim, and a point beyond it
+    r - (its distance to the inset). Chords of the drawn outline stay within the promise."""
+    a, r = 0.3, 0.015
+    pts = wheel_outline_mm(rs.Wheel.polygon(sides=4, apothem=a, corner_radius=r)) / 1000.0
+    h = a - r  # half side of the inset square
+    f = np.linspace(0.0, 1.0, 33)[:, None, None]
+    q = (pts + f * (np.roll(pts, -1, axis=0) - pts)).reshape(-1, 2)  # points along every chord
+    ex = np.maximum(np.abs(q) - h, 0.0)  # beyond the inset square, per axis
+    outside = np.hypot(ex[:, 0], ex[:, 1])
+    inside = np.minimum(h - np.abs(q[:, 0]), h - np.abs(q[:, 1]))
+    depth = np.where(outside > 0, r - outside, r + inside)  # distance below the rim [m]
+    assert np.all(depth >= -1e-10)  # chords never stand outside the rim (convex outline)
+    assert depth.max() * 1000.0 < PROMISED_CHORD_MM
+    assert depth.max() <= 1.01 * CHORD_TOL_M
 
 
 def test_ellipse_centre_of_mass_mark(ellipse_files):

@@ -403,7 +403,8 @@ class _SmoothRim:
         w = pair.wheel
         if points is None:
             phi = np.linspace(0.0, TWO_PI, int(n), endpoint=False)
-            phi = np.unique(np.concatenate([phi, np.mod(np.array(w.kinks, dtype=float), TWO_PI)]))
+            splits = np.array(tuple(w.kinks) + tuple(w.breaks), dtype=float)
+            phi = np.unique(np.concatenate([phi, np.mod(splits, TWO_PI)]))
             r = np.asarray(w.radius(phi), dtype=float)
             self.P = np.column_stack([r * np.cos(phi), r * np.sin(phi)])
             self.phi = phi

@@ -157,8 +157,10 @@ def wheel_outline_mm(wheel, tol_m: float = CHORD_TOL_M) -> np.ndarray:
     """
     if wheel.is_polygon:
         return np.array(wheel.vertices, dtype=float) * 1000.0
-    kinks = [k for k in wheel.kinks if 0.0 < k < TWO_PI]
-    start = wheel.kinks[0] if wheel.kinks else 0.0
+    # Split at corners and at curvature breaks (a rounded polygon's flat-to-arc joints).
+    splits = sorted(set(wheel.kinks) | set(wheel.breaks))
+    kinks = [k for k in splits if 0.0 < k < TWO_PI]
+    start = splits[0] if splits else 0.0
 
     def pts(phi: np.ndarray) -> np.ndarray:
         r = wheel.radius(phi)
