@@ -139,3 +139,23 @@ def test_runs_are_deterministic():
     assert a.to_dict() == b.to_dict()
     np.testing.assert_array_equal(a.probes.axle_y_m, b.probes.axle_y_m)
     np.testing.assert_array_equal(a.probes.shaft_torque_Nm, b.probes.shaft_torque_Nm)
+
+
+def test_time_at_the_torque_limit_follows_newton():
+    """A speed drive asked to ramp faster than its torque limit allows runs at that limit until
+    the cart reaches the target speed: with the limit T on each of n = 2 driven round wheels,
+    a = n T / r / (M + N I / r^2) (Newton's second law, as in the constant-torque test above),
+    so it is at the limit until t = v / a and the settled share of time at the limit is
+    (v/a - settle) / (duration - settle)."""
+    T, v, settle, dur = 0.1, 0.5, 0.2, 3.0
+    sc = disk_scenario(mu=0.8, body_mass=5.0, axles=2, torque=1.0).replace_many({
+        "drive.mode": "speed", "drive.speed_m_s": v, "drive.accel_m_s2": 5.0,
+        "drive.max_torque_Nm": T, "run.duration_s": dur, "run.settle_s": settle})
+    res = simulate(sc)
+    w = res.probes.info
+    M = w["body_mass_kg"] + 2 * w["wheel_mass_kg"]
+    a = 2 * T / R / (M + 2 * w["wheel_inertia_kg_m2"] / R**2)
+    expected = 100.0 * (v / a - settle) / (dur - settle)
+    assert 20.0 < expected < 80.0  # the limit binds for a good part of the run, not all of it
+    np.testing.assert_allclose(res.drive["at_limit_pct"], expected, atol=1.0)
+    assert not res.drive["stalled"]
