@@ -87,6 +87,14 @@ def test_disk_slides_when_friction_is_below_a_third_of_the_grade(fraction):
     assert np.all(p.slip_speed_m_s[s, 0] > 0)
     grow = G * (math.sin(GRADE) - mu * math.cos(GRADE)) - 2 * mu * G * math.cos(GRADE)
     np.testing.assert_allclose(np.polyfit(p.time_s[s], p.slip_speed_m_s[s, 0], 1)[0], grow, rtol=0.02)
+    # Rim scrub over the settled record: the integral of that slip speed, grow t, from the
+    # later of the settling time and the moment it passes the threshold.
+    t_slip, scrub = ride.slip_scrub(p)
+    thr = ride.slip_threshold_m_s(p)
+    t_a = max(p.settle_s, thr / grow)
+    t_end = float(p.time_s[-1])
+    np.testing.assert_allclose(scrub, 0.5 * grow * (t_end**2 - t_a**2), rtol=0.03)
+    np.testing.assert_allclose(t_slip, t_end - t_a, rtol=0.03)
 
 
 def test_friction_just_above_a_third_of_the_grade_still_rolls():
