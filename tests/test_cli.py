@@ -137,7 +137,7 @@ def test_simulate_json_and_probe_csv_agree(tmp_path):
     # time): recompute it from the probe CSV.
     import numpy as np
 
-    from ridesim.comfort import weighted_rms
+    from ridesim.metrics.comfort import weighted_rms
 
     f = tmp_path / "toy.toml"
     f.write_text((SCENARIOS / "wave_track_sculpture.toml").read_text()

@@ -9,7 +9,6 @@ MODULES = [
     "ridesim.model.wheel",
     "ridesim.model.track",
     "ridesim.solve.forward",
-    "ridesim.comfort",
     "ridesim.assess.verdict",
     "ridesim.io.scenario",
     "ridesim.assess.clearance",

@@ -24,7 +24,7 @@ import pytest
 import scipy.signal
 
 import ridesim as rs
-import ridesim.comfort as rc
+import ridesim.metrics.comfort as rc
 from ridesim.metrics import comfort as mc
 
 FS = 1000.0  # the simulator's sample rate [Hz]

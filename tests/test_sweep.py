@@ -149,3 +149,20 @@ def test_sigkill_then_resume_loses_and_repeats_nothing(tmp_path):
     fresh = tmp_path / "fresh"
     run_sweep(load_sweep(f), fresh, workers=2)
     assert (fresh / "results.csv").read_bytes() == (out / "results.csv").read_bytes()
+
+
+def test_rows_of_another_ridesim_version_are_refused(tmp_path, monkeypatch):
+    # A case's key includes the ridesim version: after an upgrade, a folder of old rows is
+    # refused with one line rather than silently mixed into the new table.
+    import ridesim.sweep.plan as plan_mod
+
+    sweep = write_sweep(tmp_path, GRID)
+    out = run_sweep(load_sweep(sweep), tmp_path / "out", workers=1)
+    assert out.done == 12
+    monkeypatch.setattr(plan_mod, "__version__", "0.0.0-older")
+    with pytest.raises(ScenarioError, match="another ridesim version"):
+        run_sweep(load_sweep(sweep), tmp_path / "out", workers=1)
+    # Same version: the rows are reused, nothing recomputed.
+    monkeypatch.undo()
+    again = run_sweep(load_sweep(sweep), tmp_path / "out", workers=1)
+    assert (again.done, again.computed) == (12, 0)

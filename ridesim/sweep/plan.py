@@ -32,6 +32,7 @@ from typing import Any
 
 import numpy as np
 
+from ridesim._version import __version__
 from ridesim.errors import ScenarioError
 from ridesim.io.scenario import Scenario, load_scenario, scenario_keys
 
@@ -134,8 +135,10 @@ def _draw_spec(key: str, spec: Any) -> tuple[str, np.ndarray, np.ndarray]:
 
 
 def _fingerprint(values: dict, base: Scenario, run: str) -> str:
-    blob = json.dumps({"v": values, "base": base.to_dict(), "run": run}, sort_keys=True,
-                      default=str)
+    # The ridesim version is part of every case's key: after an upgrade, rows computed by
+    # another version are not kept silently (run_sweep refuses the folder instead).
+    blob = json.dumps({"v": values, "base": base.to_dict(), "run": run, "ridesim": __version__},
+                      sort_keys=True, default=str)
     return hashlib.sha256(blob.encode()).hexdigest()[:16]
 
 

@@ -217,8 +217,8 @@ def run_sweep(
         c = by_index.get(i)
         if c is None or c.key != r["key"]:
             raise ScenarioError(
-                f"{out} holds results of a different sweep (case {i} differs from this sweep"
-                " file); use a new --out folder or delete the old one"
+                f"{out} holds results of a different sweep or of another ridesim version (case {i}"
+                " differs); use a new --out folder or delete the old one"
             )
     todo = [c for c in plan.cases if c.index not in rows]
     if workers is not None and (isinstance(workers, bool) or workers < 1):
