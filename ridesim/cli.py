@@ -99,6 +99,29 @@ def _cmd_size_motor(sc, args) -> tuple[dict, str]:
     return res.to_dict(), res.to_text()
 
 
+def _check_out(out: str) -> None:
+    """Refuse an ``--out`` that cannot become a writable folder, before any work or write.
+
+    The folder itself is not created here (a later bad-input error must leave nothing
+    behind); its nearest existing ancestor must be a folder we may write into.
+    """
+    path = Path(out)
+    if path.exists() and not path.is_dir():
+        raise ScenarioError_(f"--out {out} is an existing file, not a folder; give a folder"
+                             " path (created if missing) or move the file away")
+    probe = path
+    while not probe.exists():
+        if probe.parent == probe:
+            break
+        probe = probe.parent
+    if not probe.is_dir():
+        raise ScenarioError_(f"--out {out} cannot be created: {probe} is a file, not a folder;"
+                             " give a folder path outside it")
+    if not os.access(probe, os.W_OK | os.X_OK):
+        what = "is not writable" if probe == path else f"cannot be created: {probe} is not writable"
+        raise ScenarioError_(f"--out {out} {what}; choose a folder you may write into")
+
+
 def _need_out(args, what: str) -> Path:
     if not args.out:
         raise ScenarioError_(f"ridesim {what} needs --out DIR (the folder to write into)")
@@ -328,6 +351,8 @@ def main(argv: list[str] | None = None) -> int:
         from ridesim.io.results import json_ready, write_json_atomic
         from ridesim.io.scenario import load_scenario
 
+        if args.out:
+            _check_out(args.out)
         if args.command == "sweep":
             return _cmd_sweep(args)
         sc = load_scenario(args.scenario)
