@@ -3,7 +3,9 @@
 ``ridesim COMMAND SCENARIO.toml [--json] [--out DIR]``. Exit codes: 0 ran
 (whatever the verdict), 2 bad input (one line on stderr naming the field and
 the fix), 1 internal error. With ``--json`` standard output is exactly one
-JSON object.
+JSON object. A value outside the range of real builds (the key table,
+``ridesim/io/schema.py``) is accepted with one ``warning:`` line each on
+stderr, and listed in the JSON output's ``warnings``.
 """
 
 from __future__ import annotations
@@ -356,9 +358,11 @@ def main(argv: list[str] | None = None) -> int:
         if args.command == "sweep":
             return _cmd_sweep(args)
         sc = load_scenario(args.scenario)
+        for line in sc.warnings:  # valid but outside real builds: most likely a unit slip
+            print(f"warning: {line}", file=sys.stderr)
         fn = commands[args.command][0]
         data, text = fn(sc, args)
-        data = json_ready(data)
+        data = json_ready({**data, "warnings": list(sc.warnings)})
         if args.out:
             write_json_atomic(Path(args.out) / f"{args.command}.json", data)
         if args.json:

@@ -12,6 +12,7 @@ MODULES = [
     "ridesim.comfort",
     "ridesim.assess.verdict",
     "ridesim.io.scenario",
+    "ridesim.io.schema",
     "ridesim.assess.clearance",
     "ridesim.assess.friction",
     "ridesim.metrics.comfort",
