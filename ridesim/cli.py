@@ -208,6 +208,9 @@ def _cmd_sweep(args) -> int:
     from ridesim.sweep.summary import best_cases, plot_metric, read_table
 
     plan = load_sweep(args.scenario)
+    warnings = _sweep_warnings(plan)
+    for line in warnings:
+        print(f"warning: {line}", file=sys.stderr)
     show = sys.stderr.isatty()
 
     def progress(done: int, failed: int, total: int) -> None:
@@ -223,7 +226,7 @@ def _cmd_sweep(args) -> int:
     rows = read_table(outcome.table)
     summary = {"cases": outcome.total, "done": outcome.done, "failed": outcome.failed,
                "computed_now": outcome.computed, "table": str(outcome.table),
-               "interrupted": outcome.interrupted}
+               "interrupted": outcome.interrupted, "warnings": warnings}
     if args.best:
         summary["best"] = [{"case": int(r["case"]), args.best: r[args.best],
                             **{c: r[c] for c in plan.columns}}
@@ -244,6 +247,22 @@ def _cmd_sweep(args) -> int:
         if "plot" in summary:
             print(f"  plot: {summary['plot']}")
     return 130 if outcome.interrupted and outcome.done < outcome.total else 0
+
+
+def _sweep_warnings(plan) -> list[str]:
+    """Plausibility warnings of a sweep: the base's unvaried keys, then one line per varied key."""
+    from ridesim.io.schema import KEYS, value_warnings
+
+    lines: list[str] = []
+    for k in KEYS:
+        spec = getattr(plan.base, k.section)
+        if k.path not in plan.columns and spec is not None:
+            lines += value_warnings(k.path, getattr(spec, k.name, None))
+    for col in plan.columns:
+        hits = [w for case in plan.cases for w in value_warnings(col, case.values.get(col))[:1]]
+        if hits:
+            lines.append(f"{hits[0]} (in {len(hits)} of {len(plan.cases)} cases)")
+    return lines
 
 
 def _progress_bar(label: str) -> Callable[[float], None]:

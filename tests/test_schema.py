@@ -50,7 +50,9 @@ def test_every_spec_field_has_one_table_row_and_takes_its_default(section):
     spec = SPECS[section]
     names = {f.name for f in dataclasses.fields(spec)}
     rows = {k.name for k in KEYS if k.section == section}
-    assert names == rows
+    assert names == rows, (
+        f"{section}: fields without a row {sorted(names - rows)}, rows without a field "
+        f"{sorted(rows - names)}; each key is one Key row in ridesim/io/schema.py")
     for f in dataclasses.fields(spec):
         row = KEY[f"{section}.{f.name}"]
         if f.default is dataclasses.MISSING:  # shape: the only field without a default
@@ -191,3 +193,20 @@ def test_each_unit_agrees_with_its_key_name():
             assert k.unit == suffix_unit, k.path
         elif k.kind in ("real", "int", "reals", "ints"):
             assert k.unit == "-", k.path  # a number without a unit suffix is dimensionless
+
+
+def test_sweep_warns_once_per_varied_key_and_for_the_base(tmp_path, capsys):
+    base = tmp_path / "base.toml"
+    base.write_text((SCENARIOS / "hexagon_trolley.toml").read_text()
+                    .replace("speed_m_s = 0.4", "speed_m_s = 40.0"))
+    sweep = tmp_path / "sweep.toml"
+    sweep.write_text('base = "base.toml"\nrun = "solve"\n[vary]\n'
+                     '"surface.friction" = [0.7, 70.0, 90.0]\n')
+    assert main(["sweep", str(sweep), "--out", str(tmp_path / "out"), "--workers", "1",
+                 "--json"]) == 0
+    out, err = capsys.readouterr()
+    lines = err.strip().splitlines()
+    assert [line.split(" =")[0] for line in lines] == ["warning: drive.speed_m_s",
+                                                       "warning: surface.friction"]
+    assert lines[1].endswith("(in 2 of 3 cases)")
+    assert json.loads(out)["warnings"] == [line.removeprefix("warning: ") for line in lines]

@@ -57,6 +57,7 @@ __all__ = [
     "default_of",
     "section_keys",
     "plausibility_warnings",
+    "value_warnings",
     "markdown_reference",
 ]
 
@@ -425,6 +426,34 @@ def _numbers(value: Any) -> list[tuple[str, float]]:
     return []
 
 
+def value_warnings(path: str, value: Any) -> list[str]:
+    """One line per number of a key's value outside the plausible range of real builds.
+
+    Parameters
+    ----------
+    path : str
+        Dotted key path such as ``"surface.friction"``; keys without a plausible range
+        (or not in the table) give no warnings.
+    value : object
+        The key's value in its unit: a number, a pair or a list of numbers; other values
+        (None, text, point lists) give no warnings.
+
+    Returns
+    -------
+    list of str
+        Messages such as ``surface.friction = 70 is outside the plausible range 0.1 to 2
+        (handbook tables: ...); accepted, but check the value and its unit``.
+    """
+    k = KEY.get(path)
+    if k is None or k.plausible is None or k.kind == "points":
+        return []
+    lo, hi = k.plausible
+    unit = "" if k.unit in ("", "-") else f" {k.unit}"
+    return [f"{path}{suffix} = {x:g}{unit} is outside the plausible range {lo:g} to {hi:g}"
+            f"{unit} ({k.source}); accepted, but check the value and its unit"
+            for suffix, x in _numbers(value) if not lo <= x <= hi]
+
+
 def plausibility_warnings(section: str, spec: Any) -> list[str]:
     """One line per value of a section outside the plausible range of real builds.
 
@@ -438,23 +467,14 @@ def plausibility_warnings(section: str, spec: Any) -> list[str]:
     Returns
     -------
     list of str
-        Messages such as ``surface.friction = 70 is outside the plausible range 0.1 to 2
-        (handbook tables: ...); accepted, but check the value and its unit``.
+        The :func:`value_warnings` of every key of the section, in table order.
     """
     out: list[str] = []
     if spec is None:
         return out
     for k in KEYS:
-        if k.section != section or k.plausible is None:
-            continue
-        lo, hi = k.plausible
-        unit = "" if k.unit in ("", "-") else f" {k.unit}"
-        for suffix, x in _numbers(getattr(spec, k.name, None)):
-            if lo <= x <= hi:
-                continue
-            out.append(f"{k.path}{suffix} = {x:g}{unit} is outside the plausible range "
-                       f"{lo:g} to {hi:g}{unit} ({k.source}); accepted, but check the value "
-                       "and its unit")
+        if k.section == section:
+            out += value_warnings(k.path, getattr(spec, k.name, None))
     return out
 
 
