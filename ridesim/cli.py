@@ -3,7 +3,9 @@
 ``ridesim COMMAND SCENARIO.toml [--json] [--out DIR]``. Exit codes: 0 ran
 (whatever the verdict), 2 bad input (one line on stderr naming the field and
 the fix), 1 internal error. With ``--json`` standard output is exactly one
-JSON object.
+JSON object. A value outside the range of real builds (the key table,
+``ridesim/io/schema.py``) is accepted with one ``warning:`` line each on
+stderr, and listed in the JSON output's ``warnings``.
 """
 
 from __future__ import annotations
@@ -99,6 +101,29 @@ def _cmd_size_motor(sc, args) -> tuple[dict, str]:
     return res.to_dict(), res.to_text()
 
 
+def _check_out(out: str) -> None:
+    """Refuse an ``--out`` that cannot become a writable folder, before any work or write.
+
+    The folder itself is not created here (a later bad-input error must leave nothing
+    behind); its nearest existing ancestor must be a folder we may write into.
+    """
+    path = Path(out)
+    if path.exists() and not path.is_dir():
+        raise ScenarioError_(f"--out {out} is an existing file, not a folder; give a folder"
+                             " path (created if missing) or move the file away")
+    probe = path
+    while not probe.exists():
+        if probe.parent == probe:
+            break
+        probe = probe.parent
+    if not probe.is_dir():
+        raise ScenarioError_(f"--out {out} cannot be created: {probe} is a file, not a folder;"
+                             " give a folder path outside it")
+    if not os.access(probe, os.W_OK | os.X_OK):
+        what = "is not writable" if probe == path else f"cannot be created: {probe} is not writable"
+        raise ScenarioError_(f"--out {out} {what}; choose a folder you may write into")
+
+
 def _need_out(args, what: str) -> Path:
     if not args.out:
         raise ScenarioError_(f"ridesim {what} needs --out DIR (the folder to write into)")
@@ -183,6 +208,9 @@ def _cmd_sweep(args) -> int:
     from ridesim.sweep.summary import best_cases, plot_metric, read_table
 
     plan = load_sweep(args.scenario)
+    warnings = _sweep_warnings(plan)
+    for line in warnings:
+        print(f"warning: {line}", file=sys.stderr)
     show = sys.stderr.isatty()
 
     def progress(done: int, failed: int, total: int) -> None:
@@ -198,7 +226,7 @@ def _cmd_sweep(args) -> int:
     rows = read_table(outcome.table)
     summary = {"cases": outcome.total, "done": outcome.done, "failed": outcome.failed,
                "computed_now": outcome.computed, "table": str(outcome.table),
-               "interrupted": outcome.interrupted}
+               "interrupted": outcome.interrupted, "warnings": warnings}
     if args.best:
         summary["best"] = [{"case": int(r["case"]), args.best: r[args.best],
                             **{c: r[c] for c in plan.columns}}
@@ -219,6 +247,22 @@ def _cmd_sweep(args) -> int:
         if "plot" in summary:
             print(f"  plot: {summary['plot']}")
     return 130 if outcome.interrupted and outcome.done < outcome.total else 0
+
+
+def _sweep_warnings(plan) -> list[str]:
+    """Plausibility warnings of a sweep: the base's unvaried keys, then one line per varied key."""
+    from ridesim.io.schema import KEYS, value_warnings
+
+    lines: list[str] = []
+    for k in KEYS:
+        spec = getattr(plan.base, k.section)
+        if k.path not in plan.columns and spec is not None:
+            lines += value_warnings(k.path, getattr(spec, k.name, None))
+    for col in plan.columns:
+        hits = [w for case in plan.cases for w in value_warnings(col, case.values.get(col))[:1]]
+        if hits:
+            lines.append(f"{hits[0]} (in {len(hits)} of {len(plan.cases)} cases)")
+    return lines
 
 
 def _progress_bar(label: str) -> Callable[[float], None]:
@@ -328,12 +372,16 @@ def main(argv: list[str] | None = None) -> int:
         from ridesim.io.results import json_ready, write_json_atomic
         from ridesim.io.scenario import load_scenario
 
+        if args.out:
+            _check_out(args.out)
         if args.command == "sweep":
             return _cmd_sweep(args)
         sc = load_scenario(args.scenario)
+        for line in sc.warnings:  # valid but outside real builds: most likely a unit slip
+            print(f"warning: {line}", file=sys.stderr)
         fn = commands[args.command][0]
         data, text = fn(sc, args)
-        data = json_ready(data)
+        data = json_ready({**data, "warnings": list(sc.warnings)})
         if args.out:
             write_json_atomic(Path(args.out) / f"{args.command}.json", data)
         if args.json:

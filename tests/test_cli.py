@@ -196,3 +196,67 @@ def test_every_sizing_or_grading_output_carries_the_safety_cautions_once(command
     assert len(cautions) > len(SAFETY_CAUTIONS)  # and the command's own model limits
     if command == "simulate":
         assert any("ISO 2631-1" in c for c in cautions)  # the comfort grade's own cautions
+
+
+def _tree(folder):
+    """Every path under ``folder`` with its bytes (files) or None (folders)."""
+    return {str(p.relative_to(folder)): (p.read_bytes() if p.is_file() else None)
+            for p in sorted(folder.rglob("*"))}
+
+
+@pytest.mark.parametrize("command", ["solve", "simulate", "export", "sweep"])
+def test_out_naming_an_existing_file_is_bad_input_and_changes_nothing(tmp_path, capsys, command):
+    # A file where the folder should be: one line naming --out and the fix, exit 2, and the
+    # file (and everything beside it) left as it was. The check runs before the scenario is
+    # even read, so a long command (simulate) costs nothing.
+    target = tmp_path / "results"
+    target.write_text("keep me\n")
+    before = _tree(tmp_path)
+    scenario = SCENARIOS / "hexagon_trolley.toml"
+    assert main([command, str(scenario), "--out", str(target)]) == 2
+    err = capsys.readouterr().err.strip().splitlines()
+    assert len(err) == 1 and "--out" in err[0] and "existing file" in err[0]
+    assert "internal error" not in err[0]
+    assert _tree(tmp_path) == before
+
+
+def test_out_under_an_existing_file_is_bad_input_and_changes_nothing(tmp_path, capsys):
+    # A folder that cannot be created, whoever runs the test (root included): its parent
+    # is a file.
+    blocker = tmp_path / "notes.txt"
+    blocker.write_text("keep me\n")
+    before = _tree(tmp_path)
+    assert main(["check", str(SCENARIOS / "hexagon_trolley.toml"),
+                 "--out", str(blocker / "out")]) == 2
+    err = capsys.readouterr().err.strip().splitlines()
+    assert len(err) == 1 and "--out" in err[0] and "is a file, not a folder" in err[0]
+    assert _tree(tmp_path) == before
+
+
+@pytest.mark.parametrize("sub", ["", "new"])
+def test_out_in_an_unwritable_folder_is_bad_input_and_changes_nothing(tmp_path, capsys, sub):
+    locked = tmp_path / "locked"
+    locked.mkdir()
+    (locked / "old.json").write_text("{}\n")
+    locked.chmod(0o555)
+    try:
+        try:  # root (with CAP_DAC_OVERRIDE) writes through folder permissions
+            (locked / "probe").touch()
+        except PermissionError:
+            pass
+        else:
+            pytest.skip("folder permissions do not bind this user; the file cases above run")
+        before = _tree(tmp_path)
+        out = locked / sub if sub else locked
+        assert main(["check", str(SCENARIOS / "hexagon_trolley.toml"), "--out", str(out)]) == 2
+        err = capsys.readouterr().err.strip().splitlines()
+        assert len(err) == 1 and "--out" in err[0] and "not writable" in err[0]
+        assert _tree(tmp_path) == before
+    finally:
+        locked.chmod(0o755)
+
+
+def test_out_folder_that_does_not_exist_yet_is_created(tmp_path):
+    out = tmp_path / "a" / "b"
+    assert main(["solve", str(SCENARIOS / "hexagon_trolley.toml"), "--out", str(out)]) == 0
+    assert (out / "solve.json").is_file()

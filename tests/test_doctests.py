@@ -11,6 +11,7 @@ MODULES = [
     "ridesim.solve.forward",
     "ridesim.assess.verdict",
     "ridesim.io.scenario",
+    "ridesim.io.schema",
     "ridesim.assess.clearance",
     "ridesim.assess.friction",
     "ridesim.metrics.comfort",

@@ -9,7 +9,10 @@ Every dimensional key name ends in its SI unit (``_m``, ``_kg``, ``_s``,
 Loading only validates data; it builds no model objects. Every problem raises
 :class:`ridesim.errors.ScenarioError` with a one-line message that starts with
 the dotted key path, names the offending value and says how to fix it, for
-example ``wheel.apothem_m must be > 0, got -0.3``.
+example ``wheel.apothem_m must be > 0, got -0.3``. Types, defaults and bounds
+come from the one key table in :mod:`ridesim.io.schema`; a value that is valid
+but outside the range of real builds is kept and reported in
+:attr:`Scenario.warnings`.
 
 Examples
 --------
@@ -33,6 +36,18 @@ from pathlib import Path
 from typing import Any
 
 from ridesim.errors import ScenarioError
+from ridesim.io import schema as _schema
+from ridesim.io.schema import (
+    DRIVE_MODES,
+    KEY,
+    MAX_TIMESTEP_S,
+    SECTIONS,
+    TRACK_SHAPES,
+    WHEEL_SHAPES,
+    default_of,
+    plausibility_warnings,
+    section_keys,
+)
 
 __all__ = [
     "WHEEL_SHAPES",
@@ -55,55 +70,26 @@ __all__ = [
     "scenario_keys",
 ]
 
-WHEEL_SHAPES = ("polygon", "ellipse", "circle", "polar", "outline")
-"""Allowed values of ``wheel.shape``."""
-
-TRACK_SHAPES = ("wave", "sawtooth", "formula", "points")
-"""Allowed values of ``track.shape``."""
-
-DRIVE_MODES = ("speed", "shaft_speed", "torque")
-"""Allowed values of ``drive.mode``."""
-
-DEFAULT_WHEEL_THICKNESS_M = 0.02
+DEFAULT_WHEEL_THICKNESS_M = default_of("wheel.thickness_m")
 """Wheel plate thickness in m used when none is given (also for derived wheels)."""
 
-DEFAULT_WHEEL_DENSITY_KG_M3 = 700.0
+DEFAULT_WHEEL_DENSITY_KG_M3 = default_of("wheel.density_kg_m3")
 """Wheel material density in kg/m^3 used when none is given (also for derived wheels)."""
-
-MAX_TIMESTEP_S = 0.02
-"""Largest accepted ``run.timestep_s`` in s."""
 
 Point = tuple[float, float]
 
 _POLYGON_SIZES = ("apothem_m", "circumradius_m", "side_m", "vertices_m")
+# Which keys each shape uses, from the key table (ridesim/io/schema.py).
 _WHEEL_SHAPE_KEYS: dict[str, tuple[str, ...]] = {
-    "polygon": ("sides", "fit_track_to_corners") + _POLYGON_SIZES,
-    "ellipse": ("semi_axes_m",),
-    "circle": ("radius_m",),
-    "polar": ("radius_formula",),
-    "outline": ("points_m", "file"),
+    shape: section_keys("wheel", shape) for shape in WHEEL_SHAPES
 }
-_WHEEL_BUILD = ("scale", "axle_error_m")
-_WHEEL_COMMON = (
-    "shape",
-    "scale",
-    "axle_error_m",
-    "axle_m",
-    "thickness_m",
-    "density_kg_m3",
-    "mass_kg",
-    "inertia_kg_m2",
-    "corner_radius_m",
-)
+_WHEEL_COMMON = tuple(k for k in section_keys("wheel") if not KEY[f"wheel.{k}"].shapes)
 _TRACK_SHAPE_KEYS: dict[str, tuple[str, ...]] = {
-    "wave": ("amplitude_m", "wavelength_m"),
-    "sawtooth": ("rise_m", "run_m"),
-    "formula": ("formula", "period_m"),
-    "points": ("points_m", "file", "period_m"),
+    shape: section_keys("track", shape) for shape in TRACK_SHAPES
 }
 _TRACK_BUILD = ("height_error_m", "error_seed", "joint_step_m", "section_length_m")
-_TRACK_COMMON = ("shape", "lobes", "depth_m") + _TRACK_BUILD
-_SECTIONS = ("wheel", "track", "vehicle", "drive", "surface", "run", "duty", "motor")
+_TRACK_COMMON = tuple(k for k in section_keys("track") if not KEY[f"track.{k}"].shapes)
+_SECTIONS = SECTIONS
 _TOP_KEYS = ("name", "description") + _SECTIONS
 
 # Groups of keys of which at most one may be given. ``Scenario.replace`` drops
@@ -131,6 +117,9 @@ _MISSING: Any = object()
 # ----------------------------------------------------------------------------
 # Specs
 # ----------------------------------------------------------------------------
+# Every field's default, bounds, plausible range and unit are one row of the key
+# table in ridesim/io/schema.py (KEYS): a new key is a row there, a field here
+# with default_of("section.key"), and t.get("key") in the section's parser.
 
 
 @dataclass(frozen=True)
@@ -177,7 +166,7 @@ class WheelSpec:
         as a uniform plate.
     corner_radius_m : float
         Radius in m to which sharp corners are rounded in the simulation
-        (0: sharp).
+        (0: the simulation rounds them by 2 % of the least rim radius).
     fit_track_to_corners : bool or None
         Polygon wheels: the corners really are rounded to ``corner_radius_m`` and the track
         is solved for the rounded wheel (smooth valleys instead of cusps), for the check, the
@@ -192,25 +181,25 @@ class WheelSpec:
     """
 
     shape: str | None
-    sides: int | None = None
-    apothem_m: float | None = None
-    circumradius_m: float | None = None
-    side_m: float | None = None
-    vertices_m: tuple[Point, ...] | None = None
-    semi_axes_m: Point | None = None
-    radius_m: float | None = None
-    radius_formula: str | None = None
-    points_m: tuple[Point, ...] | None = None
-    file: str | None = None
-    axle_m: Point = (0.0, 0.0)
-    thickness_m: float = DEFAULT_WHEEL_THICKNESS_M
-    density_kg_m3: float = DEFAULT_WHEEL_DENSITY_KG_M3
-    mass_kg: float | None = None
-    inertia_kg_m2: float | None = None
-    corner_radius_m: float = 0.0
-    scale: float = 1.0
-    axle_error_m: Point = (0.0, 0.0)
-    fit_track_to_corners: bool | None = None
+    sides: int | None = default_of("wheel.sides")
+    apothem_m: float | None = default_of("wheel.apothem_m")
+    circumradius_m: float | None = default_of("wheel.circumradius_m")
+    side_m: float | None = default_of("wheel.side_m")
+    vertices_m: tuple[Point, ...] | None = default_of("wheel.vertices_m")
+    semi_axes_m: Point | None = default_of("wheel.semi_axes_m")
+    radius_m: float | None = default_of("wheel.radius_m")
+    radius_formula: str | None = default_of("wheel.radius_formula")
+    points_m: tuple[Point, ...] | None = default_of("wheel.points_m")
+    file: str | None = default_of("wheel.file")
+    axle_m: Point = default_of("wheel.axle_m")
+    thickness_m: float = default_of("wheel.thickness_m")
+    density_kg_m3: float = default_of("wheel.density_kg_m3")
+    mass_kg: float | None = default_of("wheel.mass_kg")
+    inertia_kg_m2: float | None = default_of("wheel.inertia_kg_m2")
+    corner_radius_m: float = default_of("wheel.corner_radius_m")
+    scale: float = default_of("wheel.scale")
+    axle_error_m: Point = default_of("wheel.axle_error_m")
+    fit_track_to_corners: bool | None = None  # stored None when false (left out of to_dict)
 
 
 @dataclass(frozen=True)
@@ -259,20 +248,20 @@ class TrackSpec:
     """
 
     shape: str | None
-    amplitude_m: float | None = None
-    wavelength_m: float | None = None
-    rise_m: float | None = None
-    run_m: float | None = None
-    formula: str | None = None
-    period_m: float | None = None
-    points_m: tuple[Point, ...] | None = None
-    file: str | None = None
-    lobes: int | None = 1
-    depth_m: float | None = None
-    height_error_m: float = 0.0
-    error_seed: int = 0
-    joint_step_m: float = 0.0
-    section_length_m: float = 1.0
+    amplitude_m: float | None = default_of("track.amplitude_m")
+    wavelength_m: float | None = default_of("track.wavelength_m")
+    rise_m: float | None = default_of("track.rise_m")
+    run_m: float | None = default_of("track.run_m")
+    formula: str | None = default_of("track.formula")
+    period_m: float | None = default_of("track.period_m")
+    points_m: tuple[Point, ...] | None = default_of("track.points_m")
+    file: str | None = default_of("track.file")
+    lobes: int | None = default_of("track.lobes")
+    depth_m: float | None = default_of("track.depth_m")
+    height_error_m: float = default_of("track.height_error_m")
+    error_seed: int = default_of("track.error_seed")
+    joint_step_m: float = default_of("track.joint_step_m")
+    section_length_m: float = default_of("track.section_length_m")
 
 
 @dataclass(frozen=True)
@@ -303,14 +292,14 @@ class VehicleSpec:
         axle; used when ``coupled`` (uncoupled wheels find their own angle by rolling).
     """
 
-    body_mass_kg: float = 10.0
-    body_inertia_kg_m2: float | None = None
-    axles: int = 1
-    wheelbase_m: float = 0.0
-    coupled: bool = False
-    seat_m: Point = (0.0, 0.3)
-    driven_axles: tuple[int, ...] | None = None
-    phase_offsets_rad: tuple[float, ...] | None = None
+    body_mass_kg: float = default_of("vehicle.body_mass_kg")
+    body_inertia_kg_m2: float | None = default_of("vehicle.body_inertia_kg_m2")
+    axles: int = default_of("vehicle.axles")
+    wheelbase_m: float = default_of("vehicle.wheelbase_m")
+    coupled: bool = default_of("vehicle.coupled")
+    seat_m: Point = default_of("vehicle.seat_m")
+    driven_axles: tuple[int, ...] | None = default_of("vehicle.driven_axles")
+    phase_offsets_rad: tuple[float, ...] | None = default_of("vehicle.phase_offsets_rad")
 
     @property
     def driven_axle_indices(self) -> tuple[int, ...]:
@@ -350,12 +339,12 @@ class DriveSpec:
         ``shaft_speed``).
     """
 
-    mode: str = "speed"
-    speed_m_s: float = 0.5
-    accel_m_s2: float = 0.0
-    max_torque_Nm: float = 50.0
-    torque_Nm: float | None = None
-    shaft_speed_rad_s: float | None = None
+    mode: str = default_of("drive.mode")
+    speed_m_s: float = default_of("drive.speed_m_s")
+    accel_m_s2: float = default_of("drive.accel_m_s2")
+    max_torque_Nm: float = default_of("drive.max_torque_Nm")
+    torque_Nm: float | None = default_of("drive.torque_Nm")
+    shaft_speed_rad_s: float | None = default_of("drive.shaft_speed_rad_s")
 
 
 @dataclass(frozen=True)
@@ -370,8 +359,8 @@ class SurfaceSpec:
         Rolling resistance coefficient (dimensionless, >= 0).
     """
 
-    friction: float = 0.8
-    rolling_resistance: float = 0.0
+    friction: float = default_of("surface.friction")
+    rolling_resistance: float = default_of("surface.rolling_resistance")
 
 
 @dataclass(frozen=True)
@@ -390,10 +379,10 @@ class RunSpec:
         Constraint solver iterations per step (1 to 1000).
     """
 
-    duration_s: float = 6.0
-    timestep_s: float = 0.001
-    settle_s: float = 1.0
-    iterations: int = 30
+    duration_s: float = default_of("run.duration_s")
+    timestep_s: float = default_of("run.timestep_s")
+    settle_s: float = default_of("run.settle_s")
+    iterations: int = default_of("run.iterations")
 
 
 @dataclass(frozen=True)
@@ -415,10 +404,10 @@ class DutySpec:
         Standstill at the end of the cycle in s (counts in the r.m.s. torque).
     """
 
-    cruise_s: float = 10.0
-    brake_m_s2: float | None = None
-    grade_rad: float = 0.0
-    rest_s: float = 0.0
+    cruise_s: float = default_of("duty.cruise_s")
+    brake_m_s2: float | None = default_of("duty.brake_m_s2")
+    grade_rad: float = default_of("duty.grade_rad")
+    rest_s: float = default_of("duty.rest_s")
 
 
 @dataclass(frozen=True)
@@ -443,13 +432,13 @@ class MotorSpec:
         Motor rotor inertia in kg*m^2 (reflected to the wheel as i^2 J).
     """
 
-    gear_ratios: tuple[float, ...] = ()
-    rated_torque_Nm: float | None = None
-    peak_torque_Nm: float | None = None
-    rated_speed_rad_s: float | None = None
-    efficiency: float = 0.85
-    safety_factor: float = 1.5
-    inertia_kg_m2: float = 0.0
+    gear_ratios: tuple[float, ...] = default_of("motor.gear_ratios")
+    rated_torque_Nm: float | None = default_of("motor.rated_torque_Nm")
+    peak_torque_Nm: float | None = default_of("motor.peak_torque_Nm")
+    rated_speed_rad_s: float | None = default_of("motor.rated_speed_rad_s")
+    efficiency: float = default_of("motor.efficiency")
+    safety_factor: float = default_of("motor.safety_factor")
+    inertia_kg_m2: float = default_of("motor.inertia_kg_m2")
 
 
 @dataclass(frozen=True)
@@ -484,6 +473,9 @@ class Scenario:
         such as ``"<dict>"``.
     base_dir : str
         Absolute folder against which relative ``file`` keys are resolved.
+    warnings : tuple of str
+        One line per value outside the plausible range of real builds (see
+        :attr:`warnings`).
     """
 
     name: str
@@ -498,6 +490,26 @@ class Scenario:
     motor: MotorSpec = MotorSpec()
     source: str = field(default="<dict>", compare=False)
     base_dir: str = field(default=".", compare=False)
+
+    @property
+    def warnings(self) -> tuple[str, ...]:
+        """One line per value that is valid but outside the range of real builds.
+
+        A wheel of apothem 120 m or a friction coefficient of 70 is accepted (it may be
+        meant), but most likely a unit slip. The plausible ranges and their sources are in
+        the key table (``ridesim/io/schema.py``, ``docs/scenario-keys.md``). The command
+        line prints these lines on stderr and adds them to its JSON output as
+        ``warnings``; from Python, read them here (nothing is raised or emitted).
+
+        Returns
+        -------
+        tuple of str
+            Messages naming the key, the value, the plausible range and its source.
+        """
+        out: list[str] = []
+        for section in _SECTIONS:
+            out += plausibility_warnings(section, getattr(self, section))
+        return tuple(out)
 
     def to_dict(self) -> dict[str, Any]:
         """Return the validated values as plain, TOML-compatible data.
@@ -656,14 +668,7 @@ def scenario_keys() -> frozenset[str]:
     frozenset of str
         Top-level keys and ``section.key`` paths for all shapes and sections.
     """
-    keys = {"name", "description"}
-    keys |= {f"wheel.{k}" for k in set(_WHEEL_COMMON).union(*_WHEEL_SHAPE_KEYS.values())}
-    keys |= {f"track.{k}" for k in set(_TRACK_COMMON).union(*_TRACK_SHAPE_KEYS.values())}
-    for section, spec in (("vehicle", VehicleSpec), ("drive", DriveSpec),
-                          ("surface", SurfaceSpec), ("run", RunSpec), ("duty", DutySpec),
-                          ("motor", MotorSpec)):
-        keys |= {f"{section}.{f.name}" for f in fields(spec)}
-    return frozenset(keys)
+    return frozenset({"name", "description"} | set(KEY))
 
 
 def load_scenario(path: str | Path) -> Scenario:
@@ -803,7 +808,7 @@ def _parse_wheel(raw: Any, base: Path) -> WheelSpec:
     t = _Table("wheel", raw)
     if not t.has("shape"):
         raise ScenarioError(f"wheel.shape is required; use one of {', '.join(WHEEL_SHAPES)}")
-    shape = t.choice("shape", WHEEL_SHAPES, hint=_polygon_name_hint)
+    shape = t.get("shape", hint=_polygon_name_hint)
     own = _WHEEL_SHAPE_KEYS[shape]
     allowed = set(_WHEEL_COMMON) | set(own)
     if shape == "polar":
@@ -834,7 +839,7 @@ def _parse_wheel(raw: Any, base: Path) -> WheelSpec:
             vertices = t.points("vertices_m")
             _check_area("wheel.vertices_m", vertices)
             values["vertices_m"] = vertices
-            sides = t.integer("sides", None, ge=3)
+            sides = t.get("sides")
             if sides is not None and sides != len(vertices):
                 raise ScenarioError(
                     f"wheel.sides must equal the {len(vertices)} points of vertices_m, "
@@ -843,22 +848,21 @@ def _parse_wheel(raw: Any, base: Path) -> WheelSpec:
             values["sides"] = sides
         else:
             size = sizes[0]
-            values["sides"] = t.integer(
-                "sides", required=f"for shape \"polygon\" with {size}; add e.g. sides = 6", ge=3
+            values["sides"] = t.get(
+                "sides", required=f"for shape \"polygon\" with {size}; add e.g. sides = 6"
             )
-            values[size] = t.real(size, gt=0)
+            values[size] = t.get(size)
     elif shape == "ellipse":
-        values["semi_axes_m"] = t.pair(
+        values["semi_axes_m"] = t.get(
             "semi_axes_m",
             required="for shape \"ellipse\"; add semi_axes_m = [a, b] (a along x)",
-            gt=0,
         )
     elif shape == "circle":
-        values["radius_m"] = t.real(
-            "radius_m", required="for shape \"circle\"; add e.g. radius_m = 0.1", gt=0
+        values["radius_m"] = t.get(
+            "radius_m", required="for shape \"circle\"; add e.g. radius_m = 0.1"
         )
     elif shape == "polar":
-        values["radius_formula"] = t.string(
+        values["radius_formula"] = t.get(
             "radius_formula",
             required="for shape \"polar\"; add e.g. radius_formula = \"0.1 + 0.01*cos(3*phi)\"",
         )
@@ -868,15 +872,9 @@ def _parse_wheel(raw: Any, base: Path) -> WheelSpec:
             _check_area("wheel.points_m", values["points_m"])
 
     if shape != "polar":
-        values["axle_m"] = t.pair("axle_m", (0.0, 0.0))
-    values["thickness_m"] = t.real("thickness_m", DEFAULT_WHEEL_THICKNESS_M, gt=0)
-    values["density_kg_m3"] = t.real("density_kg_m3", DEFAULT_WHEEL_DENSITY_KG_M3, gt=0)
-    values["mass_kg"] = t.real("mass_kg", None, gt=0)
-    values["inertia_kg_m2"] = t.real("inertia_kg_m2", None, gt=0)
-    values["corner_radius_m"] = t.real("corner_radius_m", 0.0, ge=0)
-    values["scale"] = t.real("scale", 1.0, gt=0)
-    values["axle_error_m"] = t.pair("axle_error_m", (0.0, 0.0))
-    if shape == "polygon" and t.boolean("fit_track_to_corners", False):
+        values["axle_m"] = t.get("axle_m")
+    values.update({name: t.get(name) for name in _WHEEL_MATERIAL})
+    if shape == "polygon" and t.get("fit_track_to_corners"):
         if values["corner_radius_m"] <= 0:
             raise ScenarioError(
                 "wheel.fit_track_to_corners = true needs the corners' radius: add"
@@ -899,17 +897,7 @@ def _parse_wheel_material(raw: Any) -> WheelSpec:
                 f"wheel.{key} cannot be given beside [track] (the solver derives the wheel's"
                 f" shape); only {', '.join(_WHEEL_MATERIAL)} are allowed"
             )
-    return WheelSpec(
-        shape=None,
-        axle_m=(0.0, 0.0),
-        thickness_m=t.real("thickness_m", DEFAULT_WHEEL_THICKNESS_M, gt=0),
-        density_kg_m3=t.real("density_kg_m3", DEFAULT_WHEEL_DENSITY_KG_M3, gt=0),
-        mass_kg=t.real("mass_kg", None, gt=0),
-        inertia_kg_m2=t.real("inertia_kg_m2", None, gt=0),
-        corner_radius_m=t.real("corner_radius_m", 0.0, ge=0),
-        scale=t.real("scale", 1.0, gt=0),
-        axle_error_m=t.pair("axle_error_m", (0.0, 0.0)),
-    )
+    return WheelSpec(shape=None, axle_m=(0.0, 0.0), **{name: t.get(name) for name in _WHEEL_MATERIAL})
 
 
 def _parse_track(raw: Any, base: Path) -> TrackSpec:
@@ -917,7 +905,7 @@ def _parse_track(raw: Any, base: Path) -> TrackSpec:
     t = _Table("track", raw)
     if not t.has("shape"):
         raise ScenarioError(f"track.shape is required; use one of {', '.join(TRACK_SHAPES)}")
-    shape = t.choice("shape", TRACK_SHAPES)
+    shape = t.get("shape")
     own = _TRACK_SHAPE_KEYS[shape]
     allowed = set(_TRACK_COMMON) | set(own)
     every = set(_TRACK_COMMON).union(*_TRACK_SHAPE_KEYS.values())
@@ -933,16 +921,16 @@ def _parse_track(raw: Any, base: Path) -> TrackSpec:
     values: dict[str, Any] = {"shape": shape}
     req = f"for shape \"{shape}\""
     if shape == "wave":
-        values["amplitude_m"] = t.real("amplitude_m", required=req, gt=0)
-        values["wavelength_m"] = t.real("wavelength_m", required=req, gt=0)
+        values["amplitude_m"] = t.get("amplitude_m", required=req)
+        values["wavelength_m"] = t.get("wavelength_m", required=req)
     elif shape == "sawtooth":
-        values["rise_m"] = t.real("rise_m", required=req, gt=0)
-        values["run_m"] = t.real("run_m", required=req, gt=0)
+        values["rise_m"] = t.get("rise_m", required=req)
+        values["run_m"] = t.get("run_m", required=req)
     elif shape == "formula":
-        values["formula"] = t.string(
+        values["formula"] = t.get(
             "formula", required=f"{req}; add e.g. formula = \"0.02*cos(2*pi*x/0.3)\""
         )
-        values["period_m"] = t.real("period_m", required=req, gt=0)
+        values["period_m"] = t.get("period_m", required=req)
     else:  # points
         _point_source(t, "points", values, base)
         points = values["points_m"]
@@ -954,7 +942,7 @@ def _parse_track(raw: Any, base: Path) -> TrackSpec:
                         f"x {_show(points[i - 1][0])}, got {_show(points[i][0])}; "
                         "list the points left to right"
                     )
-        period = t.real("period_m", None, gt=0)
+        period = t.get("period_m")
         if points is not None and period is not None:
             span = points[-1][0] - points[0][0]
             if period < span:
@@ -968,21 +956,16 @@ def _parse_track(raw: Any, base: Path) -> TrackSpec:
     if t.has("lobes") and t.has("depth_m"):
         raise ScenarioError("track: give at most one of lobes, depth_m (got lobes and depth_m)")
     if t.has("depth_m"):
-        values["depth_m"] = t.real("depth_m")
+        values["depth_m"] = t.get("depth_m")
         values["lobes"] = None
     else:
-        values["lobes"] = t.integer("lobes", 1, ge=1)
+        values["lobes"] = t.get("lobes")
     return TrackSpec(**values)
 
 
 def _track_build_values(t: _Table) -> dict[str, Any]:
     """As-built track errors (manufacturing tolerance), shared by shaped and shape-less tracks."""
-    return {
-        "height_error_m": t.real("height_error_m", 0.0, ge=0),
-        "error_seed": t.integer("error_seed", 0, ge=0),
-        "joint_step_m": t.real("joint_step_m", 0.0),
-        "section_length_m": t.real("section_length_m", 1.0, ge=0.002),
-    }
+    return {name: t.get(name) for name in _TRACK_BUILD}
 
 
 def _parse_track_build(raw: Any) -> TrackSpec:
@@ -1010,8 +993,8 @@ def _parse_vehicle(raw: Any) -> VehicleSpec:
     """Validate the ``[vehicle]`` section."""
     t = _Table("vehicle", raw)
     t.only([f.name for f in fields(VehicleSpec)])
-    axles = t.integer("axles", 1, ge=1)
-    wheelbase = t.real("wheelbase_m", 0.0, ge=0)
+    axles = t.get("axles")
+    wheelbase = t.get("wheelbase_m")
     if axles > 1 and wheelbase <= 0:
         raise ScenarioError(
             f"vehicle.wheelbase_m must be > 0 when axles = {axles}, got {_show(wheelbase)}; "
@@ -1049,12 +1032,12 @@ def _parse_vehicle(raw: Any) -> VehicleSpec:
             )
         phases = tuple(_as_float(f"vehicle.phase_offsets_rad[{i}]", v) for i, v in enumerate(items))
     return VehicleSpec(
-        body_mass_kg=t.real("body_mass_kg", 10.0, ge=0),
-        body_inertia_kg_m2=t.real("body_inertia_kg_m2", None, gt=0),
+        body_mass_kg=t.get("body_mass_kg"),
+        body_inertia_kg_m2=t.get("body_inertia_kg_m2"),
         axles=axles,
         wheelbase_m=wheelbase,
-        coupled=t.boolean("coupled", False),
-        seat_m=t.pair("seat_m", (0.0, 0.3)),
+        coupled=t.get("coupled"),
+        seat_m=t.get("seat_m"),
         driven_axles=driven,
         phase_offsets_rad=phases,
     )
@@ -1064,18 +1047,16 @@ def _parse_drive(raw: Any) -> DriveSpec:
     """Validate the ``[drive]`` section."""
     t = _Table("drive", raw)
     t.only([f.name for f in fields(DriveSpec)])
-    mode = t.choice("mode", DRIVE_MODES, default="speed")
+    mode = t.get("mode")
     need_torque = "when drive.mode = \"torque\"; add e.g. torque_Nm = 2.0"
     need_shaft = "when drive.mode = \"shaft_speed\"; add e.g. shaft_speed_rad_s = 3.0"
-    torque = t.real("torque_Nm", None, required=need_torque if mode == "torque" else None, gt=0)
-    shaft = t.real(
-        "shaft_speed_rad_s", None, required=need_shaft if mode == "shaft_speed" else None, gt=0
-    )
+    torque = t.get("torque_Nm", required=need_torque if mode == "torque" else None)
+    shaft = t.get("shaft_speed_rad_s", required=need_shaft if mode == "shaft_speed" else None)
     return DriveSpec(
         mode=mode,
-        speed_m_s=t.real("speed_m_s", 0.5, gt=0),
-        accel_m_s2=t.real("accel_m_s2", 0.0, ge=0),
-        max_torque_Nm=t.real("max_torque_Nm", 50.0, gt=0),
+        speed_m_s=t.get("speed_m_s"),
+        accel_m_s2=t.get("accel_m_s2"),
+        max_torque_Nm=t.get("max_torque_Nm"),
         torque_Nm=torque,
         shaft_speed_rad_s=shaft,
     )
@@ -1086,8 +1067,8 @@ def _parse_surface(raw: Any) -> SurfaceSpec:
     t = _Table("surface", raw)
     t.only([f.name for f in fields(SurfaceSpec)])
     return SurfaceSpec(
-        friction=t.real("friction", 0.8, gt=0),
-        rolling_resistance=t.real("rolling_resistance", 0.0, ge=0),
+        friction=t.get("friction"),
+        rolling_resistance=t.get("rolling_resistance"),
     )
 
 
@@ -1096,10 +1077,10 @@ def _parse_duty(raw: Any) -> DutySpec:
     t = _Table("duty", raw)
     t.only([f.name for f in fields(DutySpec)])
     return DutySpec(
-        cruise_s=t.real("cruise_s", 10.0, ge=0),
-        brake_m_s2=t.real("brake_m_s2", None, gt=0),
-        grade_rad=t.real("grade_rad", 0.0, gt=-0.5, lt=0.5),
-        rest_s=t.real("rest_s", 0.0, ge=0),
+        cruise_s=t.get("cruise_s"),
+        brake_m_s2=t.get("brake_m_s2"),
+        grade_rad=t.get("grade_rad"),
+        rest_s=t.get("rest_s"),
     )
 
 
@@ -1113,17 +1094,17 @@ def _parse_motor(raw: Any) -> MotorSpec:
         vals = []
         for i, v in enumerate(items):
             x = _as_float(f"motor.gear_ratios[{i}]", v)
-            _check_range(f"motor.gear_ratios[{i}]", x, gt=0)
+            _check_range(f"motor.gear_ratios[{i}]", x, **KEY["motor.gear_ratios"].bounds)
             vals.append(x)
         ratios = tuple(vals)
     return MotorSpec(
         gear_ratios=ratios,
-        rated_torque_Nm=t.real("rated_torque_Nm", None, gt=0),
-        peak_torque_Nm=t.real("peak_torque_Nm", None, gt=0),
-        rated_speed_rad_s=t.real("rated_speed_rad_s", None, gt=0),
-        efficiency=t.real("efficiency", 0.85, gt=0, le=1),
-        safety_factor=t.real("safety_factor", 1.5, ge=1),
-        inertia_kg_m2=t.real("inertia_kg_m2", 0.0, ge=0),
+        rated_torque_Nm=t.get("rated_torque_Nm"),
+        peak_torque_Nm=t.get("peak_torque_Nm"),
+        rated_speed_rad_s=t.get("rated_speed_rad_s"),
+        efficiency=t.get("efficiency"),
+        safety_factor=t.get("safety_factor"),
+        inertia_kg_m2=t.get("inertia_kg_m2"),
     )
 
 
@@ -1131,8 +1112,8 @@ def _parse_run(raw: Any) -> RunSpec:
     """Validate the ``[run]`` section."""
     t = _Table("run", raw)
     t.only([f.name for f in fields(RunSpec)])
-    duration = t.real("duration_s", 6.0, gt=0)
-    settle = t.real("settle_s", 1.0, ge=0)
+    duration = t.get("duration_s")
+    settle = t.get("settle_s")
     if settle >= duration:
         raise ScenarioError(
             f"run.settle_s must be < run.duration_s ({_show(duration)}), got {_show(settle)}; "
@@ -1140,9 +1121,9 @@ def _parse_run(raw: Any) -> RunSpec:
         )
     return RunSpec(
         duration_s=duration,
-        timestep_s=t.real("timestep_s", 0.001, gt=0, le=MAX_TIMESTEP_S),
+        timestep_s=t.get("timestep_s"),
         settle_s=settle,
-        iterations=t.integer("iterations", 30, ge=1, le=1000),
+        iterations=t.get("iterations"),
     )
 
 
@@ -1185,6 +1166,24 @@ class _Table:
             why = f" {required}" if required else ""
             raise ScenarioError(f"{self.key(name)} is required{why}")
         return default
+
+    def get(self, name: str, *, required: str | None = None, hint: Any = None) -> Any:
+        """Read a key with the type, default and bounds of its row in the key table."""
+        k = KEY[self.key(name)]
+        default = _MISSING if k.default is _schema.REQUIRED else k.default
+        if k.kind == "real":
+            return self.real(name, default, required=required, **k.bounds)
+        if k.kind == "int":
+            return self.integer(name, default, required=required, **k.bounds)
+        if k.kind == "pair":
+            return self.pair(name, default, required=required, **k.bounds)
+        if k.kind == "str":
+            return self.string(name, default, required=required)
+        if k.kind == "bool":
+            return self.boolean(name, default)
+        if k.kind == "choice":
+            return self.choice(name, k.choices, default, hint=hint)
+        raise ValueError(f"{self.key(name)}: {k.kind} keys are read by their section's parser")
 
     def real(
         self, name: str, default: Any = _MISSING, *, required: str | None = None, **bounds: float

@@ -1,0 +1,564 @@
+"""The one table of scenario keys: type, default, bounds, plausible range, unit and meaning.
+
+Every key of a scenario's sections is one :class:`Key` row of :data:`KEYS`. From this table
+come the spec dataclasses' defaults and the loader's bound checks (``ridesim.io.scenario``),
+the plausibility warnings, and the Markdown key reference (``docs/scenario-keys.md``,
+written by ``python3 -m ridesim.io.schema --markdown``), so none of them can drift.
+
+Two kinds of range:
+
+- **bounds** (``gt``, ``ge``, ``lt``, ``le``): hard limits. A value outside them is an error
+  (``wheel.apothem_m must be > 0, got -0.3``).
+- **plausible** (``plausible`` with its ``source``): the range real builds of this kind
+  have. A value outside it is accepted, but :func:`plausibility_warnings` says so in one line
+  (a wheel of apothem 120 m, a friction coefficient of 70: most likely a unit slip). Each
+  range names its source: a handbook table, or "common practice" for a fact of the trade
+  with no single source ("[memory]" where a figure is recalled, not read).
+
+Adding a key
+------------
+1. Add one ``Key(...)`` row below, in its section (name ending in its SI unit; the
+   bounds, the plausible range and its source when one exists; a one-line doc).
+2. Add the field to the section's spec in ``ridesim/io/scenario.py`` with its default
+   taken from here: ``name: float = default_of("section.name")``.
+3. Read it in the section's parser with ``t.get("name")`` (type, default and bounds come
+   from the row).
+4. Regenerate the reference: ``python3 -m ridesim.io.schema --markdown >
+   docs/scenario-keys.md``. ``tests/test_schema.py`` fails until the spec, the table and
+   the reference agree.
+
+Examples
+--------
+>>> KEY["surface.friction"].default
+0.8
+>>> KEY["wheel.apothem_m"].bounds
+{'gt': 0.0}
+"""
+
+from __future__ import annotations
+
+import argparse
+import numbers
+import sys
+from collections.abc import Iterable
+from dataclasses import dataclass
+from typing import Any
+
+__all__ = [
+    "WHEEL_SHAPES",
+    "TRACK_SHAPES",
+    "DRIVE_MODES",
+    "MAX_TIMESTEP_S",
+    "REQUIRED",
+    "Key",
+    "KEYS",
+    "KEY",
+    "SECTIONS",
+    "default_of",
+    "section_keys",
+    "plausibility_warnings",
+    "value_warnings",
+    "markdown_reference",
+]
+
+WHEEL_SHAPES = ("polygon", "ellipse", "circle", "polar", "outline")
+"""Allowed values of ``wheel.shape``."""
+
+TRACK_SHAPES = ("wave", "sawtooth", "formula", "points")
+"""Allowed values of ``track.shape``."""
+
+DRIVE_MODES = ("speed", "shaft_speed", "torque")
+"""Allowed values of ``drive.mode``."""
+
+MAX_TIMESTEP_S = 0.02
+"""Largest accepted ``run.timestep_s`` in s."""
+
+SECTIONS = ("wheel", "track", "vehicle", "drive", "surface", "run", "duty", "motor")
+"""The scenario's sections, in the order of the reference."""
+
+
+class _Required:
+    """Marker of a key with no default: it must be given (when its shape or mode needs it)."""
+
+    def __repr__(self) -> str:
+        return "REQUIRED"
+
+
+REQUIRED: Any = _Required()
+"""Default of a key that must be given; its spec field holds None until it is."""
+
+KINDS = ("real", "int", "bool", "str", "choice", "pair", "points", "file", "ints", "reals")
+"""Value types of :attr:`Key.kind`."""
+
+
+@dataclass(frozen=True)
+class Key:
+    """One scenario key: its type, default, hard bounds, plausible range, unit and meaning.
+
+    Attributes
+    ----------
+    section : str
+        Section name (one of :data:`SECTIONS`).
+    name : str
+        Key name, ending in its SI unit when it has one.
+    kind : str
+        Value type, one of :data:`KINDS`: ``real``, ``int``, ``bool``, ``str``, ``choice``,
+        ``pair`` ([x, y] of reals), ``points`` (list of [x, y]), ``file`` (a CSV path),
+        ``ints`` or ``reals`` (lists).
+    default : object
+        Value when the key is left out; None: unset (the doc says what applies then);
+        :data:`REQUIRED`: must be given.
+    unit : str
+        SI unit of the value (``"-"`` for dimensionless numbers, ``""`` for text and flags).
+    doc : str
+        One-line meaning.
+    gt, ge, lt, le : float or None
+        Hard bounds (errors); for pairs and lists they apply to every number.
+    plausible : (float, float) or None
+        Range of real builds of this kind, in ``unit`` (warnings outside it); None: none.
+    source : str
+        Where ``plausible`` comes from: a handbook table or "common practice".
+    choices : tuple of str
+        Allowed values of a ``choice`` key.
+    shapes : tuple of str
+        Wheel or track shapes that use the key; empty: every shape.
+    """
+
+    section: str
+    name: str
+    kind: str
+    default: Any
+    unit: str
+    doc: str
+    gt: float | None = None
+    ge: float | None = None
+    lt: float | None = None
+    le: float | None = None
+    plausible: tuple[float, float] | None = None
+    source: str = ""
+    choices: tuple[str, ...] = ()
+    shapes: tuple[str, ...] = ()
+
+    @property
+    def path(self) -> str:
+        """Dotted key path such as ``"surface.friction"``."""
+        return f"{self.section}.{self.name}"
+
+    @property
+    def bounds(self) -> dict[str, float]:
+        """The hard bounds that are set, as keyword arguments (``{"gt": 0.0}``)."""
+        items = (("gt", self.gt), ("ge", self.ge), ("lt", self.lt), ("le", self.le))
+        return {k: float(v) for k, v in items if v is not None}
+
+
+# Ranges shared by several keys, each with its source.
+_WHEEL_SIZE_M = (0.005, 2.0)
+_WHEEL_SIZE_SRC = "common practice: toy wheels of a few mm up to ride-on wheels of about 1 m"
+_TRACK_LENGTH_M = (0.005, 10.0)
+_TRACK_HEIGHT_M = (0.0005, 1.0)
+_TRACK_SRC = "common practice: tracks for wheels from toys to ride-on vehicles"
+_ACCEL_M_S2 = (0.0, 5.0)
+_ACCEL_SRC = "common practice: 5 m/s^2 is about half of g, a hard stop"
+_TORQUE_NM = (1e-4, 5000.0)
+_TORQUE_SRC = "common practice: toy gearmotors (mN m) to ride-on drive shafts (kN m)"
+_ERROR_SRC = "common practice: build errors are millimetres; centimetres are a different build"
+
+_POLYGON = ("polygon",)
+_OUTLINE = ("outline",)
+
+KEYS: tuple[Key, ...] = (
+    # ---------------------------------------------------------------- [wheel]
+    Key("wheel", "shape", "choice", REQUIRED, "",
+        "outline type; left out only beside [track] (the wheel is then solved)",
+        choices=WHEEL_SHAPES),
+    Key("wheel", "sides", "int", None, "-",
+        "number of equal sides (required with apothem_m, circumradius_m or side_m)",
+        ge=3, shapes=_POLYGON),
+    Key("wheel", "apothem_m", "real", REQUIRED, "m",
+        "centre-to-side distance (give exactly one polygon size)",
+        gt=0, plausible=_WHEEL_SIZE_M, source=_WHEEL_SIZE_SRC, shapes=_POLYGON),
+    Key("wheel", "circumradius_m", "real", REQUIRED, "m",
+        "centre-to-corner distance (give exactly one polygon size)",
+        gt=0, plausible=_WHEEL_SIZE_M, source=_WHEEL_SIZE_SRC, shapes=_POLYGON),
+    Key("wheel", "side_m", "real", REQUIRED, "m",
+        "side length (give exactly one polygon size)",
+        gt=0, plausible=_WHEEL_SIZE_M, source=_WHEEL_SIZE_SRC, shapes=_POLYGON),
+    Key("wheel", "vertices_m", "points", REQUIRED, "m",
+        "corners [x, y], at least 3 (give exactly one polygon size)", shapes=_POLYGON),
+    Key("wheel", "semi_axes_m", "pair", REQUIRED, "m",
+        "semi-axes [a, b], a along x",
+        gt=0, plausible=_WHEEL_SIZE_M, source=_WHEEL_SIZE_SRC, shapes=("ellipse",)),
+    Key("wheel", "radius_m", "real", REQUIRED, "m", "circle radius",
+        gt=0, plausible=_WHEEL_SIZE_M, source=_WHEEL_SIZE_SRC, shapes=("circle",)),
+    Key("wheel", "radius_formula", "str", REQUIRED, "m",
+        "radius as a formula in the polar angle phi (rad) about the axle", shapes=("polar",)),
+    Key("wheel", "points_m", "points", REQUIRED, "m",
+        "outline points [x, y], at least 3 (give exactly one of points_m, file)",
+        shapes=_OUTLINE),
+    Key("wheel", "file", "file", REQUIRED, "m",
+        "CSV file of outline points x, y, relative to the scenario's folder"
+        " (give exactly one of points_m, file)", shapes=_OUTLINE),
+    Key("wheel", "scale", "real", 1.0, "-",
+        "as-built size over nominal size (1.002: cut 0.2 % large)",
+        gt=0, plausible=(0.9, 1.1),
+        source="common practice: a wheel 10 % off its size is a different wheel"),
+    Key("wheel", "axle_error_m", "pair", (0.0, 0.0), "m",
+        "as-built axle hole position minus the nominal one [x, y]",
+        plausible=(-0.05, 0.05), source=_ERROR_SRC),
+    Key("wheel", "axle_m", "pair", (0.0, 0.0), "m",
+        "axle position [x, y] in the outline's coordinates (not for polar)"),
+    Key("wheel", "thickness_m", "real", 0.02, "m", "plate thickness",
+        gt=0, plausible=(0.001, 0.3),
+        source="common practice: 1 mm sheet to 30 cm solid wheels"),
+    Key("wheel", "density_kg_m3", "real", 700.0, "kg/m^3", "material density",
+        gt=0, plausible=(10.0, 20000.0),
+        source="common practice [memory]: rigid foams (about 30) to tungsten (19,300)"),
+    Key("wheel", "mass_kg", "real", None, "kg",
+        "wheel mass; unset: area x thickness x density",
+        gt=0, plausible=(0.001, 1000.0),
+        source="common practice: a 1 g toy wheel to a steel ride-on wheel"),
+    Key("wheel", "inertia_kg_m2", "real", None, "kg m^2",
+        "moment of inertia about the axle; unset: the outline as a uniform plate", gt=0),
+    Key("wheel", "corner_radius_m", "real", 0.0, "m",
+        "radius to which sharp corners are rounded in the simulation; 0: 2 % of the least"
+        " rim radius there (the check and cut files keep corners sharp)", ge=0),
+    Key("wheel", "fit_track_to_corners", "bool", False, "",
+        "solve the track for the corners rounded to corner_radius_m (smooth valleys)",
+        shapes=_POLYGON),
+    # ---------------------------------------------------------------- [track]
+    Key("track", "shape", "choice", REQUIRED, "",
+        "profile type; left out only beside [wheel] (the track is then solved)",
+        choices=TRACK_SHAPES),
+    Key("track", "amplitude_m", "real", REQUIRED, "m", "wave amplitude",
+        gt=0, plausible=_TRACK_HEIGHT_M, source=_TRACK_SRC, shapes=("wave",)),
+    Key("track", "wavelength_m", "real", REQUIRED, "m", "wave length",
+        gt=0, plausible=_TRACK_LENGTH_M, source=_TRACK_SRC, shapes=("wave",)),
+    Key("track", "rise_m", "real", REQUIRED, "m", "tooth height",
+        gt=0, plausible=_TRACK_HEIGHT_M, source=_TRACK_SRC, shapes=("sawtooth",)),
+    Key("track", "run_m", "real", REQUIRED, "m", "tooth horizontal length",
+        gt=0, plausible=_TRACK_LENGTH_M, source=_TRACK_SRC, shapes=("sawtooth",)),
+    Key("track", "formula", "str", REQUIRED, "m", "height as a formula in x (m)",
+        shapes=("formula",)),
+    Key("track", "points_m", "points", REQUIRED, "m",
+        "profile points [x, y], x increasing, at least 3 (give exactly one of points_m, file)",
+        shapes=("points",)),
+    Key("track", "file", "file", REQUIRED, "m",
+        "CSV file of profile points x, y (mm under an x_mm,y_mm header)"
+        " (give exactly one of points_m, file)", shapes=("points",)),
+    Key("track", "period_m", "real", None, "m",
+        "period (required for formula; points: unset means the points' x span)",
+        gt=0, plausible=_TRACK_LENGTH_M, source=_TRACK_SRC, shapes=("formula", "points")),
+    Key("track", "lobes", "int", 1, "-",
+        "track periods per wheel revolution (or give depth_m instead)", ge=1),
+    Key("track", "depth_m", "real", None, "m",
+        "depth of the axle path below which the wheel closes, instead of lobes",
+        plausible=_WHEEL_SIZE_M, source=_WHEEL_SIZE_SRC),
+    Key("track", "height_error_m", "real", 0.0, "m",
+        "as-built: standard deviation of each section's random height error",
+        ge=0, plausible=(0.0, 0.01), source=_ERROR_SRC),
+    Key("track", "error_seed", "int", 0, "-", "seed of the height error draws", ge=0),
+    Key("track", "joint_step_m", "real", 0.0, "m",
+        "as-built: height step at every joint between sections (alternately up and down)",
+        plausible=(-0.01, 0.01), source=_ERROR_SRC),
+    Key("track", "section_length_m", "real", 1.0, "m", "length of the sections between joints",
+        ge=0.002, plausible=(0.01, 20.0),
+        source="common practice: short printed pieces to 20 m rails"),
+    # ---------------------------------------------------------------- [vehicle]
+    Key("vehicle", "body_mass_kg", "real", 10.0, "kg", "body mass without wheels",
+        ge=0, plausible=(0.0, 1000.0),
+        source="common practice: an empty toy chassis to a ride-on cart with several adult"
+               " riders"),
+    Key("vehicle", "body_inertia_kg_m2", "real", None, "kg m^2",
+        "body moment of inertia about its centre of mass; unset: estimated", gt=0),
+    Key("vehicle", "axles", "int", 1, "-", "number of axles, each with one wheel profile",
+        ge=1, plausible=(1.0, 10.0), source="common practice: carts and short trains"),
+    Key("vehicle", "wheelbase_m", "real", 0.0, "m",
+        "distance between neighbouring axles (> 0 when axles > 1)",
+        ge=0, plausible=(0.0, 20.0), source="common practice: toy carts to ride-on trains"),
+    Key("vehicle", "coupled", "bool", False, "",
+        "all axles forced to turn together (chain or gears)"),
+    Key("vehicle", "seat_m", "pair", (0.0, 0.3), "m",
+        "seat (rider) point [x, y] in the body frame, whose motion the ride metrics report"),
+    Key("vehicle", "driven_axles", "ints", None, "-",
+        "0-based indices of the driven axles; unset: all axles"),
+    Key("vehicle", "phase_offsets_rad", "reals", None, "rad",
+        "mounting error of each wheel on a shared shaft (clockwise positive), one per axle"),
+    # ---------------------------------------------------------------- [drive]
+    Key("drive", "mode", "choice", "speed", "",
+        "speed holds the vehicle speed, shaft_speed the axle speed, torque applies a torque",
+        choices=DRIVE_MODES),
+    Key("drive", "speed_m_s", "real", 0.5, "m/s", "target vehicle speed (mode speed)",
+        gt=0, plausible=(0.01, 5.0),
+        source="common practice: a crawl to a run (5 m/s = 18 km/h); walking pace is 1.4 m/s"),
+    Key("drive", "accel_m_s2", "real", 0.0, "m/s^2",
+        "ramp-up acceleration towards the target; 0: start at the target",
+        ge=0, plausible=_ACCEL_M_S2, source=_ACCEL_SRC),
+    Key("drive", "max_torque_Nm", "real", 50.0, "N m",
+        "largest torque the drive may apply to hold its target",
+        gt=0, plausible=_TORQUE_NM, source=_TORQUE_SRC),
+    Key("drive", "torque_Nm", "real", None, "N m",
+        "constant axle torque (required for mode torque)",
+        gt=0, plausible=_TORQUE_NM, source=_TORQUE_SRC),
+    Key("drive", "shaft_speed_rad_s", "real", None, "rad/s",
+        "target axle angular speed (required for mode shaft_speed)",
+        gt=0, plausible=(0.01, 100.0),
+        source="common practice: 100 rad/s is about 950 rpm at the wheel"),
+    # ---------------------------------------------------------------- [surface]
+    Key("surface", "friction", "real", 0.8, "-", "Coulomb friction coefficient",
+        gt=0, plausible=(0.1, 2.0),
+        source="handbook tables: 0.2 wood on wood, kinetic (engineering tables) to 1.0 rubber"
+               " on dry concrete (Serway & Beichner, Table 5.2), widened about twice each way"
+               " (common practice)"),
+    Key("surface", "rolling_resistance", "real", 0.0, "-",
+        "rolling resistance coefficient (force over normal load)",
+        ge=0, plausible=(0.0, 0.2),
+        source="engineering tables: 0.001-0.002 steel on rail, 0.01-0.015 tyre on concrete,"
+               " hard casters 5-20 mm lever arm, i.e. up to 0.2 on a 0.1 m wheel"),
+    # ---------------------------------------------------------------- [run]
+    Key("run", "duration_s", "real", 6.0, "s", "simulated time", gt=0),
+    Key("run", "timestep_s", "real", 0.001, "s", "integration step",
+        gt=0, le=MAX_TIMESTEP_S, plausible=(1e-5, 0.005),
+        source="common practice: rigid contact wants fine steps; the README's timestep advice"
+               " starts at 1 ms and halves it; steps under 10 us only cost time"),
+    Key("run", "settle_s", "real", 1.0, "s",
+        "initial time left out of the ride metrics (< duration_s)", ge=0),
+    Key("run", "iterations", "int", 30, "-", "constraint solver iterations per step",
+        ge=1, le=1000),
+    # ---------------------------------------------------------------- [duty]
+    Key("duty", "cruise_s", "real", 10.0, "s", "time at the target speed", ge=0),
+    Key("duty", "brake_m_s2", "real", None, "m/s^2",
+        "braking deceleration; unset: the same as drive.accel_m_s2",
+        gt=0, plausible=_ACCEL_M_S2, source=_ACCEL_SRC),
+    Key("duty", "grade_rad", "real", 0.0, "rad", "grade of the whole run (positive uphill)",
+        gt=-0.5, lt=0.5),
+    Key("duty", "rest_s", "real", 0.0, "s", "standstill at the end of the cycle", ge=0),
+    # ---------------------------------------------------------------- [motor]
+    Key("motor", "gear_ratios", "reals", (), "-",
+        "candidate reductions (motor turns per wheel turn); empty: none given",
+        gt=0, plausible=(1.0, 1000.0),
+        source="common practice: direct drive to multi-stage gearmotors"),
+    Key("motor", "rated_torque_Nm", "real", None, "N m",
+        "continuous torque rating (compared with the r.m.s. torque)",
+        gt=0, plausible=_TORQUE_NM, source=_TORQUE_SRC),
+    Key("motor", "peak_torque_Nm", "real", None, "N m",
+        "intermittent torque rating; unset: 2 x rated", gt=0,
+        plausible=_TORQUE_NM, source=_TORQUE_SRC),
+    Key("motor", "rated_speed_rad_s", "real", None, "rad/s",
+        "rated speed (compared with the top shaft speed)",
+        gt=0, plausible=(1.0, 2000.0),
+        source="common practice: slow gearmotor outputs to 19,000 rpm small DC motors"),
+    Key("motor", "efficiency", "real", 0.85, "-", "gear efficiency",
+        gt=0, le=1, plausible=(0.3, 1.0),
+        source="common practice [memory]: worm gears from about 0.3, spur gears 0.95-0.98"),
+    Key("motor", "safety_factor", "real", 1.5, "-",
+        "margin the ratings must keep over the duty",
+        ge=1, plausible=(1.0, 5.0), source="common practice: design margins of 1.2 to 3"),
+    Key("motor", "inertia_kg_m2", "real", 0.0, "kg m^2",
+        "rotor inertia (reflected to the wheel as i^2 J)", ge=0),
+)
+"""Every scenario key, grouped by section (the order of the reference)."""
+
+KEY: dict[str, Key] = {k.path: k for k in KEYS}
+"""The rows of :data:`KEYS` by dotted path."""
+
+
+def _check_table(keys: Iterable[Key]) -> None:
+    """Refuse a malformed table at import (a row added with a typo fails at once)."""
+    seen: set[str] = set()
+    for k in keys:
+        if k.section not in SECTIONS or k.kind not in KINDS or k.path in seen:
+            raise ValueError(f"scenario key table: bad or repeated row {k.path} ({k.kind})")
+        if k.plausible is not None and not k.source:
+            raise ValueError(f"scenario key table: {k.path} has a plausible range but no source")
+        seen.add(k.path)
+
+
+_check_table(KEYS)
+
+
+def default_of(path: str) -> Any:
+    """Default of a key for its spec field (None for a :data:`REQUIRED` key).
+
+    Parameters
+    ----------
+    path : str
+        Dotted key path such as ``"surface.friction"``.
+
+    Returns
+    -------
+    object
+        The default value; None when the key has none.
+    """
+    default = KEY[path].default
+    return None if default is REQUIRED else default
+
+
+def section_keys(section: str, shape: str | None = None) -> tuple[str, ...]:
+    """Names of a section's keys, in table order.
+
+    Parameters
+    ----------
+    section : str
+        Section name.
+    shape : str, optional
+        Only the keys of this wheel or track shape (those with an empty ``shapes`` excluded).
+
+    Returns
+    -------
+    tuple of str
+        Key names.
+    """
+    rows = [k for k in KEYS if k.section == section]
+    if shape is not None:
+        rows = [k for k in rows if shape in k.shapes]
+    return tuple(k.name for k in rows)
+
+
+def _numbers(value: Any) -> list[tuple[str, float]]:
+    """The numbers of a value with their index suffix: ``[("", 0.8)]``, ``[("[0]", x), ...]``."""
+    if isinstance(value, bool):
+        return []
+    if isinstance(value, numbers.Real):
+        return [("", float(value))]
+    if isinstance(value, (tuple, list)):
+        return [(f"[{i}]", float(v)) for i, v in enumerate(value)
+                if isinstance(v, numbers.Real) and not isinstance(v, bool)]
+    return []
+
+
+def value_warnings(path: str, value: Any) -> list[str]:
+    """One line per number of a key's value outside the plausible range of real builds.
+
+    Parameters
+    ----------
+    path : str
+        Dotted key path such as ``"surface.friction"``; keys without a plausible range
+        (or not in the table) give no warnings.
+    value : object
+        The key's value in its unit: a number, a pair or a list of numbers; other values
+        (None, text, point lists) give no warnings.
+
+    Returns
+    -------
+    list of str
+        Messages such as ``surface.friction = 70 is outside the plausible range 0.1 to 2
+        (handbook tables: ...); accepted, but check the value and its unit``.
+    """
+    k = KEY.get(path)
+    if k is None or k.plausible is None or k.kind == "points":
+        return []
+    lo, hi = k.plausible
+    unit = "" if k.unit in ("", "-") else f" {k.unit}"
+    return [f"{path}{suffix} = {x:g}{unit} is outside the plausible range {lo:g} to {hi:g}"
+            f"{unit} ({k.source}); accepted, but check the value and its unit"
+            for suffix, x in _numbers(value) if not lo <= x <= hi]
+
+
+def plausibility_warnings(section: str, spec: Any) -> list[str]:
+    """One line per value of a section outside the plausible range of real builds.
+
+    Parameters
+    ----------
+    section : str
+        Section name.
+    spec : object
+        The section's validated spec (its attributes are the key names); None: no warnings.
+
+    Returns
+    -------
+    list of str
+        The :func:`value_warnings` of every key of the section, in table order.
+    """
+    out: list[str] = []
+    if spec is None:
+        return out
+    for k in KEYS:
+        if k.section == section:
+            out += value_warnings(k.path, getattr(spec, k.name, None))
+    return out
+
+
+# ---------------------------------------------------------------------------- reference
+def _show_default(k: Key) -> str:
+    d = k.default
+    if d is REQUIRED:
+        return "required"
+    if d is None:
+        return "unset"
+    if isinstance(d, bool):
+        return "true" if d else "false"
+    if isinstance(d, str):
+        return f'"{d}"'
+    if isinstance(d, tuple):
+        return "[" + ", ".join(f"{v:g}" for v in d) + "]"
+    return f"{d:g}"
+
+
+def _show_bounds(k: Key) -> str:
+    if k.choices:
+        return "one of " + ", ".join(f'"{c}"' for c in k.choices)
+    parts = [f"{op} {v:g}" for op, v in ((">", k.gt), (">=", k.ge), ("<", k.lt), ("<=", k.le))
+             if v is not None]
+    return " and ".join(parts) if parts else "any"
+
+
+_KIND_TEXT = {"real": "number", "int": "integer", "bool": "true/false", "str": "text",
+              "choice": "text", "pair": "[x, y]", "points": "list of [x, y]", "file": "path",
+              "ints": "list of integers", "reals": "list of numbers"}
+
+
+def markdown_reference() -> str:
+    """The scenario key reference as Markdown, generated from :data:`KEYS`.
+
+    Returns
+    -------
+    str
+        The text of ``docs/scenario-keys.md``.
+    """
+    lines = [
+        "# Scenario keys",
+        "",
+        "Generated from `ridesim/io/schema.py` by `python3 -m ridesim.io.schema --markdown`;"
+        " do not edit by hand (a test compares this file with the table).",
+        "",
+        "Top-level keys: `name` (default: the file stem) and `description` (default: empty).",
+        "**Allowed** values are hard limits: outside them the scenario is refused with one"
+        " line naming the key (exit code 2). **Plausible** is the range real builds of this"
+        " kind have: outside it the value is accepted with a one-line warning (on stderr from"
+        " the command line, in the JSON output's `warnings` list, and in"
+        " `Scenario.warnings` from Python), since it is most likely a unit slip. Each"
+        " plausible range names its source: a handbook table or common practice.",
+        "",
+    ]
+    for section in SECTIONS:
+        lines += [f"## [{section}]", "",
+                  "| key | type | default | allowed | plausible | unit | meaning |",
+                  "|---|---|---|---|---|---|---|"]
+        for k in KEYS:
+            if k.section != section:
+                continue
+            plaus = "" if k.plausible is None else (
+                f"{k.plausible[0]:g} to {k.plausible[1]:g} ({k.source})")
+            doc = k.doc + (f" [{', '.join(k.shapes)}]" if k.shapes else "")
+            cells = [f"`{k.name}`", _KIND_TEXT[k.kind], _show_default(k), _show_bounds(k),
+                     plaus, k.unit, doc]
+            lines.append("| " + " | ".join(c.replace("|", "\\|") for c in cells) + " |")
+        lines.append("")
+    lines.append("Keys with a [shape] list apply to those wheel or track shapes only.")
+    return "\n".join(lines) + "\n"
+
+
+def _main(argv: list[str] | None = None) -> int:
+    parser = argparse.ArgumentParser(prog="python3 -m ridesim.io.schema",
+                                     description="Print the scenario key reference.")
+    parser.add_argument("--markdown", action="store_true", help="print it as Markdown")
+    args = parser.parse_args(argv)
+    if not args.markdown:
+        parser.print_help()
+        return 2
+    sys.stdout.write(markdown_reference())
+    return 0
+
+
+if __name__ == "__main__":  # pragma: no cover
+    sys.exit(_main())
