@@ -290,3 +290,33 @@ def test_constant_shaft_speed_torque_on_the_hexagon_closed_form():
     assert res["speed_min_m_s"] == pytest.approx(om * ap, rel=1e-5)
     # One-sided nodes sit 1e-10 of a revolution from each cusp.
     assert res["speed_max_m_s"] == pytest.approx(om * ap * c, rel=1e-6)  # surge sec(pi/n)
+
+
+@pytest.mark.parametrize("coupled", [True, False])
+def test_figures_are_per_motor(coupled):
+    """Motors sit on shafts: a coupled train has one motor, uncoupled driven axles one each.
+
+    Two round wheels on a flat road at steady speed, rolling resistance only: the shafts
+    together deliver R C_rr N with N the whole weight (Gillespie 1992 [memory]), at v / R.
+    One motor on a coupled train delivers all of it; two uncoupled motors half each (equal
+    axle loads). The constant torque that holds the speed (energy balance over a revolution)
+    is the same per-motor figure, and the per-wheel figure is half the total either way.
+    """
+    R, v, crr, body = 0.2, 1.0, 0.01, 20.0
+    w = rs.Wheel.circle(R)
+    pair, mp = rs.track_for(w), MassProperties(1.5, 0.03, (0.0, 0.0), math.pi * R * R)
+    veh = VehicleSpec(body_mass_kg=body, axles=2, wheelbase_m=2 * math.pi * R, coupled=coupled)
+    res = analyze_cycle(pair, vehicle=veh, surface=SurfaceSpec(friction=1.0, rolling_resistance=crr),
+                        wheel_mass=mp, speed_m_s=v)
+    total = R * crr * (body + 2 * 1.5) * G
+    per_motor = total if coupled else total / 2
+    assert res.motors == (((0, 1),) if coupled else ((0,), (1,)))
+    np.testing.assert_allclose(res.torque_peak_Nm, per_motor, rtol=1e-8)
+    np.testing.assert_allclose(res.torque_rms_Nm, per_motor, rtol=1e-8)
+    np.testing.assert_allclose(res.constant_torque_Nm, per_motor, rtol=1e-8)
+    np.testing.assert_allclose(res.power_mean_W, per_motor * v / R, rtol=1e-8)
+    np.testing.assert_allclose(res.wheel_torque_peak_Nm, total / 2, rtol=1e-8)
+    d = res.to_dict()
+    assert [m["name"] for m in d["motors"]] == (["coupled train, axles 0+1"] if coupled
+                                                else ["axle 0 shaft", "axle 1 shaft"])
+    np.testing.assert_allclose([m["peak_Nm"] for m in d["motors"]], per_motor, rtol=1e-8)

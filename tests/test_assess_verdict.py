@@ -202,7 +202,9 @@ def test_acceleration_adds_friction_demand():
     # solved flat track: slope noise < 1e-10
     np.testing.assert_allclose(d["friction"]["required_peak"], 9.0 / G, rtol=1e-8)
     assert d["friction"]["slips"] is True and d["rollable"] is False
-    assert "peak_accelerating_Nm" in d["torque"]
+    # Starting at 9 m/s^2 needs far more torque than cruising on a loss-free road (0 N m).
+    ph = d["torque"]["by_phase"]
+    assert ph["startup"]["peak_Nm"] > 0.5 and ph["cruise"]["peak_Nm"] < 1e-9
 
 
 def test_cautions_name_the_standards():
@@ -242,3 +244,26 @@ def test_fitting_the_track_to_rounded_corners():
                                (1 - 0.006 / 0.12) * math.tan(math.pi / 6), rtol=1e-6)
     assert not any("checked for sharp corners" in n for n in d["notes"])
     assert d["rollable"] is True and d["cusps"]["count"] == 0
+
+
+@pytest.mark.parametrize("coupled", [True, False])
+def test_torque_limit_is_per_motor(coupled):
+    """drive.max_torque_Nm is per motor. Two round wheels (R 0.2 m, 1.5 kg, I 0.03 kg m^2),
+    body 20 kg, C_rr 0.01, starting at 0.5 m/s^2: by Newton's second law with the wheels'
+    rotational inertia the shafts together need R (C_rr M g + (body + 2 (m + I/R^2)) a)
+    = 2.90 N m. One 2 N m motor on a coupled train cannot deliver it; two uncoupled 2 N m
+    motors, 1.45 N m each, can."""
+    R, m, inertia, body, a, crr = 0.2, 1.5, 0.03, 20.0, 0.5, 0.01
+    need = R * (crr * (body + 2 * m) * G + (body + 2 * (m + inertia / R**2)) * a)
+    sc = scenario_from_dict({
+        "wheel": {"shape": "circle", "radius_m": R, "mass_kg": m, "inertia_kg_m2": inertia},
+        "vehicle": {"body_mass_kg": body, "axles": 2, "wheelbase_m": 2 * math.pi * R,
+                    "coupled": coupled},
+        "drive": {"speed_m_s": 1.0, "accel_m_s2": a, "max_torque_Nm": 2.0},
+        "surface": {"friction": 1.0, "rolling_resistance": crr}})
+    res = check_scenario(sc)
+    per_motor = need if coupled else need / 2
+    np.testing.assert_allclose(res.to_dict()["torque"]["by_phase"]["startup"]["peak_Nm"], per_motor,
+                               rtol=1e-8)
+    limited = any("torque limit" in n for n in res.notes)
+    assert limited is coupled

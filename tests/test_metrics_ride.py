@@ -152,7 +152,8 @@ def test_result_dict_contract_and_csv(tmp_path):
     assert set(d["slip"]) >= {"onset_time_s", "max_slip_speed_m_s"}
     assert set(d["speed"]) == {"mean_m_s", "final_m_s", "ripple_pct"}
     assert d["torque"]["peak_Nm"] == pytest.approx(2.0)  # the larger of the two shafts
-    assert [w["peak_Nm"] for w in d["torque"]["per_wheel"]] == pytest.approx([1.0, 2.0])
+    assert [w["peak_Nm"] for w in d["torque"]["motors"]] == pytest.approx([1.0, 2.0])
+    assert [w["name"] for w in d["torque"]["motors"]] == ["axle 0 shaft", "axle 1 shaft"]
     assert any("ASTM F2291" in c for c in d["cautions"])
     assert d["steps"] == p.steps and d["sim_time_s"] == pytest.approx(p.steps * p.dt_s)
     out = r.write_csv(tmp_path / "probes.csv")

@@ -205,3 +205,18 @@ def test_plots_reject_bad_input(raises_one_line, tmp_path, hexagon_pair):
                     "y [m]", "t")
     raises_one_line(rs.InputError, ["freq_hz"], plot_spectrum, [0.0, 1.0], [1, 2], tmp_path / "x.png")
     raises_one_line(rs.InputError, ["size_px"], plot_wheel, hexagon_pair, tmp_path / "x.png", size_px=(5, 5))
+
+
+def test_series_plot_shades_the_windows_left_out(tmp_path):
+    # A window left out of the figures is shaded: the plot area over it is darker than the same
+    # area outside it (the same flat series on both halves, grey fill over the left one).
+    from PIL import Image
+
+    t = np.linspace(0.0, 10.0, 200)
+    png, _ = plot_series(t, {"simulated": np.zeros_like(t)}, tmp_path / "s.png", "torque [N·m]",
+                         "Shaded", size_px=(800, 500), spans=[(0.0, 5.0, "left out")])
+    img = np.asarray(Image.open(png).convert("L"), dtype=float)
+    h, w = img.shape
+    rows = slice(int(0.3 * h), int(0.4 * h))  # above the zero line, below the legend
+    left, right = img[rows, int(0.25 * w):int(0.3 * w)], img[rows, int(0.75 * w):int(0.8 * w)]
+    assert np.median(left) < np.median(right) - 5

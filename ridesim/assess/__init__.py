@@ -4,8 +4,9 @@
   and corner seating at cusps.
 * :mod:`ridesim.assess.friction`: the planar force balance on one wheel and the friction
   the surface must supply.
-* :mod:`ridesim.assess.analytic`: per-wheel loads, shaft torque, speed and power along a
-  revolution, speed ripple of other drives, lift-off speed.
+* :mod:`ridesim.assess.analytic`: per-wheel loads; torque, shaft speed and power per motor
+  along a revolution and along a duty cycle, by phase; speed ripple of other drives,
+  lift-off speed.
 * :mod:`ridesim.assess.verdict`: one verdict for a scenario (``check_scenario``).
 """
 

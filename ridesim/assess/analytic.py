@@ -15,7 +15,12 @@ Vehicle model (the planar model: one wheel per axle)
   Driven wheels share equally the force that accelerates the body and pushes
   the free wheels: ``push = (body_mass * a + sum of the free wheels' axle
   forces) / driven``. With ``coupled = true`` every wheel is on the chain, so all
-  count as driven; the chain's total is reported too.
+  count as driven.
+* Motors sit on shafts (:func:`ridesim.model.vehicle.drive_motors`): each uncoupled
+  driven axle has its own motor; a coupled train has one motor, whose torque is the
+  sum of the shaft torques of every wheel on the train and whose speed is the common
+  shaft speed. Every summary figure (torque, speed, power) is per motor, the most
+  loaded motor's; per-wheel figures carry ``wheel`` in their names.
 * Shaft torque per driven wheel: ``T = r F_x - m g c_x + C_rr N r + I_A theta_ddot
   + m c_y a`` (see :mod:`ridesim.assess.friction`): the push share times the
   contact radius, the wheel's own spin-up ``I_A alpha``, the gravity torque of an
@@ -58,11 +63,12 @@ from scipy.optimize import brentq
 from ridesim.assess.friction import G_STANDARD_M_S2, ContactLoads, contact_loads, cycle_nodes
 from ridesim.errors import InputError
 from ridesim.io.scenario import DriveSpec, SurfaceSpec, VehicleSpec
-from ridesim.model.vehicle import axle_offsets_m
+from ridesim.model.vehicle import axle_offsets_m, drive_motors, motor_name
 from ridesim.model.wheel import MassProperties
 from ridesim.solve.pair import RollingPair
 
-__all__ = ["AnalyticResult", "analyze_cycle", "TorqueModel", "shaft_speed_cycle"]
+__all__ = ["AnalyticResult", "analyze_cycle", "TorqueModel", "shaft_speed_cycle", "duty_profile",
+           "DutyRun", "duty_run", "phase_figures"]
 
 TWO_PI = 2.0 * math.pi
 
@@ -72,7 +78,8 @@ class AnalyticResult:
     """Per-wheel loads, torque and power over one revolution at one speed.
 
     Arrays have shape ``(axles, n)`` (row ``i`` is axle ``i``, rear to front) over the
-    vehicle reference positions ``x_m``; summaries are per driven wheel shaft.
+    vehicle reference positions ``x_m``; ``motor_*`` arrays have shape ``(motors, n)``.
+    Summaries are per motor (the most loaded motor's figure), per-wheel ones say ``wheel``.
 
     Attributes
     ----------
@@ -103,14 +110,15 @@ class AnalyticResult:
     mu_required : ndarray
         Required friction coefficient [-] (inf where a wheel lifts off).
     torque_peak_Nm, torque_rms_Nm, torque_mean_Nm : float
-        Largest ``|T|``, time-weighted RMS and mean torque [N m] over a revolution,
-        the worst driven wheel.
+        Largest ``|T|``, time-weighted RMS and mean torque [N m] over a revolution, per
+        motor (the most loaded motor).
     shaft_speed_max_rad_s, shaft_speed_min_rad_s : float
-        Extreme wheel speeds [rad/s], ``v / r_min`` and ``v / r_max`` (exact).
+        Extreme shaft speeds [rad/s], ``v / r_min`` and ``v / r_max`` (exact).
     power_peak_W, power_mean_W : float
-        Largest ``|P|`` and time-mean power [W], the worst driven wheel.
+        Largest ``|P|`` and time-mean power [W] per motor (the most loaded motor).
     chain_torque_peak_Nm, chain_torque_rms_Nm : float or None
-        Coupled axles: peak and RMS [N m] of the summed torque of all wheels on the chain.
+        Coupled axles: peak and RMS [N m] of the train's one motor (equal to the per-motor
+        figures).
     mu_peak : float
         Largest required friction coefficient [-] over all wheels.
     mu_peak_x_m : float
@@ -124,7 +132,7 @@ class AnalyticResult:
     shaft_speed_drive_surge : float
         Constant-shaft-speed drive: ``v_max / v_min`` [-].
     constant_torque_Nm : float
-        Constant shaft torque [N m] per driven wheel that holds the mean speed.
+        Constant torque [N m] per motor that holds the mean speed.
     constant_torque_ripple : float or None
         Constant-torque drive: ``(v_max - v_min) / v_mean`` [-]; None if it stalls.
     """
@@ -161,10 +169,16 @@ class AnalyticResult:
     shaft_speed_drive_surge: float
     constant_torque_Nm: float
     constant_torque_ripple: float | None
+    motors: tuple = ()
+    motor_torque_Nm: np.ndarray | None = None
+    motor_speed_rad_s: np.ndarray | None = None
+    motor_power_W: np.ndarray | None = None
+    wheel_torque_peak_Nm: float = float("nan")
+    wheel_torque_rms_Nm: float = float("nan")
     extras: dict = field(default_factory=dict)
 
     def to_dict(self) -> dict:
-        """Summary values (per driven wheel shaft), JSON-ready; arrays left out.
+        """Summary values (per motor), JSON-ready; arrays left out.
 
         Returns
         -------
@@ -192,7 +206,37 @@ class AnalyticResult:
             "shaft_speed_drive_surge": float(self.shaft_speed_drive_surge),
             "constant_torque_Nm": float(self.constant_torque_Nm),
             "constant_torque_ripple": f(self.constant_torque_ripple),
+            "wheel_torque_peak_Nm": f(self.wheel_torque_peak_Nm),
+            "wheel_torque_rms_Nm": f(self.wheel_torque_rms_Nm),
+            "motors": self.motor_list(),
         }
+
+    def motor_list(self) -> list[dict]:
+        """Each motor's figures over the revolution.
+
+        Returns
+        -------
+        list of dict
+            ``name``, ``axles``, ``peak_Nm``, ``rms_Nm``, ``mean_Nm`` [N m],
+            ``max_shaft_speed_rad_s`` [rad/s], ``peak_power_W`` and ``mean_power_W`` [W].
+        """
+        if self.motor_torque_Nm is None:
+            return []
+        w = np.asarray(self.weight_m, dtype=float)
+        ws = float(w.sum())
+        out = []
+        for k, axles in enumerate(self.motors):
+            tq, om, pw = self.motor_torque_Nm[k], self.motor_speed_rad_s[k], self.motor_power_W[k]
+            out.append({
+                "name": motor_name(axles), "axles": [int(a) for a in axles],
+                "peak_Nm": float(np.max(np.abs(tq))),
+                "rms_Nm": float(np.sqrt((tq**2 @ w) / ws)),
+                "mean_Nm": float((tq @ w) / ws),
+                "max_shaft_speed_rad_s": float(np.max(om)),
+                "peak_power_W": float(np.max(np.abs(pw))),
+                "mean_power_W": float((pw @ w) / ws),
+            })
+        return out
 
 
 def _vehicle_loads(pair, xr, offsets, driven_set, *, v, a, mp, body_mass, crr, g):
@@ -382,15 +426,20 @@ def analyze_cycle(
     wsum = float(w.sum())
     d = list(driven)
     Td = T[d]
-    rms = np.sqrt((Td**2 @ w) / wsum)
-    mean = (Td @ w) / wsum
-    pmean = (P[d] @ w) / wsum
-    k_rms = int(np.argmax(rms))
+    # One motor per shaft: its torque is the sum over the axles it turns, its speed theirs.
+    motors = drive_motors(n_ax, vehicle.coupled, driven)
+    MT = np.vstack([T[list(ax)].sum(axis=0) for ax in motors]) if motors else np.zeros((0, x.size))
+    MW = np.vstack([wd[ax[0]] for ax in motors]) if motors else np.zeros((0, x.size))
+    MP = np.vstack([P[list(ax)].sum(axis=0) for ax in motors]) if motors else np.zeros((0, x.size))
+    rms = np.sqrt((MT**2 @ w) / wsum)
+    mean = (MT @ w) / wsum
+    pmean = (MP @ w) / wsum
+    k_rms = int(np.argmax(rms)) if motors else 0
+    wheel_rms = np.sqrt((Td**2 @ w) / wsum)
     chain_peak = chain_rms = None
-    if vehicle.coupled:
-        tot = T.sum(axis=0)
-        chain_peak = float(np.max(np.abs(tot)))
-        chain_rms = float(np.sqrt((tot**2 @ w) / wsum))
+    if vehicle.coupled and motors:
+        chain_peak = float(np.max(np.abs(MT)))
+        chain_rms = float(rms[k_rms])
     # Friction peak over all wheels.
     mu_f = np.where(np.isfinite(mu), mu, np.inf)
     ia, ix = np.unravel_index(int(np.argmax(mu_f)), mu_f.shape)
@@ -424,15 +473,20 @@ def analyze_cycle(
         wheel_x_m=np.vstack([x + o for o in offsets]),
         shaft_speed_rad_s=wd, shaft_accel_rad_s2=wdd, normal_load_N=N, tangential_load_N=Ft,
         torque_Nm=T, power_W=P, mu_required=mu,
-        torque_peak_Nm=float(np.max(np.abs(Td))), torque_rms_Nm=float(rms[k_rms]),
-        torque_mean_Nm=float(mean[k_rms]),
+        torque_peak_Nm=float(np.max(np.abs(MT))) if motors else 0.0,
+        torque_rms_Nm=float(rms[k_rms]) if motors else 0.0,
+        torque_mean_Nm=float(mean[k_rms]) if motors else 0.0,
         shaft_speed_max_rad_s=float(v / rmin), shaft_speed_min_rad_s=float(v / rmax),
-        power_peak_W=float(np.max(np.abs(P[d]))), power_mean_W=float(np.max(pmean)),
+        power_peak_W=float(np.max(np.abs(MP))) if motors else 0.0,
+        power_mean_W=float(np.max(pmean)) if motors else 0.0,
         chain_torque_peak_Nm=chain_peak, chain_torque_rms_Nm=chain_rms,
         mu_peak=mu_peak, mu_peak_x_m=mu_x, mu_peak_axle=int(ia), lift_off_speed_m_s=lift,
         shaft_speed_drive_ripple=float((rmax - rmin) / r_mean),
         shaft_speed_drive_surge=float(rmax / rmin),
-        constant_torque_Nm=float(T_const), constant_torque_ripple=ripple_T,
+        constant_torque_Nm=float(T_const) * (len(motors[0]) if motors else 1),
+        constant_torque_ripple=ripple_T, motors=motors, motor_torque_Nm=MT, motor_speed_rad_s=MW,
+        motor_power_W=MP, wheel_torque_peak_Nm=float(np.max(np.abs(Td))) if d else 0.0,
+        wheel_torque_rms_Nm=float(np.max(wheel_rms)) if d else 0.0,
     )
 
 
@@ -457,7 +511,11 @@ def _profiles(pair, sc, mp, v_top: float, a_ref: float):
 
 
 class TorqueModel:
-    """Per-driven-shaft torque ``T0(x) + v² T2(x) + a T1(x)`` from the analytic cycle.
+    """Per-motor torque ``T0(x) + v² T2(x) + a T1(x)`` from the analytic cycle.
+
+    Each driven wheel's shaft torque follows the fit at its own place on the track; a
+    motor's torque is the sum over the wheels it turns (one for an uncoupled axle, all of
+    them on a coupled train).
 
     Parameters
     ----------
@@ -480,6 +538,7 @@ class TorqueModel:
         self.m_total = sc.vehicle.body_mass_kg + sc.vehicle.axles * mp.mass_kg
         L = pair.revolution_length
         self.L = L
+        self.motors = self.cycle.motors
         self._tables = []
         for i in self.cycle.driven:
             xw = np.mod(self.cycle.wheel_x_m[i], L)
@@ -488,6 +547,27 @@ class TorqueModel:
             self._tables.append((i, xs, order[keep]))
 
     def along(self, x_m, v_m_s, a_m_s2, *, grade_rad: float = 0.0):
+        """Torque [N m] and shaft speed [rad/s] of each motor along a motion.
+
+        Parameters
+        ----------
+        x_m, v_m_s, a_m_s2 : array_like
+            Chassis-origin position [m], speed [m/s] and acceleration [m/s^2] over time.
+        grade_rad : float
+            Grade [rad] (adds ``M g sin(grade) r`` shared by the driven wheels).
+
+        Returns
+        -------
+        torque_Nm, shaft_speed_rad_s : ndarray, shape (motors, n)
+            Row ``k`` is motor ``k`` of :attr:`motors`.
+        """
+        tq, om = self.along_wheels(x_m, v_m_s, a_m_s2, grade_rad=grade_rad)
+        row = {i: k for k, (i, _, _) in enumerate(self._tables)}
+        torque = np.vstack([sum(tq[row[i]] for i in ax) for ax in self.motors])
+        omega = np.vstack([om[row[ax[0]]] for ax in self.motors])
+        return torque, omega
+
+    def along_wheels(self, x_m, v_m_s, a_m_s2, *, grade_rad: float = 0.0):
         """Shaft torque [N m] and shaft speed [rad/s] of each driven wheel along a motion.
 
         Parameters
@@ -544,7 +624,7 @@ def shaft_speed_cycle(pair: RollingPair, sc, mp: MassProperties, omega_rad_s: fl
     Returns
     -------
     dict
-        ``peak_Nm``, ``rms_Nm`` (per driven shaft, worst), ``speed_min_m_s``,
+        ``peak_Nm``, ``rms_Nm`` (per motor, the most loaded one), ``speed_min_m_s``,
         ``speed_max_m_s``, ``accel_peak_m_s2``.
     """
     off0 = float(axle_offsets_m(sc.vehicle.axles, sc.vehicle.wheelbase_m)[0])
@@ -553,18 +633,163 @@ def shaft_speed_cycle(pair: RollingPair, sc, mp: MassProperties, omega_rad_s: fl
     # Evaluate at the analytic cycle's own nodes (one-sided values at cusps included), where
     # the torque profiles are exact rather than interpolated across a cusp's jump.
     c = model.cycle
-    x, wx = np.asarray(c.x_m, dtype=float), np.asarray(c.weight_m, dtype=float)
+    wx = np.asarray(c.weight_m, dtype=float)
     xr = np.asarray(c.wheel_x_m[0], dtype=float)
     r = pair.contact_radius(xr)
     drdx = -pair.track.slope(xr)
     # One-sided slopes at the duplicated cusp nodes: take them from the neighbouring node.
     v = omega_rad_s * r
     a = omega_rad_s**2 * r * drdx
-    torque = np.empty((len(c.driven), x.size))
-    for k, i in enumerate(c.driven):
-        torque[k] = model.T0[i] + v * v * model.T2[i] + a * model.T1[i]
+    wheel = {i: model.T0[i] + v * v * model.T2[i] + a * model.T1[i] for i in c.driven}
+    torque = np.vstack([sum(wheel[i] for i in ax) for ax in c.motors])
     w = wx / v  # time spent at each node [s]
     rms = np.sqrt((torque**2 * w).sum(axis=1) / w.sum())
     return {"peak_Nm": float(np.max(np.abs(torque))), "rms_Nm": float(np.max(rms)),
             "speed_min_m_s": float(v.min()), "speed_max_m_s": float(v.max()),
             "accel_peak_m_s2": float(np.max(np.abs(a)))}
+
+
+def duty_profile(top_speed_m_s: float, accel_m_s2: float, brake_m_s2: float, cruise_s: float,
+                 rest_s: float, dt_s: float) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+    """Trapezoidal speed profile from rest to rest.
+
+    Parameters
+    ----------
+    top_speed_m_s : float
+        Cruise speed [m/s].
+    accel_m_s2, brake_m_s2 : float
+        Acceleration and braking deceleration [m/s^2], both > 0.
+    cruise_s, rest_s : float
+        Time at speed and at rest at the end [s].
+    dt_s : float
+        Sample spacing [s].
+
+    Returns
+    -------
+    t_s, v_m_s, a_m_s2 : ndarray
+        Sample times (midpoints of equal steps), speed and acceleration.
+    """
+    t_a = top_speed_m_s / accel_m_s2
+    t_b = top_speed_m_s / brake_m_s2
+    total = t_a + cruise_s + t_b + rest_s
+    n = max(int(math.ceil(total / dt_s)), 8)
+    t = (np.arange(n) + 0.5) * (total / n)
+    v = np.where(t < t_a, accel_m_s2 * t,
+                 np.where(t < t_a + cruise_s, top_speed_m_s,
+                          np.maximum(top_speed_m_s - brake_m_s2 * (t - t_a - cruise_s), 0.0)))
+    a = np.where(t < t_a, accel_m_s2,
+                 np.where(t < t_a + cruise_s, 0.0,
+                          np.where(t < t_a + cruise_s + t_b, -brake_m_s2, 0.0)))
+    return t, v, a
+
+
+def phase_figures(t_s, torque_Nm, shaft_speed_rad_s, window_s) -> dict:
+    """Per-motor torque, speed and power figures over one time window.
+
+    Parameters
+    ----------
+    t_s : array_like, shape (n,)
+        Sample times [s] (equal steps).
+    torque_Nm, shaft_speed_rad_s : array_like, shape (motors, n)
+        Torque [N m] and shaft speed [rad/s] of each motor.
+    window_s : (float, float)
+        Start and end [s] of the window (samples with ``t0 <= t <= t1``).
+
+    Returns
+    -------
+    dict
+        ``window_s``; ``peak_Nm`` (largest ``|T|``), ``rms_Nm`` and ``mean_Nm`` [N m],
+        ``max_shaft_speed_rad_s`` [rad/s], ``peak_power_W`` [W] (largest delivered ``T omega``):
+        each the most loaded motor's; ``motors``, the same figures for each motor. Figures
+        are None when no sample falls in the window.
+    """
+    t = np.asarray(t_s, dtype=float)
+    tq = np.atleast_2d(np.asarray(torque_Nm, dtype=float))
+    om = np.atleast_2d(np.asarray(shaft_speed_rad_s, dtype=float))
+    t0, t1 = float(window_s[0]), float(window_s[1])
+    m = (t >= t0 - 1e-12) & (t <= t1 + 1e-12)
+    out: dict = {"window_s": [t0, t1]}
+    keys = ("peak_Nm", "rms_Nm", "mean_Nm", "max_shaft_speed_rad_s", "peak_power_W")
+    if not np.any(m) or tq.shape[0] == 0:
+        out.update({k: None for k in keys})
+        out["motors"] = []
+        return out
+    T, W = tq[:, m], om[:, m]
+    per = []
+    for k in range(T.shape[0]):
+        per.append({"peak_Nm": float(np.max(np.abs(T[k]))),
+                    "rms_Nm": float(np.sqrt(np.mean(T[k] ** 2))),
+                    "mean_Nm": float(np.mean(T[k])),
+                    "max_shaft_speed_rad_s": float(np.max(np.abs(W[k]))),
+                    "peak_power_W": float(np.max(T[k] * W[k]))})
+    worst = max(range(len(per)), key=lambda k: per[k]["rms_Nm"])
+    for k in keys:
+        out[k] = max(p[k] for p in per) if k != "mean_Nm" else per[worst][k]
+    out["motors"] = per
+    return out
+
+
+@dataclass(frozen=True)
+class DutyRun:
+    """Per-motor torque and speed along a duty cycle from rest to rest.
+
+    Attributes
+    ----------
+    t_s, speed_m_s, accel_m_s2, x_m : ndarray, shape (n,)
+        Time [s], vehicle speed [m/s], acceleration [m/s^2] and chassis position [m].
+    torque_Nm, shaft_speed_rad_s : ndarray, shape (motors, n)
+        Torque [N m] and shaft speed [rad/s] of each motor.
+    motors : tuple of tuple of int
+        The axles each motor turns.
+    windows_s : dict
+        ``startup``, ``cruise``, ``braking`` (and ``rest`` when there is one) -> (start, end) [s].
+    """
+
+    t_s: np.ndarray
+    speed_m_s: np.ndarray
+    accel_m_s2: np.ndarray
+    x_m: np.ndarray
+    torque_Nm: np.ndarray
+    shaft_speed_rad_s: np.ndarray
+    motors: tuple
+    windows_s: dict
+
+
+def duty_run(model: TorqueModel, *, top_speed_m_s: float, accel_m_s2: float, brake_m_s2: float,
+             cruise_s: float, rest_s: float = 0.0, dt_s: float | None = None,
+             grade_rad: float = 0.0) -> DutyRun:
+    """Follow the duty cycle in time from the scenario's start pose (chassis origin at x = 0).
+
+    Parameters
+    ----------
+    model : TorqueModel
+        The per-motor torque model.
+    top_speed_m_s : float
+        Cruise speed [m/s] (> 0).
+    accel_m_s2, brake_m_s2 : float
+        Start-up acceleration and braking deceleration [m/s^2] (> 0).
+    cruise_s, rest_s : float
+        Time at speed and at rest [s].
+    dt_s : float, optional
+        Sample spacing [s]; default resolves each track period with 64 samples (at most 10 ms).
+    grade_rad : float
+        Grade [rad].
+
+    Returns
+    -------
+    DutyRun
+    """
+    v_top = float(top_speed_m_s)
+    if dt_s is None:
+        dt_s = min(0.01, model.pair.track.period / (64.0 * v_top))
+    t, v, a = duty_profile(v_top, accel_m_s2, brake_m_s2, cruise_s, rest_s, dt_s)
+    h = t[1] - t[0]
+    x = np.cumsum(v) * h - 0.5 * v * h  # position of the chassis origin [m]
+    torque, omega = model.along(x, v, a, grade_rad=grade_rad)
+    t_a, t_b = v_top / accel_m_s2, v_top / brake_m_s2
+    win = {"startup": (0.0, t_a), "cruise": (t_a, t_a + cruise_s),
+           "braking": (t_a + cruise_s, t_a + cruise_s + t_b)}
+    if rest_s > 0:
+        win["rest"] = (t_a + cruise_s + t_b, t_a + cruise_s + t_b + rest_s)
+    return DutyRun(t_s=t, speed_m_s=v, accel_m_s2=a, x_m=x, torque_Nm=torque,
+                   shaft_speed_rad_s=omega, motors=tuple(model.motors), windows_s=win)

@@ -6,8 +6,10 @@
   (:func:`ridesim.assess.clearance.clearance`) and the corner seating at cusps,
 * the friction the surface must supply, steady and while accelerating
   (:mod:`ridesim.assess.friction`),
-* shaft torque, speed and power per driven wheel, and the lift-off speed
-  (:func:`ridesim.assess.analytic.analyze_cycle`).
+* torque, shaft speed and power per motor (each uncoupled driven axle has its own
+  motor, a coupled train one), by phase: the start-up from rest and the braking of
+  the duty cycle ``ridesim size-motor`` follows, and the cruise over one wheel
+  revolution at steady speed (:mod:`ridesim.assess.analytic`), and the lift-off speed.
 
 ``rollable`` is False when the wheel cuts into the track, when the surface
 cannot supply the friction (or a wheel lifts off at the drive's speed), when
@@ -22,7 +24,14 @@ from dataclasses import dataclass, field
 
 import numpy as np
 
-from ridesim.assess.analytic import AnalyticResult, analyze_cycle, shaft_speed_cycle
+from ridesim.assess.analytic import (
+    AnalyticResult,
+    TorqueModel,
+    analyze_cycle,
+    duty_run,
+    phase_figures,
+    shaft_speed_cycle,
+)
 from ridesim.assess.clearance import ClearanceResult, CuspSeat, clearance, cusp_seating
 from ridesim.assess.phasing import cart_phasing
 from ridesim.errors import InputError
@@ -33,6 +42,8 @@ from ridesim.safety import SAFETY_CAUTIONS, caution_lines, with_safety
 __all__ = ["CheckResult", "check_scenario", "SAFETY_CAUTIONS", "CHECK_CAUTIONS"]
 
 HALF_PI = 0.5 * math.pi
+RPM_PER_RAD_S = 30.0 / math.pi
+PHASE_LABELS = {"startup": "start-up", "cruise": "cruise", "braking": "braking"}
 
 CHECK_CAUTIONS = (
     "The check's model is exact: the track as solved, sharp wheel corners, steady loads and no"
@@ -85,6 +96,10 @@ class CheckResult:
         Several axles: phase errors [rad], load shares, lifted axles, bounce [m], pitch range
         [rad], seat bounce [m] and seat acceleration [m/s^2] (quasi-static estimate, vibration
         up to 80 Hz, the top of the ISO 2631-1 band).
+    phases : dict
+        Per-motor torque figures by phase: ``startup`` and ``braking`` (when the drive has a
+        start acceleration) over the duty cycle of ``ridesim size-motor``, each with its
+        ``window_s`` in that cycle, and ``cruise`` over one wheel revolution at steady speed.
     """
 
     name: str
@@ -101,6 +116,7 @@ class CheckResult:
     summary: dict = field(default_factory=dict)
     cart: dict | None = None
     shaft_drive: dict | None = None
+    phases: dict = field(default_factory=dict)
 
     # ------------------------------------------------------------------ friction summary
     def _friction(self) -> dict:
@@ -132,10 +148,11 @@ class CheckResult:
         dict
             ``rollable``, ``reasons``, ``clearance`` {``min_m``, ``at_x_m``, ...},
             ``friction`` {``required_peak``, ``at_x_m``, ``available``, ``slips``, ...},
-            ``torque`` {``peak_Nm``, ``rms_Nm``, ...} per driven wheel at the drive's speed,
+            ``torque`` {``peak_Nm`` (largest over the phases), ``rms_Nm`` (cruise), ``by_phase``,
+            ...} per motor, ``motors`` (each motor's name, axles and cruise figures),
             ``lift_off_speed_m_s``, ``cautions``, and extra keys with units in their names.
         """
-        cl, st, ac = self.clearance, self.steady, self.accelerating
+        cl, st = self.clearance, self.steady
         out: dict = {"name": self.name, "rollable": bool(self.rollable),
                      "reasons": list(self.reasons), "notes": list(self.notes)}
         if cl is None:
@@ -154,27 +171,39 @@ class CheckResult:
             out["torque"] = {"peak_Nm": None, "rms_Nm": None}
             out["lift_off_speed_m_s"] = None
         else:
-            tq = {"peak_Nm": float(st.torque_peak_Nm), "rms_Nm": float(st.torque_rms_Nm),
-                  "mean_Nm": float(st.torque_mean_Nm)}
-            if ac is not None:
-                tq["peak_accelerating_Nm"] = float(ac.torque_peak_Nm)
-                tq["rms_accelerating_Nm"] = float(ac.torque_rms_Nm)
+            by_phase = {k: {kk: vv for kk, vv in v.items() if kk != "motors"}
+                        for k, v in self.phases.items()}
+            peaks = {k: v["peak_Nm"] for k, v in by_phase.items() if v.get("peak_Nm") is not None}
+            top = max(peaks, key=peaks.get) if peaks else "cruise"
+            tq = {"per": "motor",
+                  "peak_Nm": float(peaks.get(top, st.torque_peak_Nm)),
+                  "peak_phase": top,
+                  "rms_Nm": float(st.torque_rms_Nm),
+                  "mean_Nm": float(st.torque_mean_Nm),
+                  "by_phase": by_phase,
+                  "wheel_peak_Nm": _f(st.wheel_torque_peak_Nm),
+                  "wheel_rms_Nm": _f(st.wheel_torque_rms_Nm)}
             if st.chain_torque_peak_Nm is not None:
                 tq["chain_peak_Nm"] = float(st.chain_torque_peak_Nm)
                 tq["chain_rms_Nm"] = _f(st.chain_torque_rms_Nm)
             if self.shaft_drive is not None:  # the drive's own torque, not the steady-speed one
-                tq = {"peak_Nm": self.shaft_drive["peak_Nm"], "rms_Nm": self.shaft_drive["rms_Nm"],
-                      "peak_steady_speed_Nm": tq["peak_Nm"], "rms_steady_speed_Nm": tq["rms_Nm"],
-                      "mean_Nm": tq["mean_Nm"]}
+                tq = {"per": "motor", "peak_Nm": self.shaft_drive["peak_Nm"],
+                      "rms_Nm": self.shaft_drive["rms_Nm"],
+                      "peak_steady_speed_Nm": float(st.torque_peak_Nm),
+                      "rms_steady_speed_Nm": tq["rms_Nm"], "mean_Nm": tq["mean_Nm"],
+                      "by_phase": tq["by_phase"]}
                 out["shaft_drive"] = dict(self.shaft_drive)
             out["torque"] = tq
             out["lift_off_speed_m_s"] = _f(st.lift_off_speed_m_s)
             out["speed_m_s"] = _f(self.speed_m_s)
             out["shaft_speed_max_rad_s"] = float(st.shaft_speed_max_rad_s)
             out["shaft_speed_min_rad_s"] = float(st.shaft_speed_min_rad_s)
-            out["power_peak_W"] = float(st.power_peak_W)
+            powers = [v.get("peak_power_W") for v in by_phase.values()]
+            out["power_peak_W"] = float(max([p for p in powers if p is not None]
+                                            + [st.power_peak_W]))
             out["power_mean_W"] = float(st.power_mean_W)
             out["driven_axles"] = [int(i) for i in st.driven]
+            out["motors"] = st.motor_list()
             out["speed_ripple"] = {
                 "constant_shaft_speed": float(st.shaft_speed_drive_ripple),
                 "constant_shaft_speed_surge": float(st.shaft_speed_drive_surge),
@@ -219,9 +248,23 @@ class CheckResult:
             lines.append("friction: a wheel lifts off the track at this speed")
         tq = d["torque"]
         if tq.get("peak_Nm") is not None:
-            lines.append(f"torque per driven wheel at {d['speed_m_s']:.3g} m/s: peak"
-                         f" {tq['peak_Nm']:.4g} N m, RMS {tq['rms_Nm']:.4g} N m;"
-                         f" shaft up to {d['shaft_speed_max_rad_s']:.3g} rad/s,"
+            mot = d.get("motors") or []
+            names = "; ".join(m["name"] for m in mot) or "none"
+            lines.append(f"torque per motor ({len(mot)} motor{'s' if len(mot) != 1 else ''}:"
+                         f" {names}" + ("; the most loaded motor's figures" if len(mot) > 1 else "")
+                         + "):")
+            ph = tq.get("by_phase") or {}
+            for key, label in PHASE_LABELS.items():
+                p = ph.get(key)
+                if not p or p.get("peak_Nm") is None:
+                    continue
+                lines.append(f"  {label:<9} {p['covers']}: peak {p['peak_Nm']:.4g} N m,"
+                             f" r.m.s. {p['rms_Nm']:.4g} N m")
+            if self.shaft_drive is not None:
+                lines.append(f"  constant shaft speed drive: peak {tq['peak_Nm']:.4g} N m,"
+                             f" r.m.s. {tq['rms_Nm']:.4g} N m")
+            w = d["shaft_speed_max_rad_s"]
+            lines.append(f"  shaft speed up to {w:.3g} rad/s ({w * RPM_PER_RAD_S:.3g} rpm),"
                          f" power peak {d['power_peak_W']:.3g} W")
         lo = d.get("lift_off_speed_m_s")
         lines.append("lift-off: none at any speed" if lo is None
@@ -388,21 +431,26 @@ def check_scenario(sc: Scenario) -> CheckResult:
         notes.append(
             f"a constant shaft speed of {sc.drive.shaft_speed_rad_s:.3g} rad/s makes the ground speed"
             f" surge between {shaft['speed_min_m_s']:.3g} and {shaft['speed_max_m_s']:.3g} m/s"
-            f" (up to {shaft['accel_peak_m_s2']:.3g} m/s^2): each driven shaft then needs"
+            f" (up to {shaft['accel_peak_m_s2']:.3g} m/s^2): each motor then needs"
             f" {shaft['peak_Nm']:.3g} N m peak, {shaft['rms_Nm']:.3g} N m r.m.s., far more than at a"
             " steady ground speed, plus impacts where the contact jumps; a speed-regulating drive"
             " avoids it"
         )
 
+    # -- torque by phase (per motor)
+    phases = _phases(pair, sc, mp, steady)
+
     # -- drive
-    peak_T = steady.torque_peak_Nm if acc is None else max(steady.torque_peak_Nm, acc.torque_peak_Nm)
+    peak_T = max(p["peak_Nm"] for p in phases.values() if p.get("peak_Nm") is not None)
     if peak_T > sc.drive.max_torque_Nm:
-        notes.append(f"the drive's torque limit {sc.drive.max_torque_Nm:.3g} N m is below the"
-                     f" {peak_T:.3g} N m peak each driven wheel needs; the cart will slow near the"
-                     " peaks or not start")
+        worst = max((k for k in phases if phases[k].get("peak_Nm") is not None),
+                    key=lambda k: phases[k]["peak_Nm"])
+        notes.append(f"the drive's torque limit {sc.drive.max_torque_Nm:.3g} N m per motor is below"
+                     f" the {peak_T:.3g} N m peak a motor needs ({PHASE_LABELS[worst]}); the cart"
+                     " will slow near the peaks or not start")
     if sc.drive.mode == "torque" and sc.drive.torque_Nm is not None:
         tc = steady.constant_torque_Nm
-        notes.append(f"a constant {tc:.3g} N m per driven wheel balances the rolling resistance;"
+        notes.append(f"a constant {tc:.3g} N m per motor balances the rolling resistance;"
                      f" the drive's {sc.drive.torque_Nm:.3g} N m will keep "
                      + ("accelerating the cart: limit its speed" if sc.drive.torque_Nm > tc
                         else "slowing the cart"))
@@ -416,8 +464,44 @@ def check_scenario(sc: Scenario) -> CheckResult:
                  "depth_max_m": float(pair.depth_range()[1]),
                  "wheel_mass_kg": float(mp.mass_kg), "wheel_inertia_kg_m2": float(mp.inertia_kg_m2)},
         cart=None if cart is None else cart.to_dict(),
-        shaft_drive=shaft,
+        shaft_drive=shaft, phases=phases,
     )
+
+
+def _phases(pair, sc: Scenario, mp, steady: AnalyticResult) -> dict:
+    """Per-motor torque by phase: cruise over one revolution; start-up and braking of the duty.
+
+    The start-up (from rest at ``drive.accel_m_s2``) and the braking (at ``duty.brake_m_s2``,
+    or the start acceleration) follow the same duty cycle, from the same start pose, as
+    ``ridesim size-motor``, so both commands give the same figures for them; the cruise is
+    the exact steady cycle (every track position, one-sided values at cusps included).
+    """
+    v = float(steady.speed_m_s)
+    L = float(pair.revolution_length)
+    cruise = {"window_s": None, "peak_Nm": float(steady.torque_peak_Nm),
+              "rms_Nm": float(steady.torque_rms_Nm), "mean_Nm": float(steady.torque_mean_Nm),
+              "max_shaft_speed_rad_s": float(steady.shaft_speed_max_rad_s),
+              "peak_power_W": float(np.max(steady.motor_power_W)) if steady.motors else 0.0,
+              "covers": f"at {v:.3g} m/s over one wheel revolution"
+                        + (f" ({L / v:.3g} s)" if v > 0 else "")}
+    accel = float(sc.drive.accel_m_s2)
+    if not (accel > 0 and v > 0 and steady.motors):
+        cruise["window_s"] = [0.0, L / v] if v > 0 else None
+        return {"cruise": cruise}
+    brake = float(sc.duty.brake_m_s2) if sc.duty.brake_m_s2 is not None else accel
+    model = TorqueModel(pair, sc, mp, v, accel)
+    run = duty_run(model, top_speed_m_s=v, accel_m_s2=accel, brake_m_s2=brake,
+                   cruise_s=sc.duty.cruise_s)
+    t_a = v / accel
+    cruise["window_s"] = [t_a, t_a + L / v]
+    out = {}
+    for key, rate, what in (("startup", accel, "from rest to"), ("braking", brake, "to rest from")):
+        p = phase_figures(run.t_s, run.torque_Nm, run.shaft_speed_rad_s, run.windows_s[key])
+        t0, t1 = p["window_s"]
+        p["covers"] = (f"{t0:.4g}-{t1:.4g} s, {what} {v:.3g} m/s at {rate:.3g} m/s^2")
+        p.pop("motors", None)
+        out[key] = p
+    return {"startup": out["startup"], "cruise": cruise, "braking": out["braking"]}
 
 
 def _slope_at(pair, x: float) -> float:

@@ -331,9 +331,10 @@ class DriveSpec:
         Ramp-up acceleration in m/s^2 towards the target; 0: start at the
         target.
     max_torque_Nm : float
-        Largest torque in N*m the drive may apply to hold its target.
+        Largest torque in N*m each motor may apply to hold its target (per motor: one
+        per uncoupled driven axle, one for a coupled train).
     torque_Nm : float or None
-        Constant axle torque in N*m (required for mode ``torque``).
+        Constant torque in N*m of each motor (required for mode ``torque``).
     shaft_speed_rad_s : float or None
         Target axle angular speed in rad/s (required for mode
         ``shaft_speed``).

@@ -8,6 +8,12 @@ the probes and metrics in a :class:`SimResult` (the JSON contract of
 
 Only the time after ``run.settle_s`` counts: the run starts from the ideal pose
 and speed, and the first moments carry the start-up transient.
+
+Torque, shaft speed and power are per motor (:func:`ridesim.model.vehicle.drive_motors`:
+one per uncoupled driven axle, one for a coupled train) and by phase: the start-up
+(the speed drive's ramp from rest) and the cruise after it, each with its time window;
+the windows left out (``run.settle_s`` at the start, :data:`DRIVE_SETTLE_S` after the
+ramp) are reported too, with the torque peak inside them.
 """
 
 from __future__ import annotations
@@ -25,6 +31,8 @@ from ridesim.sim.engine import Probes
 
 __all__ = [
     "TORQUE_FILTER_S",
+    "DRIVE_SETTLE_S",
+    "torque_windows",
     "SLIP_FILTER_S",
     "SLIP_FLOOR_M_S",
     "SLIP_SPEED_FRACTION",
@@ -60,6 +68,17 @@ outline to the next with one-step impulses of alternating sign; a 10 ms average
 (ten steps at 1 kHz) removes them while keeping anything a motor, its gearing or a
 rider would feel (motor peak ratings are given over tens of milliseconds or more,
 common practice in motor data sheets). Raw peaks are reported separately.
+"""
+
+DRIVE_SETTLE_S = 0.2
+"""Time [s] after the end of a speed drive's ramp left out of the cruise torque figures.
+
+The speed drive (:mod:`ridesim.sim.run`) is a PI loop with proportional time constant
+``tau_p`` = 10 ms and integral time ``tau_i`` = 50 ms on the vehicle's speed; its closed-loop
+characteristic polynomial ``s^2 + s/tau_p + 1/(tau_p tau_i)`` has roots -27.6 and -72.4 1/s
+(the PI loop of a pure inertia, e.g. Franklin, Powell & Emami-Naeini, "Feedback Control of
+Dynamic Systems", ch. 4 [memory]). When the ramp stops, the torque settles to its cruise value
+as ``exp(-27.6 t)``: below 0.5 % of the step after 0.2 s.
 """
 
 SLIP_FILTER_S = 0.005
@@ -319,8 +338,77 @@ def slip_scrub(probes: Probes, threshold_m_s: float | None = None) -> tuple[floa
             float(np.max(np.where(over, raw, 0.0).sum(axis=0))) * dt)
 
 
+def torque_windows(probes: Probes) -> tuple[dict, list]:
+    """The torque phases of a run and the windows left out of them.
+
+    Parameters
+    ----------
+    probes : Probes
+        Probe record (``probes.info["ramp_end_s"]``: end of a speed drive's ramp from rest).
+
+    Returns
+    -------
+    phases : dict
+        ``startup`` (only with a ramp) and ``cruise`` -> ``{"window_s": [t0, t1],
+        "measured_s": [a, b] or None}``: the phase, and the part of it the figures cover.
+    skipped : list of dict
+        ``{"window_s": [t0, t1], "reason": str}`` for each stretch left out: ``run.settle_s``
+        at the start, :data:`DRIVE_SETTLE_S` after the ramp.
+    """
+    t = probes.time_s
+    if t.size == 0:
+        return {}, []
+    t_end = float(t[-1])
+    settle = float(probes.settle_s)
+    ramp = float(probes.info.get("ramp_end_s", 0.0) or 0.0)
+    ramp = min(ramp, t_end) if ramp > 0 else 0.0
+    phases: dict = {}
+    measured = []
+    if ramp > 0:
+        a = settle
+        phases["startup"] = {"window_s": [0.0, ramp], "measured_s": [a, ramp] if a < ramp else None}
+        c0 = max(settle, ramp + DRIVE_SETTLE_S)
+    else:
+        c0 = settle
+    if ramp < t_end:
+        phases["cruise"] = {"window_s": [ramp, t_end],
+                            "measured_s": [c0, t_end] if c0 < t_end else None}
+    for p in phases.values():
+        if p["measured_s"] is not None:
+            measured.append(tuple(p["measured_s"]))
+    skipped = []
+    pos = 0.0
+    for a, b in sorted(measured) + [(t_end, t_end)]:
+        if a > pos + 1e-12:
+            reason = ("run.settle_s: the start transient of the drive and the contacts" if pos == 0.0
+                      else "the speed drive settling after its ramp")
+            skipped.append({"window_s": [pos, min(a, t_end)], "reason": reason})
+        pos = max(pos, b)
+    return phases, skipped
+
+
+def _motor_rate(probes: Probes) -> np.ndarray:
+    """Shaft speed [rad/s] of each motor (its first axle's wheel rate), shape (N, S)."""
+    axles = [int(ax[0]) for ax in probes.shaft_axles]
+    if not axles:
+        return np.zeros((probes.steps, 0))
+    return probes.wheel_rate_rad_s[:, axles]
+
+
+def _window_figures(t, flt, raw, rate, window) -> dict:
+    """Torque figures of one shaft over ``window`` [s] (None outside any sample)."""
+    m = (t >= window[0] - 1e-12) & (t <= window[1] + 1e-12)
+    if not np.any(m):
+        return {"peak_Nm": None, "rms_Nm": None, "mean_Nm": None, "peak_raw_Nm": None,
+                "max_shaft_speed_rad_s": None, "peak_power_W": None}
+    f, r, w = flt[m], raw[m], rate[m]
+    return {"peak_Nm": float(np.max(np.abs(f))), "rms_Nm": float(np.sqrt(np.mean(f * f))),
+            "mean_Nm": float(np.mean(r)), "peak_raw_Nm": float(np.max(np.abs(r))),
+            "max_shaft_speed_rad_s": float(np.max(np.abs(w))), "peak_power_W": float(np.max(f * w))}
+
+
 def torque_stats(probes: Probes) -> list[dict]:
-    """Drive torque figures per shaft after settling.
+    """Drive torque figures per motor (one per shaft), by phase.
 
     Parameters
     ----------
@@ -330,22 +418,47 @@ def torque_stats(probes: Probes) -> list[dict]:
     Returns
     -------
     list of dict
-        Per shaft: ``axles`` (tuple of int), ``peak_Nm`` (largest magnitude of the
-        :data:`TORQUE_FILTER_S` moving average), ``rms_Nm`` (RMS of that average),
-        ``peak_raw_Nm`` (largest single-step magnitude) and ``mean_Nm``.
+        Per motor: ``axles`` (tuple of int), ``name``; ``peak_Nm`` (largest magnitude of the
+        :data:`TORQUE_FILTER_S` moving average over the measured phases), ``peak_raw_Nm``
+        (largest single-step magnitude there), ``rms_Nm`` (RMS of that average) and
+        ``mean_Nm`` over the cruise (over the start-up when there is no cruise);
+        ``by_phase`` (:func:`torque_windows` phases with these figures, speed and power);
+        ``skipped`` (the windows left out, with their peaks).
     """
-    m = settled(probes)
-    out = []
+    from ridesim.model.vehicle import motor_name
+
+    phases, skipped = torque_windows(probes)
+    t = probes.time_s
     f = moving_average(probes.shaft_torque_Nm, _window(probes, TORQUE_FILTER_S))
+    rate = _motor_rate(probes)
+    out = []
     for j, axles in enumerate(probes.shaft_axles):
-        raw = probes.shaft_torque_Nm[m, j]
-        flt = f[m, j]
+        raw, flt, w = probes.shaft_torque_Nm[:, j], f[:, j], rate[:, j]
+        by = {}
+        for name, ph in phases.items():
+            win = ph["measured_s"]
+            figs = _window_figures(t, flt, raw, w, win) if win is not None else _window_figures(
+                t, flt, raw, w, (1.0, 0.0))
+            by[name] = {"window_s": list(ph["window_s"]), "measured_s": win, **figs}
+        sk = []
+        for s_ in skipped:
+            # After the ramp, the average's first window still holds ramp samples: start later.
+            w0, w1 = s_["window_s"]
+            lag = TORQUE_FILTER_S + probes.dt_s if w0 > 0 else 0.0
+            figs = _window_figures(t, flt, raw, w, (w0 + lag, w1))
+            sk.append({**s_, "peak_Nm": figs["peak_Nm"], "peak_raw_Nm": figs["peak_raw_Nm"]})
+        got = [p for p in by.values() if p["peak_Nm"] is not None]
+        main = by.get("cruise") if by.get("cruise", {}).get("rms_Nm") is not None else (
+            got[0] if got else None)
         out.append({
             "axles": tuple(int(a) for a in axles),
-            "peak_Nm": float(np.max(np.abs(flt))) if flt.size else 0.0,
-            "rms_Nm": float(np.sqrt(np.mean(flt * flt))) if flt.size else 0.0,
-            "peak_raw_Nm": float(np.max(np.abs(raw))) if raw.size else 0.0,
-            "mean_Nm": float(np.mean(raw)) if raw.size else 0.0,
+            "name": motor_name(axles),
+            "peak_Nm": max((p["peak_Nm"] for p in got), default=0.0),
+            "rms_Nm": main["rms_Nm"] if main else 0.0,
+            "peak_raw_Nm": max((p["peak_raw_Nm"] for p in got), default=0.0),
+            "mean_Nm": main["mean_Nm"] if main else 0.0,
+            "by_phase": by,
+            "skipped": sk,
         })
     return out
 
@@ -400,7 +513,7 @@ def drive_stats(probes: Probes) -> dict:
     dict
         ``mode``; ``torque_limit_Nm`` (the limit of a speed or shaft-speed drive, the constant
         torque of a torque drive); ``at_limit_pct``, the share of settled steps in which some
-        driven shaft's torque was at :data:`AT_LIMIT_FRACTION` of that limit or more (None
+        motor's torque was at :data:`AT_LIMIT_FRACTION` of that limit or more (None
         for a torque drive, always at it); ``stalled`` and ``stall_reason``: a speed drive
         whose mean ground speed, or a shaft-speed drive whose mean shaft speed, stays below
         :data:`STALL_SPEED_FRACTION` of its target; a torque drive whose vehicle moves less
@@ -569,16 +682,22 @@ class SimResult:
         """
         tq = self.torque
         top = {
+            "per": "motor",
             "peak_Nm": max((t["peak_Nm"] for t in tq), default=0.0),
             "rms_Nm": max((t["rms_Nm"] for t in tq), default=0.0),
             "peak_raw_Nm": max((t["peak_raw_Nm"] for t in tq), default=0.0),
             "filter_window_s": TORQUE_FILTER_S,
-            "per_wheel": [
-                {"axles": list(t["axles"]), "peak_Nm": t["peak_Nm"], "rms_Nm": t["rms_Nm"],
-                 "peak_raw_Nm": t["peak_raw_Nm"], "mean_Nm": t["mean_Nm"]}
+            "by_phase": _worst_by_phase(tq),
+            "skipped": _worst_skipped(tq),
+            "motors": [
+                {"name": t["name"], "axles": list(t["axles"]), "peak_Nm": t["peak_Nm"],
+                 "rms_Nm": t["rms_Nm"], "peak_raw_Nm": t["peak_raw_Nm"], "mean_Nm": t["mean_Nm"],
+                 "by_phase": t["by_phase"]}
                 for t in tq
             ],
         }
+        phases = {k: v for k, v in top["by_phase"].items() if v.get("peak_Nm") is not None}
+        top["peak_phase"] = max(phases, key=lambda k: phases[k]["peak_Nm"]) if phases else None
         info = self.probes.info
         return _finite_or_none({
             "name": self.name,
@@ -626,8 +745,7 @@ class SimResult:
             + ("" if not sl["time_over_threshold_s"] else
                f"; above the threshold {1000 * sl['time_over_threshold_s']:.0f} ms in all,"
                f" {1000 * sl['distance_over_threshold_m']:.3g} mm of rim scrub"),
-            f"torque:       peak {tq['peak_Nm']:.4g} N m (raw {tq['peak_raw_Nm']:.4g}),"
-            f" r.m.s. {tq['rms_Nm']:.4g} N m per driven shaft",
+            *_torque_lines(tq),
             f"speed:        mean {sp['mean_m_s']:.4g} m/s, final {sp['final_m_s']:.4g} m/s,"
             f" ripple {sp['ripple_pct'] if sp['ripple_pct'] is None else round(sp['ripple_pct'], 3)} %",
             f"contact lost: {'yes' if d['contact_lost'] else 'no'}",
@@ -637,7 +755,7 @@ class SimResult:
             line = (f"drive:        at its {dr['torque_limit_Nm']:.4g} N m limit"
                     f" {dr['at_limit_pct']:.0f} % of the time")
         elif dr.get("mode") == "torque":
-            line = f"drive:        constant {dr['torque_limit_Nm']:.4g} N m per driven shaft"
+            line = f"drive:        constant {dr['torque_limit_Nm']:.4g} N m per motor"
         else:
             line = None
         if dr.get("stalled"):
@@ -678,6 +796,68 @@ class SimResult:
         buf.write(",".join(names) + "\n")
         np.savetxt(buf, data, delimiter=",", fmt="%.9g")
         return write_text_atomic(path, buf.getvalue())
+
+
+def _worst_by_phase(tq: list) -> dict:
+    """Each phase's figures, the most loaded motor's.
+
+    The largest of each figure over the motors; the mean is that of the motor with the
+    largest r.m.s.
+    """
+    out: dict = {}
+    for t in tq:
+        for name, p in t["by_phase"].items():
+            cur = out.setdefault(name, {"window_s": p["window_s"], "measured_s": p["measured_s"]})
+            for k in ("peak_Nm", "rms_Nm", "peak_raw_Nm", "max_shaft_speed_rad_s", "peak_power_W"):
+                if p[k] is not None and (cur.get(k) is None or p[k] > cur[k]):
+                    cur[k] = p[k]
+                    if k == "rms_Nm":
+                        cur["mean_Nm"] = p["mean_Nm"]
+                cur.setdefault(k, None)
+            cur.setdefault("mean_Nm", None)
+    return out
+
+
+def _worst_skipped(tq: list) -> list:
+    """The skipped windows with the largest peak over the motors."""
+    if not tq:
+        return []
+    out = []
+    for i, s in enumerate(tq[0]["skipped"]):
+        row = {"window_s": s["window_s"], "reason": s["reason"]}
+        for k in ("peak_Nm", "peak_raw_Nm"):
+            vals = [t["skipped"][i][k] for t in tq if t["skipped"][i][k] is not None]
+            row[k] = max(vals) if vals else None
+        out.append(row)
+    return out
+
+
+def _torque_lines(tq: dict) -> list[str]:
+    """The torque section of the text report: per motor, by phase, windows stated."""
+    mot = tq.get("motors") or []
+    names = "; ".join(m["name"] for m in mot) or "none"
+    head = (f"torque:       per motor ({len(mot)} motor{'s' if len(mot) != 1 else ''}: {names}"
+            + ("; the most loaded motor's figures" if len(mot) > 1 else "")
+            + f"), {1000 * tq['filter_window_s']:.0f} ms average (raw step peak)")
+    lines = [head]
+    labels = {"startup": "start-up", "cruise": "cruise"}
+    for key, label in labels.items():
+        p = (tq.get("by_phase") or {}).get(key)
+        if p is None:
+            continue
+        w0, w1 = p["window_s"]
+        if p.get("peak_Nm") is None or p.get("measured_s") is None:
+            lines.append(f"  {label:<9} {w0:.3g}-{w1:.3g} s: not measured (all of it skipped)")
+            continue
+        m0, m1 = p["measured_s"]
+        part = f"{m0:.3g}-{m1:.3g} s" + (f" of {w0:.3g}-{w1:.3g} s" if (m0, m1) != (w0, w1) else "")
+        lines.append(f"  {label:<9} {part}: peak {p['peak_Nm']:.4g} N m (raw {p['peak_raw_Nm']:.4g}),"
+                     f" r.m.s. {p['rms_Nm']:.4g} N m")
+    for s in tq.get("skipped") or []:
+        w0, w1 = s["window_s"]
+        pk = "" if s.get("peak_Nm") is None else f": peak {s['peak_Nm']:.4g} N m there"
+        lines.append(f"  skipped   {w0:.3g}-{w1:.3g} s ({s['reason']}){pk}")
+    return lines
 
 
 def _comfort(probes: Probes) -> dict:
@@ -721,7 +901,8 @@ def _model_cautions(probes: Probes) -> list[str]:
     out += ["Planar model: one wheel per axle; a real axle with a wheel on each side is one wheel here,"
            " so give the pair's mass and inertia, and read torques per axle shaft."]
     if info.get("coupled"):
-        out.append("Axles are coupled: the torque figure is the total on the common shaft.")
+        out.append("Axles are coupled: one motor turns the whole train (a common shaft, chain or"
+                   " gears), and its torque is the train's total.")
     if info.get("corner_radius_source") == "default" and info.get("corner_radius_m"):
         frac = 100 * info["corner_radius_m"] / info["r_min_m"] if info.get("r_min_m") else float("nan")
         out.append(f"Wheel corners are rounded by {1e3 * info['corner_radius_m']:.3g} mm ({frac:.0f} % of"

@@ -9,7 +9,7 @@ from __future__ import annotations
 
 import numpy as np
 
-__all__ = ["axle_offsets_m"]
+__all__ = ["axle_offsets_m", "drive_motors", "motor_name"]
 
 
 def axle_offsets_m(axles: int, wheelbase_m: float) -> np.ndarray:
@@ -31,3 +31,58 @@ def axle_offsets_m(axles: int, wheelbase_m: float) -> np.ndarray:
     if n == 1:
         return np.zeros(1)
     return (np.arange(n) - 0.5 * (n - 1)) * float(wheelbase_m)
+
+
+def motor_name(axles) -> str:
+    """Name of the motor that turns ``axles``: its shaft and the axles on it.
+
+    Parameters
+    ----------
+    axles : sequence of int
+        The axles the motor turns (several on a coupled train).
+
+    Returns
+    -------
+    str
+        ``"axle 0 shaft"`` for one axle, ``"coupled train, axles 0+1"`` for several.
+
+    Examples
+    --------
+    >>> motor_name((1,)), motor_name((0, 1))
+    ('axle 1 shaft', 'coupled train, axles 0+1')
+    """
+    ax = [int(a) for a in axles]
+    if len(ax) == 1:
+        return f"axle {ax[0]} shaft"
+    return "coupled train, axles " + "+".join(str(a) for a in ax)
+
+
+def drive_motors(axles: int, coupled: bool, driven_axles) -> tuple[tuple[int, ...], ...]:
+    """The motors of a vehicle, each as the axles it turns.
+
+    Motors sit on shafts: each uncoupled driven axle has its own motor; a coupled train (one
+    chain or gear train turning every axle) has one motor, which turns all the axles.
+
+    Parameters
+    ----------
+    axles : int
+        Number of axles (>= 1).
+    coupled : bool
+        True when one chain or gear train turns every axle.
+    driven_axles : sequence of int
+        Indices of the driven axles (of an uncoupled vehicle).
+
+    Returns
+    -------
+    tuple of tuple of int
+        One entry per motor: the axles it turns, in increasing order.
+
+    Examples
+    --------
+    >>> drive_motors(2, False, (0, 1)), drive_motors(2, True, (0, 1))
+    (((0,), (1,)), ((0, 1),))
+    """
+    n = int(axles)
+    if coupled and n > 1:
+        return (tuple(range(n)),)
+    return tuple((int(i),) for i in driven_axles)

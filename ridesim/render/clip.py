@@ -394,7 +394,7 @@ def render_clip(pair, path: str | Path, *, frames_data: Mapping | None = None, d
         ``wheel_angle_rad`` (N,) or (N, axles) -- wheel angle clockwise as in
         ``pair.wheel_angle`` --, and optionally ``pitch_rad`` (N,) (chassis, anticlockwise =
         front up; default from the first and last axle), ``speed_m_s`` (N,) and
-        ``torque_Nm`` (N,) or (N, k) per driven wheel shaft. Resampled linearly at ``fps``.
+        ``torque_Nm`` (N,) or (N, k) per motor. Resampled linearly at ``fps``.
         Without it the ideal kinematics of the pair are drawn.
     duration_s : float
         Clip length [s] (with ``frames_data``, at most the recorded span).

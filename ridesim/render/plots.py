@@ -388,7 +388,8 @@ def _series_arrays(t_s, series: Mapping) -> list[tuple[str, np.ndarray, np.ndarr
 def plot_series(t_s, series: Mapping, path: str | Path, ylabel: str, title: str, *,
                 xlabel: str = "time [s]", kinds: Mapping[str, str] | None = None,
                 size_px: Sequence[int] = (1400, 750), svg: bool = False,
-                caption: str | None = None) -> tuple[Path, str]:
+                caption: str | None = None,
+                spans: Sequence[tuple[float, float, str]] = ()) -> tuple[Path, str]:
     """Several series on one axis: simulated (solid), analytic (dashed), limits (dotted).
 
     Parameters
@@ -414,6 +415,9 @@ def plot_series(t_s, series: Mapping, path: str | Path, ylabel: str, title: str,
         Also write an SVG beside the PNG.
     caption : str, optional
         Caption to return (default built from the title and labels).
+    spans : sequence of (float, float, str)
+        Stretches of the abscissa to shade, each with its legend label (e.g. time windows
+        left out of the figures).
 
     Returns
     -------
@@ -422,6 +426,7 @@ def plot_series(t_s, series: Mapping, path: str | Path, ylabel: str, title: str,
     """
     size = _size(size_px)
     data = _series_arrays(t_s, series)
+    spans = list(spans)
     kinds = dict(kinds or {})
     with style_context():
         fig = new_figure(size)
@@ -436,11 +441,16 @@ def plot_series(t_s, series: Mapping, path: str | Path, ylabel: str, title: str,
             if kind == "limit":
                 kw["color"] = COLOURS["cusp"]
             ax.plot(tt, yy, label=label, **kw)
+        seen = set()
+        for a, b, label in spans:
+            ax.axvspan(float(a), float(b), color="0.6", alpha=0.2, lw=0,
+                       label=None if label in seen else label)
+            seen.add(label)
         ax.set_xlabel(xlabel)
         ax.set_ylabel(ylabel)
         ax.set_title(title)
         ax.margins(x=0)
-        if len(data) > 1 or data[0][0]:
+        if len(data) > 1 or data[0][0] or spans:
             fig.legend(loc="outside upper right", ncols=min(4, len(data)))
         png = _save(fig, path, svg)
     if caption is None:

@@ -162,8 +162,9 @@ def write_report(sc, out_dir: str | Path, *, simulate: bool = True, clip_s: floa
     for path, caption in items:
         if Path(path).exists():
             parts.append(_img(Path(path), caption))
-    parts.append("<h2>Will it roll: figures (per driven wheel shaft)</h2>" + _table(c))
-    parts.append("<h2>Motor sizing (per driven wheel shaft)</h2>" + _table(figures["size_motor"]))
+    parts.append("<h2>Will it roll: figures (torque, speed and power per motor)</h2>" + _table(c))
+    parts.append("<h2>Motor sizing (per motor: one per uncoupled driven axle, one per coupled"
+                 " train)</h2>" + _table(figures["size_motor"]))
     if sim is not None:
         parts.append("<h2>Simulation</h2>" + _table(figures["simulate"]))
     cautions = []

@@ -77,13 +77,15 @@ def render_scenario(sc, out_dir: str | Path, *, svg: bool = False, simulate: boo
         xlabel="axle position on the track [mm]", svg=svg,
         caption=f"Friction demand over one revolution: peak {fr.peak:.3f} at x = {fr.at_x_m:.3f} m,"
                 f" surface {sc.surface.friction:g}."))
+    from ridesim.model.vehicle import motor_name
+
     tq = {}
-    for i in steady.driven:
-        tq[f"analytic: axle {i}"] = (steady.t_s, steady.torque_Nm[i])
+    for k, axles in enumerate(steady.motors):
+        tq[f"analytic: {motor_name(axles)}"] = (steady.t_s, steady.motor_torque_Nm[k])
     items.append(plot_series(
-        None, tq, out / "torque_analytic.png", "shaft torque [N·m]",
-        f"Shaft torque per driven wheel at a steady {v:.3g} m/s (analytic)", svg=svg,
-        caption=f"Analytic shaft torque per driven wheel over one revolution at {v:.3g} m/s:"
+        None, tq, out / "torque_analytic.png", "motor torque [N·m]",
+        f"Torque per motor at a steady {v:.3g} m/s (analytic)", svg=svg,
+        caption=f"Analytic torque per motor over one revolution at a steady {v:.3g} m/s (cruise):"
                 f" peak {steady.torque_peak_Nm:.4g} N·m, r.m.s. {steady.torque_rms_Nm:.4g} N·m."))
     frames = None
     if simulate:
@@ -109,11 +111,12 @@ def _sim_plots(sc, steady, out: Path, svg: bool, res, pair, mp):
         res = simulate(sc)
     pr = res.probes
     t = pr.time_s
+    from ridesim.model.vehicle import motor_name
+
     items = []
     series = {}
     for j, axles in enumerate(pr.shaft_axles):
-        series[f"simulated: shaft {j} (axle {', '.join(str(a) for a in axles)})"] = (
-            t, pr.shaft_torque_Nm[:, j])
+        series[f"simulated: {motor_name(axles)}"] = (t, pr.shaft_torque_Nm[:, j])
     if steady.driven:
         # The analytic model along the simulated motion: its torque at the chassis's own
         # position, speed and commanded acceleration (T0 + v^2 T2 + a T1, see assess.analytic).
@@ -125,12 +128,21 @@ def _sim_plots(sc, steady, out: Path, svg: bool, res, pair, mp):
         x_ch = pr.axle_x_m.mean(axis=1)
         a_cmd = np.where(t < v_cmd / acc, acc, 0.0) if acc > 0 else np.zeros_like(t)
         tq_an, _ = model.along(x_ch, pr.speed_m_s, a_cmd)
-        series["analytic along the simulated motion"] = (t, tq_an[0])
+        for k, axles in enumerate(model.motors):
+            series[f"analytic: {motor_name(axles)}"] = (
+                t, tq_an[k])
+    d_tq = res.to_dict()["torque"]
+    spans = [(s["window_s"][0], s["window_s"][1], "left out of the figures")
+             for s in d_tq.get("skipped") or []]
+    phases = "; ".join(f"{k} {p['peak_Nm']:.4g} N·m" for k, p in (d_tq.get("by_phase") or {}).items()
+                       if p.get("peak_Nm") is not None)
     items.append(plot_series(
-        None, series, out / "torque.png", "shaft torque [N·m]",
-        "Shaft torque: simulation against the analytic model", svg=svg,
-        caption=f"Simulated shaft torque (10 ms average peak {res.to_dict()['torque']['peak_Nm']:.4g}"
-                f" N·m) against the analytic steady-speed torque."))
+        None, series, out / "torque.png", "motor torque [N·m]",
+        "Torque per motor: simulation against the analytic model", svg=svg, spans=spans,
+        caption=f"Simulated torque per motor (raw steps) against the analytic model (dashed) along"
+                f" the same motion; 10 ms average peaks by phase: {phases}. Shaded: windows left"
+                " out of the figures (run.settle_s at the start, the drive settling after its"
+                " ramp)."))
     heights = {f"axle {i}": (t, 1000 * pr.axle_y_m[:, i]) for i in range(pr.axle_y_m.shape[1])}
     items.append(plot_series(
         None, heights, out / "bounce.png", "axle height [mm]",
