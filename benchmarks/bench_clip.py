@@ -25,11 +25,11 @@ import numpy as np
 
 sys.path.insert(0, str(Path(__file__).resolve().parents[1]))
 
-from ridesim.io.build import solve_scenario  # noqa: E402
-from ridesim.io.scenario import load_scenario  # noqa: E402
 from ridesim.model.vehicle import axle_offsets_m  # noqa: E402
 from ridesim.render.clip import render_clip  # noqa: E402
 from ridesim.render.plots import posed_outline  # noqa: E402
+from ridesim.scenario.build import solve_scenario  # noqa: E402
+from ridesim.scenario.load import load_scenario  # noqa: E402
 
 ROOT = Path(__file__).resolve().parents[1]
 W, H, FPS = 640, 360, 25

@@ -25,7 +25,7 @@ import time
 
 from pymunk._chipmunk_cffi import lib
 
-from ridesim.io.scenario import scenario_from_dict
+from ridesim.scenario.load import scenario_from_dict
 from ridesim.sim.run import PymunkEngine
 
 

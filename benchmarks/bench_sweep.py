@@ -14,10 +14,10 @@ import tempfile
 import time
 from pathlib import Path
 
-from ridesim.io.scenario import load_scenario
 from ridesim.jobs import run_job
-from ridesim.sweep.plan import load_sweep
-from ridesim.sweep.run import run_sweep
+from ridesim.jobs.sweep.plan import load_sweep
+from ridesim.jobs.sweep.run import run_sweep
+from ridesim.scenario.load import load_scenario
 
 ROOT = Path(__file__).resolve().parent.parent
 

@@ -10,11 +10,11 @@ import shutil
 import tempfile
 from pathlib import Path
 
-from ridesim.io.build import solve_scenario
-from ridesim.io.scenario import load_scenario
+from ridesim.jobs.render import render_scenario
 from ridesim.model.vehicle import axle_offsets_m
 from ridesim.render.clip import render_clip
-from ridesim.render.scenario import render_scenario
+from ridesim.scenario.build import solve_scenario
+from ridesim.scenario.load import load_scenario
 
 ROOT = Path(__file__).resolve().parent.parent
 MEDIA = ROOT / "media"

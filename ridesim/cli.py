@@ -4,7 +4,7 @@
 (whatever the verdict), 2 bad input (one line on stderr naming the field and
 the fix), 1 internal error. With ``--json`` standard output is exactly one
 JSON object. A value outside the range of real builds (the key table,
-``ridesim/io/schema.py``) is accepted with one ``warning:`` line each on
+``ridesim/scenario/schema.py``) is accepted with one ``warning:`` line each on
 stderr, and listed in the JSON output's ``warnings``.
 """
 
@@ -39,7 +39,7 @@ def _fmt_m(v: float) -> str:
 
 # ---------------------------------------------------------------------------- commands
 def _cmd_solve(sc, args) -> tuple[dict, str]:
-    from ridesim.io.build import solve_scenario
+    from ridesim.scenario.build import solve_scenario
 
     pair = solve_scenario(sc)
     out = pair.to_dict()
@@ -72,7 +72,7 @@ def _cmd_solve(sc, args) -> tuple[dict, str]:
 
 
 def _cmd_check(sc, args) -> tuple[dict, str]:
-    from ridesim.assess.verdict import check_scenario
+    from ridesim.jobs.check import check_scenario
 
     res = check_scenario(sc)
     return res.to_dict(), _text_of(res)
@@ -131,7 +131,7 @@ def _need_out(args, what: str) -> Path:
 
 
 def _cmd_render(sc, args) -> tuple[dict, str]:
-    from ridesim.render.scenario import render_scenario
+    from ridesim.jobs.render import render_scenario
 
     out = _need_out(args, "render")
     progress = None
@@ -156,8 +156,8 @@ def _cmd_render(sc, args) -> tuple[dict, str]:
 
 
 def _cmd_export(sc, args) -> tuple[dict, str]:
-    from ridesim.io.build import solve_scenario
-    from ridesim.io.drawings import export_drawings
+    from ridesim.export.drawings import export_drawings
+    from ridesim.scenario.build import solve_scenario
 
     out = _need_out(args, "export")
     pair = solve_scenario(sc)
@@ -203,9 +203,9 @@ def _text_of(res) -> str:
 
 
 def _cmd_sweep(args) -> int:
-    from ridesim.sweep.plan import load_sweep
-    from ridesim.sweep.run import run_sweep
-    from ridesim.sweep.summary import best_cases, plot_metric, read_table
+    from ridesim.jobs.sweep.plan import load_sweep
+    from ridesim.jobs.sweep.run import run_sweep
+    from ridesim.jobs.sweep.summary import best_cases, plot_metric, read_table
 
     plan = load_sweep(args.scenario)
     warnings = _sweep_warnings(plan)
@@ -251,7 +251,7 @@ def _cmd_sweep(args) -> int:
 
 def _sweep_warnings(plan) -> list[str]:
     """Plausibility warnings of a sweep: the base's unvaried keys, then one line per varied key."""
-    from ridesim.io.schema import KEYS, value_warnings
+    from ridesim.scenario.schema import KEYS, value_warnings
 
     lines: list[str] = []
     for k in KEYS:
@@ -295,7 +295,7 @@ def _available() -> dict[str, tuple[Callable, str]]:
     """Commands whose layer is installed (the CLI lists only what works)."""
     import importlib.util
 
-    need = {"check": "ridesim.assess.verdict", "simulate": "ridesim.metrics.ride"}
+    need = {"check": "ridesim.jobs.check", "simulate": "ridesim.metrics.ride"}
     out = {}
     for name, entry in _COMMANDS.items():
         mod = need.get(name)
@@ -369,8 +369,8 @@ def main(argv: list[str] | None = None) -> int:
     except SystemExit as exc:  # --help / --version
         return int(exc.code or 0)
     try:
-        from ridesim.io.results import json_ready, write_json_atomic
-        from ridesim.io.scenario import load_scenario
+        from ridesim.export.results import json_ready, write_json_atomic
+        from ridesim.scenario.load import load_scenario
 
         if args.out:
             _check_out(args.out)

@@ -16,8 +16,8 @@ from scipy.integrate import quad
 
 import ridesim as rs
 from ridesim.assess.analytic import analyze_cycle
-from ridesim.io.scenario import SurfaceSpec, VehicleSpec
 from ridesim.model.wheel import MassProperties
+from ridesim.scenario.load import SurfaceSpec, VehicleSpec
 
 G = 9.80665
 SMOOTH = SurfaceSpec(friction=1.0, rolling_resistance=0.0)
@@ -270,8 +270,8 @@ def test_constant_shaft_speed_torque_on_the_hexagon_closed_form():
     the limit, so the peak is checked to 1e-6.
     """
     from ridesim.assess.analytic import shaft_speed_cycle
-    from ridesim.io.build import solve_scenario, wheel_mass
-    from ridesim.io.scenario import scenario_from_dict
+    from ridesim.scenario.build import solve_scenario, wheel_mass
+    from ridesim.scenario.load import scenario_from_dict
 
     ap, n, om = 0.12, 6, 3.0
     sc = scenario_from_dict({

@@ -7,7 +7,7 @@ import pytest
 
 import ridesim as rs
 from ridesim.assess.phasing import cart_phasing, resting_height
-from ridesim.io.scenario import VehicleSpec
+from ridesim.scenario.load import VehicleSpec
 
 
 def test_ideal_pose_rests_at_axle_height_zero():
@@ -83,8 +83,8 @@ def test_mounting_error_costs_bounce_like_the_closed_form():
 
 
 def test_scenario_mounting_error_reaches_the_verdict():
-    from ridesim.assess.verdict import check_scenario
-    from ridesim.io.scenario import load_scenario
+    from ridesim.jobs.check import check_scenario
+    from ridesim.scenario.load import load_scenario
 
     sc = load_scenario("scenarios/hexagon_trolley.toml").replace_many(
         {"vehicle.coupled": True, "vehicle.phase_offsets_rad": [0.0, 0.02]})

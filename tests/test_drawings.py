@@ -23,7 +23,13 @@ import numpy as np
 import pytest
 
 import ridesim as rs
-from ridesim.io.drawings import CHORD_TOL_M, export_drawings, sample_curve, track_sections, wheel_outline_mm
+from ridesim.export.drawings import (
+    CHORD_TOL_M,
+    export_drawings,
+    sample_curve,
+    track_sections,
+    wheel_outline_mm,
+)
 
 SVG = "{http://www.w3.org/2000/svg}"
 TOL_MM = 0.01  # the brief: coordinates within 0.01 mm; the files carry 1e-4 mm digits
@@ -142,8 +148,8 @@ def test_wheel_cut_file_reads_back_as_the_same_wheel(hexagon_files, tmp_path):
     """The wheel CSV (mm, header x_mm,y_mm) loads as an outline wheel in metres and rolls on the
     same track: n arches of length 2 a asinh(tan(pi/n)) a revolution, from depth a to the
     circumradius a / cos(pi/n) (Hall & Wagon 1992)."""
-    from ridesim.io.build import solve_scenario
-    from ridesim.io.scenario import scenario_from_dict
+    from ridesim.scenario.build import solve_scenario
+    from ridesim.scenario.load import scenario_from_dict
 
     pair, out, files = hexagon_files
     csv_path = next(f for f in files if str(f).endswith("_wheel.csv"))

@@ -21,8 +21,8 @@ import math
 import numpy as np
 import pytest
 
-from ridesim.io.scenario import scenario_from_dict
 from ridesim.metrics.motor import duty_profile, size_motor
+from ridesim.scenario.load import scenario_from_dict
 
 G = 9.80665
 R, BODY, AXLES, CRR = 0.1, 12.0, 2, 0.010
@@ -145,7 +145,7 @@ def test_square_wheel_cruise_torque_matches_analytic_peak():
         "duty": {"cruise_s": 20.0},
     })
     res = size_motor(sc)
-    from ridesim.io.build import solve_scenario, wheel_mass
+    from ridesim.scenario.build import solve_scenario, wheel_mass
 
     inertia = wheel_mass(sc, solve_scenario(sc).wheel).inertia_kg_m2
     t_a = v / 0.01
@@ -201,7 +201,7 @@ def circle_newton():
 
 @pytest.fixture(scope="module")
 def circle_runs():
-    from ridesim.assess.verdict import check_scenario
+    from ridesim.jobs.check import check_scenario
     from ridesim.metrics.ride import simulate
 
     out = {}
@@ -284,7 +284,7 @@ def test_circle_cart_phase_windows_line_up(circle_runs):
 
 def test_speeds_are_si_in_json_and_rad_s_with_rpm_in_text():
     sc = circle_cart(False)
-    from ridesim.assess.verdict import check_scenario
+    from ridesim.jobs.check import check_scenario
 
     res = size_motor(sc.replace("motor.gear_ratios", [10.0]))
     d = res.to_dict()
@@ -300,9 +300,9 @@ def test_speeds_are_si_in_json_and_rad_s_with_rpm_in_text():
 def trolley_runs():
     from pathlib import Path
 
-    from ridesim.assess.verdict import check_scenario
-    from ridesim.io.scenario import load_scenario
+    from ridesim.jobs.check import check_scenario
     from ridesim.metrics.ride import simulate
+    from ridesim.scenario.load import load_scenario
 
     sc = load_scenario(Path(__file__).resolve().parents[1] / "scenarios" / "hexagon_trolley.toml")
     return sc, check_scenario(sc).to_dict(), size_motor(sc).to_dict(), simulate(sc).to_dict()

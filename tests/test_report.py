@@ -8,8 +8,8 @@ from pathlib import Path
 
 import pytest
 
-from ridesim.io.scenario import load_scenario
 from ridesim.render.report import flatten, write_report
+from ridesim.scenario.load import load_scenario
 
 ROOT = Path(__file__).resolve().parent.parent
 

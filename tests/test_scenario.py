@@ -1,4 +1,4 @@
-"""Tests of the scenario schema and loader (ridesim.io.scenario)."""
+"""Tests of the scenario schema and loader (ridesim.scenario.load)."""
 
 import copy
 import math
@@ -10,7 +10,7 @@ from hypothesis import given
 from hypothesis import strategies as st
 
 from ridesim.errors import InputError, ScenarioError
-from ridesim.io.scenario import (
+from ridesim.scenario.load import (
     DEFAULT_WHEEL_DENSITY_KG_M3,
     DEFAULT_WHEEL_THICKNESS_M,
     DriveSpec,

@@ -1,4 +1,4 @@
-"""The key table (ridesim.io.schema): one source for defaults, bounds, units and the reference."""
+"""The key table (ridesim.scenario.schema): one source for defaults, bounds, units and the reference."""
 
 import copy
 import dataclasses
@@ -10,9 +10,9 @@ import pytest
 
 from ridesim.cli import main
 from ridesim.errors import ScenarioError
-from ridesim.io import scenario as scenario_module
-from ridesim.io.scenario import load_scenario, scenario_from_dict
-from ridesim.io.schema import KEY, KEYS, REQUIRED, SECTIONS, markdown_reference
+from ridesim.scenario import load as scenario_module
+from ridesim.scenario.load import load_scenario, scenario_from_dict
+from ridesim.scenario.schema import KEY, KEYS, REQUIRED, SECTIONS, markdown_reference
 
 ROOT = Path(__file__).resolve().parent.parent
 SCENARIOS = ROOT / "scenarios"
@@ -38,7 +38,7 @@ BASES = {
 
 
 def test_committed_reference_is_the_generated_one():
-    # docs/scenario-keys.md is written by `python3 -m ridesim.io.schema --markdown`; if this
+    # docs/scenario-keys.md is written by `python3 -m ridesim.scenario.schema --markdown`; if this
     # fails, regenerate it rather than editing it.
     committed = (ROOT / "docs" / "scenario-keys.md").read_text(encoding="utf-8")
     assert committed == markdown_reference()
@@ -52,7 +52,7 @@ def test_every_spec_field_has_one_table_row_and_takes_its_default(section):
     rows = {k.name for k in KEYS if k.section == section}
     assert names == rows, (
         f"{section}: fields without a row {sorted(names - rows)}, rows without a field "
-        f"{sorted(rows - names)}; each key is one Key row in ridesim/io/schema.py")
+        f"{sorted(rows - names)}; each key is one Key row in ridesim/scenario/schema.py")
     for f in dataclasses.fields(spec):
         row = KEY[f"{section}.{f.name}"]
         if f.default is dataclasses.MISSING:  # shape: the only field without a default

@@ -12,9 +12,9 @@ import numpy as np
 import pytest
 
 from ridesim.assess.analytic import analyze_cycle
-from ridesim.io.build import solve_scenario, wheel_mass
-from ridesim.io.scenario import load_scenario
 from ridesim.metrics.ride import SimResult, moving_average, simulate
+from ridesim.scenario.build import solve_scenario, wheel_mass
+from ridesim.scenario.load import load_scenario
 from ridesim.sim.ideal import IdealEngine
 
 

@@ -14,8 +14,8 @@ import math
 import numpy as np
 import pytest
 
-from ridesim.io.scenario import DriveSpec, scenario_from_dict
 from ridesim.metrics import ride, simulate
+from ridesim.scenario.load import DriveSpec, scenario_from_dict
 from ridesim.sim.run import PymunkEngine
 from ridesim.sim.world import STANDARD_GRAVITY_M_S2 as G
 

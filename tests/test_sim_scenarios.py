@@ -17,9 +17,9 @@ import pytest
 
 import ridesim as rs
 from ridesim.errors import SimulationError
-from ridesim.io.build import solve_scenario, wheel_mass
-from ridesim.io.scenario import load_scenario, scenario_from_dict
 from ridesim.metrics import ride, simulate
+from ridesim.scenario.build import solve_scenario, wheel_mass
+from ridesim.scenario.load import load_scenario, scenario_from_dict
 from ridesim.sim.run import PymunkEngine
 from ridesim.sim.world import STANDARD_GRAVITY_M_S2 as G
 

@@ -28,8 +28,6 @@ import scipy.stats
 
 import ridesim as rs
 from ridesim.errors import GeometryError, InputError
-from ridesim.io.build import solve_scenario, wheel_mass
-from ridesim.io.scenario import scenario_from_dict
 from ridesim.metrics import ride, simulate
 from ridesim.model.tolerance import (
     AsBuilt,
@@ -38,6 +36,8 @@ from ridesim.model.tolerance import (
     joint_positions_m,
     track_height_error_m,
 )
+from ridesim.scenario.build import solve_scenario, wheel_mass
+from ridesim.scenario.load import scenario_from_dict
 from ridesim.sim.run import PymunkEngine
 from ridesim.sim.world import JOINT_RAMP_HALF_M, build_world
 
@@ -457,9 +457,9 @@ def test_coupled_mounting_error_bounce_matches_the_quasi_static_estimate():
     cart's bounce.
     """
     from ridesim.assess.phasing import cart_phasing
-    from ridesim.io.build import solve_scenario
-    from ridesim.io.scenario import load_scenario
     from ridesim.metrics.ride import simulate
+    from ridesim.scenario.build import solve_scenario
+    from ridesim.scenario.load import load_scenario
 
     sc = load_scenario("scenarios/hexagon_trolley.toml").replace_many(
         {"vehicle.coupled": True, "run.duration_s": 3.0})

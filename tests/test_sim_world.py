@@ -14,8 +14,8 @@ import pymunk
 import pytest
 
 import ridesim as rs
-from ridesim.io.build import solve_scenario, wheel_mass
-from ridesim.io.scenario import load_scenario, scenario_from_dict
+from ridesim.scenario.build import solve_scenario, wheel_mass
+from ridesim.scenario.load import load_scenario, scenario_from_dict
 from ridesim.sim.world import (
     WorldOptions,
     build_world,

@@ -19,8 +19,8 @@ from pathlib import Path
 import pytest
 
 from ridesim.errors import ScenarioError
-from ridesim.sweep.plan import load_sweep
-from ridesim.sweep.run import read_journal, run_sweep
+from ridesim.jobs.sweep.plan import load_sweep
+from ridesim.jobs.sweep.run import read_journal, run_sweep
 
 ROOT = Path(__file__).resolve().parent.parent
 BASE = ROOT / "scenarios" / "hexagon_trolley.toml"
@@ -154,7 +154,7 @@ def test_sigkill_then_resume_loses_and_repeats_nothing(tmp_path):
 def test_rows_of_another_ridesim_version_are_refused(tmp_path, monkeypatch):
     # A case's key includes the ridesim version: after an upgrade, a folder of old rows is
     # refused with one line rather than silently mixed into the new table.
-    import ridesim.sweep.plan as plan_mod
+    import ridesim.jobs.sweep.plan as plan_mod
 
     sweep = write_sweep(tmp_path, GRID)
     out = run_sweep(load_sweep(sweep), tmp_path / "out", workers=1)

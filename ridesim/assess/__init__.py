@@ -7,7 +7,9 @@
 * :mod:`ridesim.assess.analytic`: per-wheel loads; torque, shaft speed and power per motor
   along a revolution and along a duty cycle, by phase; speed ripple of other drives,
   lift-off speed.
-* :mod:`ridesim.assess.verdict`: one verdict for a scenario (``check_scenario``).
+* :mod:`ridesim.assess.phasing`: how the axles of a cart share the track (wheelbase, phase).
+
+The verdict for a whole scenario is a job: :mod:`ridesim.jobs.check`.
 """
 
 from ridesim.assess.analytic import AnalyticResult, analyze_cycle
@@ -27,21 +29,17 @@ from ridesim.assess.friction import (
     cycle_nodes,
     friction_demand,
 )
-from ridesim.assess.verdict import SAFETY_CAUTIONS, CheckResult, check_scenario
 
 __all__ = [
     "AnalyticResult",
     "CONTACT_EXCLUSION_RAD",
-    "CheckResult",
     "ClearanceResult",
     "ContactLoads",
     "CuspSeat",
     "FrictionResult",
     "G_STANDARD_M_S2",
     "INTERFERENCE_TOL_REL",
-    "SAFETY_CAUTIONS",
     "analyze_cycle",
-    "check_scenario",
     "clearance",
     "contact_loads",
     "cusp_seating",

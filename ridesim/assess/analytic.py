@@ -62,9 +62,9 @@ from scipy.optimize import brentq
 
 from ridesim.assess.friction import G_STANDARD_M_S2, ContactLoads, contact_loads, cycle_nodes
 from ridesim.errors import InputError
-from ridesim.io.scenario import DriveSpec, SurfaceSpec, VehicleSpec
 from ridesim.model.vehicle import axle_offsets_m, drive_motors, motor_name
 from ridesim.model.wheel import MassProperties
+from ridesim.scenario.load import DriveSpec, SurfaceSpec, VehicleSpec
 from ridesim.solve.pair import RollingPair
 
 __all__ = ["AnalyticResult", "analyze_cycle", "TorqueModel", "shaft_speed_cycle", "duty_profile",

@@ -243,7 +243,7 @@ def size_motor(sc, *, dt_s: float | None = None) -> MotorSizing:
     MotorSizing
     """
     from ridesim.assess.analytic import TorqueModel, duty_run
-    from ridesim.io.build import solve_scenario, wheel_mass
+    from ridesim.scenario.build import solve_scenario, wheel_mass
 
     pair = solve_scenario(sc)
     mp = wheel_mass(sc, pair.wheel)

@@ -787,7 +787,7 @@ class SimResult:
         """
         import io
 
-        from ridesim.io.results import write_text_atomic
+        from ridesim.export.results import write_text_atomic
 
         cols = self.probes.columns()
         names = list(cols)
@@ -940,7 +940,7 @@ def simulate(scenario, *, progress: Callable[[float], None] | None = None, pair=
     Parameters
     ----------
     scenario : Scenario
-        Validated scenario (``ridesim.io.scenario.load_scenario``).
+        Validated scenario (``ridesim.scenario.load.load_scenario``).
     progress : callable, optional
         Called with the fraction done (0 to 1) as the run advances.
     pair : RollingPair, optional

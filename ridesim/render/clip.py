@@ -20,7 +20,7 @@ from pathlib import Path
 import numpy as np
 
 from ridesim.errors import InputError
-from ridesim.io.results import write_bytes_atomic
+from ridesim.export.results import write_bytes_atomic
 
 __all__ = ["render_clip", "PALETTE"]
 

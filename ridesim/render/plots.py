@@ -16,7 +16,7 @@ from pathlib import Path
 import numpy as np
 
 from ridesim.errors import InputError
-from ridesim.io.results import write_bytes_atomic, write_text_atomic
+from ridesim.export.results import write_bytes_atomic, write_text_atomic
 from ridesim.render.style import COLOURS, SERIES_COLOURS, new_figure, series_style, style_context
 
 __all__ = [

@@ -124,10 +124,10 @@ def write_report(sc, out_dir: str | Path, *, simulate: bool = True, clip_s: floa
     (Path, dict)
         The page and the figures it shows (``check``, ``size_motor``, ``simulate``).
     """
-    from ridesim.assess.verdict import check_scenario
-    from ridesim.io.results import json_ready, write_text_atomic
+    from ridesim.export.results import json_ready, write_text_atomic
+    from ridesim.jobs.check import check_scenario
+    from ridesim.jobs.render import render_scenario
     from ridesim.metrics.motor import size_motor
-    from ridesim.render.scenario import render_scenario
 
     out = Path(out_dir)
     check = check_scenario(sc)

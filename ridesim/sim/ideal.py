@@ -44,8 +44,8 @@ class IdealEngine(Engine):
         IdealEngine
         """
         from ridesim.assess.analytic import TorqueModel, analyze_cycle
-        from ridesim.io.build import solve_scenario, wheel_mass
         from ridesim.model.vehicle import axle_offsets_m
+        from ridesim.scenario.build import solve_scenario, wheel_mass
 
         sc = scenario
         pair = solve_scenario(sc) if pair is None else pair

@@ -187,7 +187,7 @@ class PymunkEngine(Engine):
         -------
         PymunkEngine
         """
-        from ridesim.io.build import solve_scenario, wheel_mass
+        from ridesim.scenario.build import solve_scenario, wheel_mass
 
         if pair is None:
             pair = solve_scenario(scenario)

@@ -1058,9 +1058,9 @@ def build_world(scenario, pair, mass, options: WorldOptions | None = None) -> Wo
     scenario : Scenario
         Validated scenario (vehicle, drive, surface and run sections are used).
     pair : RollingPair
-        The solved pair (``ridesim.io.build.solve_scenario``).
+        The solved pair (``ridesim.scenario.build.solve_scenario``).
     mass : MassProperties
-        Mass properties of one nominal wheel (``ridesim.io.build.wheel_mass``).
+        Mass properties of one nominal wheel (``ridesim.scenario.build.wheel_mass``).
     options : WorldOptions, optional
         Settings not in the scenario (grade, tolerances, corner radius override).
 

@@ -1,6 +1,6 @@
 """Design sweeps and tolerance studies: a process pool by default, a Dask cluster on request."""
 
-from ridesim.sweep.plan import Case, SweepPlan, load_sweep
-from ridesim.sweep.run import run_sweep
+from ridesim.jobs.sweep.plan import Case, SweepPlan, load_sweep
+from ridesim.jobs.sweep.run import run_sweep
 
 __all__ = ["Case", "SweepPlan", "load_sweep", "run_sweep"]

@@ -92,7 +92,7 @@ def plot_metric(rows: list[dict[str, str]], metric: str, params: list[str], path
     matplotlib.use("Agg")
     import matplotlib.pyplot as plt
 
-    from ridesim.io.results import write_bytes_atomic
+    from ridesim.export.results import write_bytes_atomic
 
     for p in [metric, *params]:
         if rows and p not in rows[0]:

@@ -51,10 +51,10 @@ def render_scenario(sc, out_dir: str | Path, *, svg: bool = False, simulate: boo
     """
     from ridesim.assess.analytic import analyze_cycle
     from ridesim.assess.friction import friction_demand
-    from ridesim.io.build import solve_scenario, wheel_mass
     from ridesim.model.vehicle import axle_offsets_m
     from ridesim.render.clip import render_clip
     from ridesim.render.plots import plot_series, render_solver_plots, write_index
+    from ridesim.scenario.build import solve_scenario, wheel_mass
 
     out = Path(out_dir)
     out.mkdir(parents=True, exist_ok=True)

@@ -35,9 +35,9 @@ from ridesim.assess.analytic import (
 from ridesim.assess.clearance import ClearanceResult, CuspSeat, clearance, cusp_seating
 from ridesim.assess.phasing import cart_phasing
 from ridesim.errors import InputError
-from ridesim.io.build import solve_scenario, wheel_mass
-from ridesim.io.scenario import Scenario
 from ridesim.safety import SAFETY_CAUTIONS, caution_lines, with_safety
+from ridesim.scenario.build import solve_scenario, wheel_mass
+from ridesim.scenario.load import Scenario
 
 __all__ = ["CheckResult", "check_scenario", "SAFETY_CAUTIONS", "CHECK_CAUTIONS"]
 
@@ -285,7 +285,7 @@ def check_scenario(sc: Scenario) -> CheckResult:
     Parameters
     ----------
     sc : Scenario
-        A validated scenario (see :func:`ridesim.io.scenario.load_scenario`).
+        A validated scenario (see :func:`ridesim.scenario.load.load_scenario`).
 
     Returns
     -------
@@ -293,7 +293,7 @@ def check_scenario(sc: Scenario) -> CheckResult:
 
     Examples
     --------
-    >>> from ridesim.io.scenario import scenario_from_dict
+    >>> from ridesim.scenario.load import scenario_from_dict
     >>> sc = scenario_from_dict({"wheel": {"shape": "polygon", "sides": 3, "apothem_m": 0.2}})
     >>> check_scenario(sc).rollable
     False

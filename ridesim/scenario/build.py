@@ -1,6 +1,6 @@
 """From a validated scenario to model objects and a solved pair.
 
-The scenario records (:mod:`ridesim.io.scenario`) hold plain validated values;
+The scenario records (:mod:`ridesim.scenario.load`) hold plain validated values;
 this module turns them into :class:`~ridesim.model.wheel.Wheel`,
 :class:`~ridesim.model.track.Track` and a solved
 :class:`~ridesim.solve.pair.RollingPair`, and resolves the wheel's mass
@@ -16,9 +16,9 @@ from pathlib import Path
 import numpy as np
 
 from ridesim.errors import RidesimError, ScenarioError
-from ridesim.io.scenario import Scenario, TrackSpec, WheelSpec
 from ridesim.model.track import Track
 from ridesim.model.wheel import MassProperties, Wheel
+from ridesim.scenario.load import Scenario, TrackSpec, WheelSpec
 from ridesim.solve.forward import track_for
 from ridesim.solve.inverse import wheel_for
 from ridesim.solve.pair import RollingPair

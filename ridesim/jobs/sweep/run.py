@@ -23,8 +23,8 @@ from pathlib import Path
 from typing import Any
 
 from ridesim.errors import RidesimError, ScenarioError
-from ridesim.io.results import write_bytes_atomic, write_text_atomic
-from ridesim.sweep.plan import SweepPlan
+from ridesim.export.results import write_bytes_atomic, write_text_atomic
+from ridesim.jobs.sweep.plan import SweepPlan
 
 __all__ = ["run_sweep", "run_case", "SweepOutcome", "read_journal"]
 
@@ -89,8 +89,8 @@ def run_case(payload: dict) -> dict:
         ``case``, ``key``, ``metrics`` (flat dict) and ``error`` (None or one line), and
         ``elapsed_s`` (wall time, for the log only).
     """
-    from ridesim.io.scenario import scenario_from_dict
     from ridesim.jobs import run_job
+    from ridesim.scenario.load import scenario_from_dict
 
     t0 = time.perf_counter()
     row: dict[str, Any] = {"case": payload["index"], "key": payload["key"], "metrics": {},
@@ -192,7 +192,7 @@ def run_sweep(
     Parameters
     ----------
     plan : SweepPlan
-        From :func:`ridesim.sweep.plan.load_sweep`.
+        From :func:`ridesim.jobs.sweep.plan.load_sweep`.
     out_dir : str or Path
         Output folder (created); holds ``cases.jsonl``, ``results.csv``, ``sweep.log``.
     workers : int, optional

@@ -34,7 +34,7 @@ import numpy as np
 
 from ridesim._version import __version__
 from ridesim.errors import ScenarioError
-from ridesim.io.scenario import Scenario, load_scenario, scenario_keys
+from ridesim.scenario.load import Scenario, load_scenario, scenario_keys
 
 __all__ = ["SweepPlan", "Case", "load_sweep", "RUNS"]
 

@@ -32,7 +32,7 @@ from xml.sax.saxutils import escape
 import numpy as np
 
 from ridesim.errors import InputError
-from ridesim.io.results import write_text_atomic
+from ridesim.export.results import write_text_atomic
 from ridesim.model.checks import positive as _positive
 
 __all__ = [

@@ -8,19 +8,19 @@ from __future__ import annotations
 
 from collections.abc import Callable
 
-from ridesim.io.scenario import Scenario
+from ridesim.scenario.load import Scenario
 
 __all__ = ["JOBS", "run_job"]
 
 
 def _solve(sc: Scenario, progress=None) -> dict:
-    from ridesim.io.build import solve_scenario
+    from ridesim.scenario.build import solve_scenario
 
     return solve_scenario(sc).to_dict()
 
 
 def _check(sc: Scenario, progress=None) -> dict:
-    from ridesim.assess.verdict import check_scenario
+    from ridesim.jobs.check import check_scenario
 
     return check_scenario(sc).to_dict()
 
@@ -63,6 +63,6 @@ def run_job(name: str, sc: Scenario, progress=None) -> dict:
     dict
         The job's JSON-ready result.
     """
-    from ridesim.io.results import json_ready
+    from ridesim.export.results import json_ready
 
     return json_ready(JOBS[name](sc, progress=progress))

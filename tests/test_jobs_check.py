@@ -1,4 +1,4 @@
-"""Tests of the scenario verdict (ridesim.assess.verdict) on the demo scenarios and a triangle.
+"""Tests of the scenario verdict (ridesim.jobs.check) on the demo scenarios and a triangle.
 
 Sources: L. Hall & S. Wagon, "Roads and Wheels", Mathematics Magazine 65(5), 1992 (n-gon
 roads, the triangle's interference); the polar moment of a regular n-gon plate of
@@ -15,9 +15,9 @@ from pathlib import Path
 import numpy as np
 import pytest
 
-from ridesim.assess.verdict import SAFETY_CAUTIONS, CheckResult, check_scenario
 from ridesim.errors import InputError
-from ridesim.io.scenario import load_scenario, scenario_from_dict
+from ridesim.jobs.check import SAFETY_CAUTIONS, CheckResult, check_scenario
+from ridesim.scenario.load import load_scenario, scenario_from_dict
 
 SCENARIOS = Path(__file__).resolve().parent.parent / "scenarios"
 G = 9.80665

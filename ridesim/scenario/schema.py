@@ -1,9 +1,9 @@
 """The one table of scenario keys: type, default, bounds, plausible range, unit and meaning.
 
 Every key of a scenario's sections is one :class:`Key` row of :data:`KEYS`. From this table
-come the spec dataclasses' defaults and the loader's bound checks (``ridesim.io.scenario``),
+come the spec dataclasses' defaults and the loader's bound checks (``ridesim.scenario.load``),
 the plausibility warnings, and the Markdown key reference (``docs/scenario-keys.md``,
-written by ``python3 -m ridesim.io.schema --markdown``), so none of them can drift.
+written by ``python3 -m ridesim.scenario.schema --markdown``), so none of them can drift.
 
 Two kinds of range:
 
@@ -19,11 +19,11 @@ Adding a key
 ------------
 1. Add one ``Key(...)`` row below, in its section (name ending in its SI unit; the
    bounds, the plausible range and its source when one exists; a one-line doc).
-2. Add the field to the section's spec in ``ridesim/io/scenario.py`` with its default
+2. Add the field to the section's spec in ``ridesim/scenario/load.py`` with its default
    taken from here: ``name: float = default_of("section.name")``.
 3. Read it in the section's parser with ``t.get("name")`` (type, default and bounds come
    from the row).
-4. Regenerate the reference: ``python3 -m ridesim.io.schema --markdown >
+4. Regenerate the reference: ``python3 -m ridesim.scenario.schema --markdown >
    docs/scenario-keys.md``. ``tests/test_schema.py`` fails until the spec, the table and
    the reference agree.
 
@@ -518,7 +518,7 @@ def markdown_reference() -> str:
     lines = [
         "# Scenario keys",
         "",
-        "Generated from `ridesim/io/schema.py` by `python3 -m ridesim.io.schema --markdown`;"
+        "Generated from `ridesim/scenario/schema.py` by `python3 -m ridesim.scenario.schema --markdown`;"
         " do not edit by hand (a test compares this file with the table).",
         "",
         "Top-level keys: `name` (default: the file stem) and `description` (default: empty).",
@@ -549,7 +549,7 @@ def markdown_reference() -> str:
 
 
 def _main(argv: list[str] | None = None) -> int:
-    parser = argparse.ArgumentParser(prog="python3 -m ridesim.io.schema",
+    parser = argparse.ArgumentParser(prog="python3 -m ridesim.scenario.schema",
                                      description="Print the scenario key reference.")
     parser.add_argument("--markdown", action="store_true", help="print it as Markdown")
     args = parser.parse_args(argv)

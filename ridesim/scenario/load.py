@@ -10,7 +10,7 @@ Loading only validates data; it builds no model objects. Every problem raises
 :class:`ridesim.errors.ScenarioError` with a one-line message that starts with
 the dotted key path, names the offending value and says how to fix it, for
 example ``wheel.apothem_m must be > 0, got -0.3``. Types, defaults and bounds
-come from the one key table in :mod:`ridesim.io.schema`; a value that is valid
+come from the one key table in :mod:`ridesim.scenario.schema`; a value that is valid
 but outside the range of real builds is kept and reported in
 :attr:`Scenario.warnings`.
 
@@ -36,8 +36,8 @@ from pathlib import Path
 from typing import Any
 
 from ridesim.errors import ScenarioError
-from ridesim.io import schema as _schema
-from ridesim.io.schema import (
+from ridesim.scenario import schema as _schema
+from ridesim.scenario.schema import (
     DRIVE_MODES,
     KEY,
     MAX_TIMESTEP_S,
@@ -79,7 +79,7 @@ DEFAULT_WHEEL_DENSITY_KG_M3 = default_of("wheel.density_kg_m3")
 Point = tuple[float, float]
 
 _POLYGON_SIZES = ("apothem_m", "circumradius_m", "side_m", "vertices_m")
-# Which keys each shape uses, from the key table (ridesim/io/schema.py).
+# Which keys each shape uses, from the key table (ridesim/scenario/schema.py).
 _WHEEL_SHAPE_KEYS: dict[str, tuple[str, ...]] = {
     shape: section_keys("wheel", shape) for shape in WHEEL_SHAPES
 }
@@ -118,7 +118,7 @@ _MISSING: Any = object()
 # Specs
 # ----------------------------------------------------------------------------
 # Every field's default, bounds, plausible range and unit are one row of the key
-# table in ridesim/io/schema.py (KEYS): a new key is a row there, a field here
+# table in ridesim/scenario/schema.py (KEYS): a new key is a row there, a field here
 # with default_of("section.key"), and t.get("key") in the section's parser.
 
 
@@ -498,7 +498,7 @@ class Scenario:
 
         A wheel of apothem 120 m or a friction coefficient of 70 is accepted (it may be
         meant), but most likely a unit slip. The plausible ranges and their sources are in
-        the key table (``ridesim/io/schema.py``, ``docs/scenario-keys.md``). The command
+        the key table (``ridesim/scenario/schema.py``, ``docs/scenario-keys.md``). The command
         line prints these lines on stderr and adds them to its JSON output as
         ``warnings``; from Python, read them here (nothing is raised or emitted).
 

@@ -1,1 +1,0 @@
-"""ridesim.io layer."""
