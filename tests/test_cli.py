@@ -196,3 +196,33 @@ def test_every_sizing_or_grading_output_carries_the_safety_cautions_once(command
     assert len(cautions) > len(SAFETY_CAUTIONS)  # and the command's own model limits
     if command == "simulate":
         assert any("ISO 2631-1" in c for c in cautions)  # the comfort grade's own cautions
+
+
+def test_solve_lists_the_whole_period_wheelbases(tmp_path):
+    """A regular hexagon (apothem a) has period P = 2 a asinh(tan(pi/6)) and greatest radius
+    a / cos(pi/6) (Hall & Wagon 1992); solve lists k P from one wheel diameter to five."""
+    a = 0.12
+    P = 2 * a * math.asinh(math.tan(math.pi / 6))
+    r_max = a / math.cos(math.pi / 6)
+    r = run_cli("solve", str(SCENARIOS / "hexagon_trolley.toml"), "--json")
+    out = json.loads(r.stdout)
+    ks = [k for k in range(1, 100) if 2 * r_max <= k * P <= 10 * r_max]
+    assert out["whole_period_wheelbase_periods"] == ks
+    assert out["whole_period_wheelbases_m"] == pytest.approx([k * P for k in ks], rel=1e-12)
+    assert out["wheelbase_range_m"] == pytest.approx([2 * r_max, 10 * r_max], rel=1e-12)
+    r = run_cli("solve", str(SCENARIOS / "hexagon_trolley.toml"), "--wheelbase-range", "0.3",
+                "0.5")
+    assert r.returncode == 0, r.stderr
+    assert f"{3 * P:.4f} m (k = 3)" in r.stdout  # 0.3955 m, the trolley's own wheelbase
+    assert "k = 2" not in r.stdout and "k = 4" not in r.stdout  # 0.2637 m, 0.5273 m
+    r = run_cli("solve", str(SCENARIOS / "hexagon_trolley.toml"), "--wheelbase-range", "1", "0")
+    assert r.returncode == 2 and r.stderr.count("\n") == 1 and "--wheelbase-range" in r.stderr
+
+
+def test_wheelbase_in_periods_that_disagrees_with_the_length_is_refused(tmp_path):
+    sc = tmp_path / "both.toml"
+    sc.write_text((SCENARIOS / "hexagon_trolley.toml").read_text().replace(
+        "wheelbase_m = 0.3955004239205194", "wheelbase_m = 0.4\nwheelbase_periods = 3"))
+    r = run_cli("check", str(sc))
+    assert r.returncode == 2 and r.stderr.count("\n") == 1
+    assert "vehicle.wheelbase_periods" in r.stderr and "give only one" in r.stderr

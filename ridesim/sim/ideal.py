@@ -44,11 +44,12 @@ class IdealEngine(Engine):
         IdealEngine
         """
         from ridesim.assess.analytic import TorqueModel, analyze_cycle
-        from ridesim.io.build import solve_scenario, wheel_mass
+        from ridesim.io.build import resolve_wheelbase, solve_scenario, wheel_mass
         from ridesim.model.vehicle import axle_offsets_m
 
         sc = scenario
         pair = solve_scenario(sc) if pair is None else pair
+        sc = resolve_wheelbase(sc, pair)
         mp = wheel_mass(sc, pair.wheel)
         run, drv, veh = sc.run, sc.drive, sc.vehicle
         dt = float(run.timestep_s)
