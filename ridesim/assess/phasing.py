@@ -16,6 +16,11 @@ lowest axle height that keeps its whole outline on or above the track,
 those heights as a rigid beam with the least body height (a two-variable linear
 programme, solved over the pairs of supporting axles); a wheel below the beam has
 lifted off. This ignores the slip and dynamics that the simulation includes.
+
+A wheelbase is judged as a builder measures it: within ``vehicle.wheelbase_tolerance_m``
+of a whole number of track periods it is in phase; farther off, coupled wheels are out of
+phase only when the cart's bounce, pitch or skid (the slip one shaft angle forces) exceed
+those of a wheelbase off by the tolerance, so round wheels are in phase at any wheelbase.
 """
 
 from __future__ import annotations
