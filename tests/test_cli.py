@@ -226,3 +226,21 @@ def test_wheelbase_in_periods_that_disagrees_with_the_length_is_refused(tmp_path
     r = run_cli("check", str(sc))
     assert r.returncode == 2 and r.stderr.count("\n") == 1
     assert "vehicle.wheelbase_periods" in r.stderr and "give only one" in r.stderr
+
+
+def test_solve_lists_whole_period_wheelbases_for_rounded_corners_too(tmp_path, capsys):
+    """A square (apothem 0.25 m) with 10 mm fitted corners: period 0.4406255 m from the
+    closed form in test_assess_verdict (Hall & Wagon 1992, DLMF 19.7.4); two periods print as
+    0.8813 m (to 0.1 mm), the wheelbase a builder can measure."""
+    from test_assess_verdict import rounded_polygon_period
+
+    P = rounded_polygon_period(4, 0.25, 0.01)
+    sc = tmp_path / "rounded.toml"
+    sc.write_text('[wheel]\nshape = "polygon"\nsides = 4\napothem_m = 0.25\ncorner_radius_m = 0.01\n'
+                  "fit_track_to_corners = true\n")
+    assert main(["solve", str(sc), "--wheelbase-range", "0.5", "1.5", "--out", str(tmp_path)]) == 0
+    text = capsys.readouterr().out
+    assert f"{2 * P:.4f} m (k = 2)" in text and "0.8813 m (k = 2)" in text
+    saved = json.loads((tmp_path / "solve.json").read_text())
+    assert saved["whole_period_wheelbase_periods"] == [2, 3]
+    assert saved["whole_period_wheelbases_m"] == pytest.approx([2 * P, 3 * P], rel=1e-12)

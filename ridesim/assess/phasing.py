@@ -341,8 +341,11 @@ def _exceeds(cost: dict, limit: dict, size: float) -> bool:
 
 
 def _tolerance_cost(pair: RollingPair, vehicle, wheelbase_m: float, tol: float,
-                    samples: int) -> dict:
-    """Bounce, pitch and skid of the worse of ``wheelbase_m`` plus and minus ``tol``."""
+                    samples: int, phase_offsets_rad) -> dict:
+    """Bounce, pitch and skid of the worse of ``wheelbase_m`` plus and minus ``tol``.
+
+    The same mounting errors act, so that only the wheelbase differs.
+    """
     from dataclasses import replace
 
     worst = {"bounce_m": 0.0, "pitch_range_rad": 0.0, "skid_m": 0.0}
@@ -351,7 +354,8 @@ def _tolerance_cost(pair: RollingPair, vehicle, wheelbase_m: float, tol: float,
             continue
         if vehicle.coupled:
             v = replace(vehicle, wheelbase_m=wb, wheelbase_periods=None)
-            res = cart_phasing(pair, v, samples=samples, _judge=False)
+            res = cart_phasing(pair, v, samples=samples, phase_offsets_rad=phase_offsets_rad,
+                               _judge=False)
             cost = {"bounce_m": res.bounce_m, "pitch_range_rad": res.pitch_range_rad,
                     "skid_m": res.skid_m}
         else:  # uncoupled wheels ride level: only the shafts' rates differ
@@ -465,7 +469,8 @@ def cart_phasing(pair: RollingPair, vehicle, *, speed_m_s: float | None = None,
     phase_note = None
     if n_ax > 1 and _judge and abs(wb_err) > tol:
         # Judge the wheelbase by what it costs against what the build tolerance costs anyway.
-        tol_cost = _tolerance_cost(pair, vehicle, whole_n * P, tol, base_samples)
+        tol_cost = _tolerance_cost(pair, vehicle, whole_n * P, tol, base_samples,
+                                   phase_offsets_rad)
         cost = {"bounce_m": bounce, "pitch_range_rad": float(np.ptp(pitch)), "skid_m": skid}
         costly = _exceeds(cost, tol_cost, size)
         # The fix offered: the nearer of the whole numbers of periods on either side that keeps
