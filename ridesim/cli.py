@@ -68,7 +68,44 @@ def _cmd_solve(sc, args) -> tuple[dict, str]:
     else:
         lines.append(f"closure: NOT closed; after {out['lobes']} period(s) the wheel is"
                      f" {out['closure_gap_rad']:+.6g} rad from a full turn")
+        return out, "\n".join(lines)
+    lines += _whole_period_wheelbases(out, args)
     return out, "\n".join(lines)
+
+
+WHEELBASE_LIST_MAX = 10000
+"""Most whole-period wheelbases `solve` lists (a range wider than that is refused)."""
+
+
+def _whole_period_wheelbases(out: dict, args) -> list[str]:
+    """Add the whole-period wheelbases to solve's figures; their text lines.
+
+    The default range runs from one wheel diameter (2 r_max: neighbouring wheels cannot
+    touch) to five diameters; ``--wheelbase-range MIN MAX`` sets another.
+    """
+    from ridesim.model.vehicle import whole_period_wheelbases_m
+
+    P, r_max = float(out["period_m"]), float(out["depth_max_m"])
+    rng = getattr(args, "wheelbase_range", None)
+    lo, hi = (2.0 * r_max, 10.0 * r_max) if rng is None else (float(rng[0]), float(rng[1]))
+    if not (0.0 <= lo <= hi < float("inf")):
+        raise ScenarioError_(f"--wheelbase-range must be two lengths 0 <= MIN <= MAX in metres,"
+                             f" got {lo:g} {hi:g}")
+    if hi / P > WHEELBASE_LIST_MAX:
+        raise ScenarioError_(f"--wheelbase-range {lo:g} {hi:g} m holds more than"
+                             f" {WHEELBASE_LIST_MAX} track periods of {P:.6g} m; give a narrower"
+                             " range")
+    wbs = whole_period_wheelbases_m(P, lo, hi)
+    out["wheelbase_range_m"] = [lo, hi]
+    out["whole_period_wheelbases_m"] = [w for _, w in wbs]
+    out["whole_period_wheelbase_periods"] = [k for k, _ in wbs]
+    head = (f"whole-period wheelbases from {lo:.4f} to {hi:.4f} m (coupled axles meet the track"
+            " in phase; vehicle.wheelbase_periods = k):")
+    if not wbs:
+        return [head, "  none in this range"]
+    shown = ", ".join(f"{w:.4f} m (k = {k})" for k, w in wbs[:12])
+    more = "" if len(wbs) <= 12 else f", ... ({len(wbs)} in all, every {P:.6g} m)"
+    return [head, f"  {shown}{more}"]
 
 
 def _cmd_check(sc, args) -> tuple[dict, str]:
@@ -328,6 +365,10 @@ def _build_parser(commands: dict) -> _Parser:
         if name == "report":
             sp.add_argument("--no-simulate", action="store_true",
                             help="leave the rigid-body simulation out (faster)")
+        if name == "solve":
+            sp.add_argument("--wheelbase-range", nargs=2, type=float, metavar=("MIN", "MAX"),
+                            help="list the whole-period wheelbases from MIN to MAX [m] (default:"
+                            " one to five wheel diameters)")
         if name == "export":
             sp.add_argument("--section", type=float, default=1.0,
                             help="longest track section to cut [m]")

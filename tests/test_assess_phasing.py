@@ -147,3 +147,131 @@ def test_seat_acceleration_of_a_knocking_cart_does_not_grow_with_the_samples():
                           samples=n).seat_accel_peak_m_s2 for n in (2048, 8192)]
     assert peaks[0] > 1.0  # a knock, not a smooth ride
     np.testing.assert_allclose(peaks[0], peaks[1], rtol=0.03)
+
+
+# ------------------------------------------------------------------ the wheelbase, judged
+
+
+def square_rest_height(x, a, d):
+    """Exact quasi-static resting height of a square (apothem a) turned ``d`` clockwise past
+    its ideal angle with the axle at ``x``, on the catenary arches y = -a cosh((X - kP)/a),
+    P = 2 a asinh(1) (Hall & Wagon, "Roads and Wheels", Math. Mag. 65, 1992).
+
+    In the ideal pose the bottom face is tangent to the arch straight below the axle (slope
+    angle psi = atan(-sinh(u/a)), u = x - kP), its foot at distance a. The lowest height that
+    keeps the outline on or above the track is the largest of y(x + p_x) - p_y over the rim;
+    along each face that is concave on each arch (y is concave, the face straight), so its
+    largest value is at a vertex, at a cusp under the face, or where the arch's slope equals
+    the face's, -sinh((X - kP)/a) = e_y / e_x (derived).
+    """
+    P = 2 * a * math.asinh(1.0)
+
+    def y(X):
+        k = np.round(X / P)
+        return -a * np.cosh((X - k * P) / a)
+
+    u = x - round(x / P) * P
+    psi = math.atan(-math.sinh(u / a))
+    e = np.array([math.cos(psi), math.sin(psi)])
+    foot = a * np.array([math.sin(psi), -math.cos(psi)])
+    c, s = math.cos(d), math.sin(d)
+    rot = np.array([[c, s], [-s, c]])  # clockwise by d
+    V = [rot @ v for v in (foot - a * e, foot + a * e, -foot + a * e, -foot - a * e)]
+    best = max(float(y(x + v[0])) - v[1] for v in V)
+    for j in range(4):
+        A, B = V[j], V[(j + 1) % 4]
+        ex, ey = B - A
+        if abs(ex) < 1e-12:
+            continue
+        lo, hi = sorted((x + A[0], x + B[0]))
+        ks = range(math.floor(lo / P) - 1, math.ceil(hi / P) + 2)
+        for X in [(k + 0.5) * P for k in ks] + [k * P - a * math.asinh(ey / ex) for k in ks]:
+            if lo <= X <= hi:
+                best = max(best, float(y(X)) - (A[1] + (X - x - A[0]) / ex * ey))
+    return best
+
+
+def test_one_and_a_half_periods_bounces_and_pitches_like_the_closed_form_and_is_flagged():
+    """Two squares on one shaft, 1.5 track periods apart: the rear wheel rolls ideally (height
+    0), the front one keeps its assembly angle relative to it, so it is turned
+    d = [theta(x_r) - theta(x_r0)] - [theta(x_f) - theta(x_f0)] past its ideal angle
+    (theta(x) = k pi/2 + atan(sinh((x - kP)/a)) on the arch about kP: Hall & Wagon 1992) and
+    rests at the exact height above; a rigid beam on two axles passes through both, so the
+    pitch is atan(h_f / wheelbase)."""
+    a = 0.3
+    pair = rs.track_for(rs.Wheel.polygon(sides=4, apothem=a))
+    P = 2 * a * math.asinh(1.0)
+    wb = 1.5 * P
+    res = cart_phasing(pair, VehicleSpec(axles=2, wheelbase_m=wb, coupled=True))
+
+    def theta(x):
+        k = np.round(x / P)
+        return k * math.pi / 2 + np.arctan(np.sinh((x - k * P) / a))
+
+    xr, xf = res.x_m - wb / 2, res.x_m + wb / 2
+    d = theta(xr) - theta(xr[0]) - (theta(xf) - theta(xf[0]))
+    h = np.array([square_rest_height(float(x), a, float(dd)) for x, dd in zip(xf, d, strict=True)])
+    np.testing.assert_allclose(res.axle_height_m[0], 0.0, atol=1e-12)
+    np.testing.assert_allclose(res.axle_height_m[1], h, atol=1e-12)
+    np.testing.assert_allclose(res.pitch_rad, np.arctan(h / wb), atol=1e-12)
+    assert res.bounce_m == pytest.approx(np.ptp(h), abs=1e-12)
+    assert res.pitch_range_rad == pytest.approx(np.ptp(np.arctan(h / wb)), abs=1e-12)
+    assert res.bounce_m > 0.03  # a real bounce: 40 mm on a 0.3 m square
+    assert res.out_of_phase and res.whole_periods in (1, 2)
+    assert f"bounces {1000 * res.bounce_m:.2f} mm" in res.out_of_phase_note
+    assert res.out_of_phase_note in res.notes
+    # A wheelbase off by the tolerance costs far less.
+    assert res.tolerance_cost["bounce_m"] < 0.02 * res.bounce_m
+
+
+def test_skid_is_the_integral_of_the_rate_mismatch():
+    """One shaft turning at the rear wheel's rate 1/r_0 drives the front rim at r_1/r_0 of the
+    ground speed: it slides int_0^L |r_1/r_0 - 1| dx a wheel turn (first order), with
+    r = a cosh((x - kP)/a) on the square's arches (Hall & Wagon 1992); by scipy's quad."""
+    from scipy.integrate import quad
+
+    a = 0.3
+    pair = rs.track_for(rs.Wheel.polygon(sides=4, apothem=a))
+    P = 2 * a * math.asinh(1.0)
+    wb = 1.5 * P
+
+    def r(x):
+        return a * math.cosh((x - round(x / P) * P) / a)
+
+    kinks = sorted({(k + 0.5) * P + s for k in range(-2, 6) for s in (-wb / 2, wb / 2)})
+    exact, _ = quad(lambda x: abs(r(x + wb / 2) / r(x - wb / 2) - 1), 0.0, 4 * P,
+                    points=[k for k in kinks if 0 < k < 4 * P], limit=200)
+    res = cart_phasing(pair, VehicleSpec(axles=2, wheelbase_m=wb, coupled=True), samples=2880)
+    # The samples' mean is the midpoint rule on a periodic integrand with kinks: O(dx^2).
+    assert res.skid_m == pytest.approx(exact, rel=1e-4)
+
+
+def test_wheelbase_within_the_build_tolerance_is_in_phase():
+    """A square's track period is 2 a asinh(1) (Hall & Wagon 1992). A wheelbase a micrometre off
+    two periods is in phase; 0.6 mm off is beyond the default 0.5 mm tolerance (common
+    practice) and costs more than the tolerance does, but is in phase for a 1 mm tolerance."""
+    a = 0.3
+    pair = rs.track_for(rs.Wheel.polygon(sides=4, apothem=a))
+    P = 2 * a * math.asinh(1.0)
+    near = cart_phasing(pair, VehicleSpec(axles=2, wheelbase_m=2 * P + 1e-6, coupled=True))
+    assert not near.out_of_phase and near.tolerance_cost is None and not near.notes
+    assert near.whole_periods == 2 and near.wheelbase_error_m == pytest.approx(1e-6, abs=1e-12)
+    assert near.wheelbase_tolerance_m == 5e-4
+    off = VehicleSpec(axles=2, wheelbase_m=2 * P + 6e-4, coupled=True)
+    far = cart_phasing(pair, off)
+    assert far.out_of_phase
+    assert far.bounce_m > far.tolerance_cost["bounce_m"] > 0
+    assert "vehicle.wheelbase_periods = 2" in far.out_of_phase_note
+    assert f"{2 * P:.4f} m" in far.out_of_phase_note
+    assert not cart_phasing(pair, off, wheelbase_tolerance_m=1e-3).out_of_phase
+
+
+def test_round_wheels_are_in_phase_at_any_wheelbase():
+    """A circle about its centre rolls on a flat track: coupled or not, any wheelbase rides
+    level and turns both wheels alike (nothing to bounce, pitch or skid)."""
+    pair = rs.track_for(rs.Wheel.circle(0.1))
+    wb = 0.37 * pair.track.period + 0.3
+    res = cart_phasing(pair, VehicleSpec(axles=2, wheelbase_m=wb, coupled=True))
+    assert abs(res.wheelbase_error_m) > 1e-2
+    assert not res.out_of_phase and not res.notes
+    assert res.bounce_m <= 1e-12 and res.skid_m <= 1e-12

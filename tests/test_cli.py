@@ -260,3 +260,49 @@ def test_out_folder_that_does_not_exist_yet_is_created(tmp_path):
     out = tmp_path / "a" / "b"
     assert main(["solve", str(SCENARIOS / "hexagon_trolley.toml"), "--out", str(out)]) == 0
     assert (out / "solve.json").is_file()
+def test_solve_lists_the_whole_period_wheelbases(tmp_path):
+    """A regular hexagon (apothem a) has period P = 2 a asinh(tan(pi/6)) and greatest radius
+    a / cos(pi/6) (Hall & Wagon 1992); solve lists k P from one wheel diameter to five."""
+    a = 0.12
+    P = 2 * a * math.asinh(math.tan(math.pi / 6))
+    r_max = a / math.cos(math.pi / 6)
+    r = run_cli("solve", str(SCENARIOS / "hexagon_trolley.toml"), "--json")
+    out = json.loads(r.stdout)
+    ks = [k for k in range(1, 100) if 2 * r_max <= k * P <= 10 * r_max]
+    assert out["whole_period_wheelbase_periods"] == ks
+    assert out["whole_period_wheelbases_m"] == pytest.approx([k * P for k in ks], rel=1e-12)
+    assert out["wheelbase_range_m"] == pytest.approx([2 * r_max, 10 * r_max], rel=1e-12)
+    r = run_cli("solve", str(SCENARIOS / "hexagon_trolley.toml"), "--wheelbase-range", "0.3",
+                "0.5")
+    assert r.returncode == 0, r.stderr
+    assert f"{3 * P:.4f} m (k = 3)" in r.stdout  # 0.3955 m, the trolley's own wheelbase
+    assert "k = 2" not in r.stdout and "k = 4" not in r.stdout  # 0.2637 m, 0.5273 m
+    r = run_cli("solve", str(SCENARIOS / "hexagon_trolley.toml"), "--wheelbase-range", "1", "0")
+    assert r.returncode == 2 and r.stderr.count("\n") == 1 and "--wheelbase-range" in r.stderr
+
+
+def test_wheelbase_in_periods_that_disagrees_with_the_length_is_refused(tmp_path):
+    sc = tmp_path / "both.toml"
+    sc.write_text((SCENARIOS / "hexagon_trolley.toml").read_text().replace(
+        "wheelbase_m = 0.3955004239205194", "wheelbase_m = 0.4\nwheelbase_periods = 3"))
+    r = run_cli("check", str(sc))
+    assert r.returncode == 2 and r.stderr.count("\n") == 1
+    assert "vehicle.wheelbase_periods" in r.stderr and "give only one" in r.stderr
+
+
+def test_solve_lists_whole_period_wheelbases_for_rounded_corners_too(tmp_path, capsys):
+    """A square (apothem 0.25 m) with 10 mm fitted corners: period 0.4406255 m from the
+    closed form in test_jobs_check (Hall & Wagon 1992, DLMF 19.7.4); two periods print as
+    0.8813 m (to 0.1 mm), the wheelbase a builder can measure."""
+    from test_jobs_check import rounded_polygon_period
+
+    P = rounded_polygon_period(4, 0.25, 0.01)
+    sc = tmp_path / "rounded.toml"
+    sc.write_text('[wheel]\nshape = "polygon"\nsides = 4\napothem_m = 0.25\ncorner_radius_m = 0.01\n'
+                  "fit_track_to_corners = true\n")
+    assert main(["solve", str(sc), "--wheelbase-range", "0.5", "1.5", "--out", str(tmp_path)]) == 0
+    text = capsys.readouterr().out
+    assert f"{2 * P:.4f} m (k = 2)" in text and "0.8813 m (k = 2)" in text
+    saved = json.loads((tmp_path / "solve.json").read_text())
+    assert saved["whole_period_wheelbase_periods"] == [2, 3]
+    assert saved["whole_period_wheelbases_m"] == pytest.approx([2 * P, 3 * P], rel=1e-12)

@@ -267,3 +267,114 @@ def test_torque_limit_is_per_motor(coupled):
                                rtol=1e-8)
     limited = any("torque limit" in n for n in res.notes)
     assert limited is coupled
+# ------------------------------------------------------------------ the wheelbase, as built
+
+
+def rounded_polygon_period(n, a, rho):
+    """Track period of a regular n-gon (apothem a) with corners rounded to rho: a flat rolls
+    over 2 a asinh(tan u_e), tan u_e = (a - rho) tan(pi/n) / a, and a corner arc (centre
+    D = (a - rho)/cos(pi/n) from the axle, half-angle psi_e = pi/n - u_e) over
+    2 D sin(psi_e) + 2 rho E(psi_e | D^2/rho^2), since there r = D cos psi +
+    sqrt(rho^2 - D^2 sin^2 psi) and dx = r dtheta (Hall & Wagon, Math. Mag. 65, 1992); E for
+    m > 1 by the reciprocal-modulus transformation (NIST DLMF 19.7.4)."""
+    from scipy.special import ellipeinc, ellipkinc
+
+    ue = math.atan((a - rho) * math.tan(math.pi / n) / a)
+    D = (a - rho) / math.cos(math.pi / n)
+    pe = math.pi / n - ue
+    m = D * D / (rho * rho)
+    k = math.sqrt(m)
+    beta = math.asin(k * math.sin(pe))
+    E = k * ellipeinc(beta, 1.0 / m) - (m - 1.0) / k * ellipkinc(beta, 1.0 / m)
+    return 2 * a * math.asinh(math.tan(ue)) + 2 * D * math.sin(pe) + 2 * rho * E
+
+
+def rounded_square_dict(**vehicle):
+    return {"wheel": {"shape": "polygon", "sides": 4, "apothem_m": 0.25, "corner_radius_m": 0.01,
+                      "fit_track_to_corners": True},
+            "vehicle": {"axles": 2, "coupled": True, **vehicle},
+            "surface": {"friction": 1.2}}
+
+
+def test_coupled_wheelbase_within_the_build_tolerance_rolls():
+    """A square of apothem 0.25 m with 10 mm fitted corners has a track period of 0.4406255 m
+    (closed form above): 0.881252 m is two periods to within a micrometre, and 0.8812 m (two
+    periods to 0.1 mm) to within 0.06 mm, both inside the default 0.5 mm build tolerance
+    (a workshop figure: common practice). Neither may be refused."""
+    from ridesim.scenario.build import solve_scenario
+
+    from ridesim.assess.phasing import cart_phasing
+
+    P = rounded_polygon_period(4, 0.25, 0.01)
+    sc = scenario_from_dict(rounded_square_dict(wheelbase_m=0.881252))
+    assert abs(0.881252 - 2 * P) < 1e-6
+    res = check_scenario(sc)
+    assert res.rollable, res.reasons
+    cart = res.to_dict()["cart"]
+    assert cart["out_of_phase"] is False and cart["whole_periods"] == 2
+    assert cart["wheelbase_error_m"] == pytest.approx(0.881252 - 2 * P, abs=1e-9)
+    assert not any("coupled" in n for n in res.notes)
+    hint = sc.replace("vehicle.wheelbase_m", 0.8812).vehicle
+    assert abs(0.8812 - 2 * P) < 6e-5
+    assert not cart_phasing(solve_scenario(sc), hint).out_of_phase
+
+
+def test_coupled_wheelbase_of_one_and_a_half_periods_is_refused_with_its_cost():
+    """1.5 periods of a 0.3 m square (P = 2 a asinh(1): Hall & Wagon 1992) is really out of
+    phase: refused, with the bounce and pitch of the quasi-static model (checked against the
+    exact resting heights in test_assess_phasing) and the nearest whole-period wheelbase
+    that keeps the wheels apart (2 P >= 2 r_max = 2 sqrt(2) a)."""
+    a = 0.3
+    P = 2 * a * math.asinh(1.0)
+    d = {"wheel": {"shape": "polygon", "sides": 4, "apothem_m": a},
+         "vehicle": {"axles": 2, "coupled": True, "wheelbase_m": 1.5 * P},
+         "surface": {"friction": 1.5}}
+    res = check_scenario(scenario_from_dict(d))
+    assert not res.rollable
+    cart = res.to_dict()["cart"]
+    assert cart["out_of_phase"] is True and cart["bounce_m"] > 0.03
+    (reason,) = [r for r in res.reasons if "coupled" in r]
+    assert f"bounces {1000 * cart['bounce_m']:.2f} mm" in reason
+    assert f"pitches {math.degrees(cart['pitch_range_rad']):.3f} deg" in reason
+    assert f"make the wheelbase {2 * P:.4f} m (vehicle.wheelbase_periods = 2)" in reason
+    contract(res.to_dict())
+
+
+def test_wheelbase_in_track_periods():
+    """vehicle.wheelbase_periods = 3 puts the axles 3 track periods apart: 3 x 2 a
+    asinh(tan(pi/6)) for the hexagon (Hall & Wagon 1992)."""
+    from ridesim.scenario.build import resolve_wheelbase, solve_scenario
+
+    from ridesim.errors import ScenarioError
+
+    P = 2 * 0.12 * math.asinh(math.tan(math.pi / 6))
+    sc = scenario_from_dict(hexagon_dict(coupled=True, wheelbase_periods=3))
+    assert sc.vehicle.wheelbase_periods == 3 and sc.vehicle.wheelbase_m == 0.0
+    res = check_scenario(sc)
+    assert res.rollable, res.reasons
+    assert res.to_dict()["cart"]["wheelbase_m"] == pytest.approx(3 * P, rel=1e-12)
+    pair = solve_scenario(sc)
+    assert resolve_wheelbase(sc, pair).vehicle.wheelbase_m == pytest.approx(3 * P, rel=1e-12)
+    # Both given: they must agree within the build tolerance, and wheelbase_m is kept.
+    both = scenario_from_dict(hexagon_dict(coupled=True, wheelbase_periods=3,
+                                           wheelbase_m=3 * P + 2e-4))
+    assert resolve_wheelbase(both, pair).vehicle.wheelbase_m == 3 * P + 2e-4
+    clash = scenario_from_dict(hexagon_dict(coupled=True, wheelbase_periods=3, wheelbase_m=0.4))
+    with pytest.raises(ScenarioError,
+                       match=r"wheelbase_m = 0\.4 m and vehicle\.wheelbase_periods = 3 .*give only one"):
+        resolve_wheelbase(clash, pair)
+
+
+def test_parabola_arch_track_checks_as_robisons_wheel():
+    """The parabola arches -(x - 0.2)^2 / 0.4 of period 0.4 m with two lobes roll the parabola
+    r = 2f / (1 + |cos phi|), f = 0.1 m (Robison, Math. Mag. 33, 1960; derived in
+    test_solve_inverse): a plate of area 16 f^2 / 3 that clears the track."""
+    d = {"track": {"shape": "formula", "formula": "-((x-0.2)**2)/0.4", "period_m": 0.4,
+                   "lobes": 2},
+         "wheel": {"thickness_m": 0.01, "density_kg_m3": 1000.0},
+         "surface": {"friction": 1.5}}
+    res = check_scenario(scenario_from_dict(d))
+    out = res.to_dict()
+    assert out["pair"]["depth_max_m"] == pytest.approx(0.2, rel=1e-12)
+    assert out["pair"]["wheel_mass_kg"] == pytest.approx(1000.0 * 0.01 * 16 * 0.01 / 3, rel=1e-10)
+    assert out["clearance"]["interferes"] is False and out["clearance"]["min_m"] > -1e-9

@@ -133,6 +133,8 @@ def test_defaults_of_every_section():
         body_mass_kg=10.0, body_inertia_kg_m2=None, axles=1, wheelbase_m=0.0,
         coupled=False, seat_m=(0.0, 0.3), driven_axles=None,
     )
+    # A 0.5 mm wheelbase build tolerance: a workshop figure (common practice).
+    assert sc.vehicle.wheelbase_periods is None and sc.vehicle.wheelbase_tolerance_m == 5e-4
     assert sc.drive == DriveSpec(
         mode="speed", speed_m_s=0.5, accel_m_s2=0.0, max_torque_Nm=50.0,
         torque_Nm=None, shaft_speed_rad_s=None,
@@ -416,7 +418,11 @@ def test_scenario_error_is_an_input_and_value_error():
         ({"track": {"shape": "points"}}, r"^track: give exactly one of points_m, file"),
         # vehicle
         (with_keys(HEX, vehicle={"axles": 2}),
-         r"^vehicle\.wheelbase_m must be > 0 when axles = 2, got 0\.0"),
+         r"^vehicle\.wheelbase_m must be > 0 when axles = 2, got 0\.0; .*wheelbase_periods"),
+        (with_keys(HEX, vehicle={"axles": 2, "wheelbase_periods": 0}),
+         r"^vehicle\.wheelbase_periods must be > 0, got 0"),
+        (with_keys(HEX, vehicle={"wheelbase_tolerance_m": -1e-4}),
+         r"^vehicle\.wheelbase_tolerance_m must be >= 0, got -0\.0001$"),
         (with_keys(HEX, vehicle={"axles": 0}), r"^vehicle\.axles must be >= 1, got 0$"),
         (with_keys(HEX, vehicle={"wheelbase_m": -0.1}),
          r"^vehicle\.wheelbase_m must be >= 0, got -0\.1$"),
@@ -775,3 +781,16 @@ def test_as_built_errors_beside_the_other_section():
         scenario_from_dict({**HEX, "track": {"height_error_m": -1.0}})
     with pytest.raises(ScenarioError, match=r"^wheel\.scale must be > 0"):
         scenario_from_dict(HEX).replace("wheel.scale", 0.0)
+
+
+def test_wheelbase_in_periods_and_its_replacement():
+    sc = scenario_from_dict(with_keys(HEX, vehicle={"axles": 2, "wheelbase_periods": 3,
+                                                    "wheelbase_tolerance_m": 1e-3}))
+    assert sc.vehicle.wheelbase_periods == 3.0 and sc.vehicle.wheelbase_m == 0.0
+    assert sc.vehicle.wheelbase_tolerance_m == 1e-3
+    assert scenario_from_dict(sc.to_dict()) == sc
+    # Setting one form of the wheelbase in a sweep drops the other.
+    by_length = sc.replace("vehicle.wheelbase_m", 0.4)
+    assert by_length.vehicle.wheelbase_m == 0.4 and by_length.vehicle.wheelbase_periods is None
+    back = by_length.replace("vehicle.wheelbase_periods", 2)
+    assert back.vehicle.wheelbase_periods == 2.0 and back.vehicle.wheelbase_m == 0.0

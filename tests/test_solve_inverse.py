@@ -249,6 +249,40 @@ def test_inverse_of_the_forward_track_is_the_wheel(name):
     np.testing.assert_allclose(inv.wheel.radius(psi), w.radius(psi + th0), rtol=1e-8)
 
 
+def test_parabola_arches_roll_a_parabola_about_its_focus():
+    """Robison, "Rolling curves", Math. Mag. 33 (1960): a parabola rolling on a congruent
+    parabola carries its focus along a straight line; the wheel is r = 2f / (1 + cos t).
+
+    Derivation for the track f(x) = -(x - 0.2)^2 / 0.4 (period 0.4, arches x'^2 = 4 f y' with
+    f = 0.1 m): lowered by D the contact radius is r = D + u^2/(4f), u = x - 0.2, and
+    dtheta = du / r. With D = f, r is the focal distance of the parabola's point (u, u^2/4f)
+    and theta - theta(0.2) = 2 atan(u / 2f), so r = f / cos^2(t/2) = 2f / (1 + cos t) with
+    t = theta - theta(0.2). One arch (u = -0.2 .. 0.2, u / 2f = -1 .. 1) turns the wheel
+    2 atan(1) * 2 = pi: two arches close a turn, so lobes = 2 needs D = f, and the wheel is two
+    parabola pieces meeting at r = 2f = 0.2 m, r(phi) = 2f / (1 + |cos phi|) with the vertex
+    (r = f) straight down at x = 0.2 (wheel angle pi/2, contact ray at phi = 0).
+    Area 2 * int 1/2 r^2 dphi = f^2 int sec^4(t/2) dt = 16 f^2 / 3 (t from -pi/2 to pi/2);
+    polar moment about the focus 2 * int 1/4 r^4 dphi = f^4 / 2 * int sec^8(t/2) dt
+    = f^4 / 2 * 4 int_0^1 (1 + s^2)^3 ds = f^4 * 192 / 35 (s = tan(t/2)).
+    """
+    f, P = 0.1, 0.4
+    pair = rs.wheel_for(rs.Track.profile("-((x-0.2)**2)/0.4", period=P), lobes=2)
+    assert pair.closed and pair.lobes == 2
+    assert pair.depth == pytest.approx(f, abs=1e-12)
+    phi = np.linspace(-math.pi, math.pi, 4001)
+    np.testing.assert_allclose(pair.wheel.radius(phi), 2 * f / (1 + np.abs(np.cos(phi))),
+                               rtol=1e-12)
+    x = np.linspace(0.0, 2 * P, 801)
+    u = np.mod(x, P) - 0.2
+    theta = 2 * np.arctan(u / (2 * f)) + HALF_PI + math.pi * np.floor(x / P)
+    np.testing.assert_allclose(pair.wheel_angle(x), theta, atol=1e-12)
+    np.testing.assert_allclose(pair.depth_range(), (f, 2 * f), rtol=1e-12)
+    rho, thick = 1000.0, 0.01
+    mp = pair.wheel.mass_properties(thick, rho)
+    assert mp.area_m2 == pytest.approx(16 * f * f / 3, rel=1e-10)
+    assert mp.inertia_kg_m2 == pytest.approx(rho * thick * f**4 * 192 / 35, rel=1e-10)
+
+
 # ---------------------------------------------------------------------------- bad input
 
 

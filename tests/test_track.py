@@ -92,8 +92,10 @@ def test_points_with_an_offset_start_keep_the_kinks_in_the_base_period():
 
 def test_formula_profile_and_its_derivative():
     t = rs.Track.profile("0.5*cos(2*x)", period=math.pi)
-    np.testing.assert_allclose(t.y(X), 0.5 * np.cos(2 * X), rtol=0, atol=1e-16)
-    np.testing.assert_allclose(t.slope(X), -np.sin(2 * X), rtol=0, atol=1e-15)
+    # Outside [0, pi) the formula is evaluated at x mod pi, which rounds x by up to an ulp
+    # of |x| (4e-16 here): exact to within a few ulp of the height.
+    np.testing.assert_allclose(t.y(X), 0.5 * np.cos(2 * X), rtol=0, atol=1e-15)
+    np.testing.assert_allclose(t.slope(X), -np.sin(2 * X), rtol=0, atol=2e-15)
     assert t.kinks == ()
 
 
@@ -102,6 +104,19 @@ def test_formula_profile_whose_ends_meet_at_an_angle_records_a_kink():
     t = rs.Track.profile("abs(sin(x))", period=math.pi)
     assert 0.0 in t.kinks
     np.testing.assert_allclose(t.y(X), np.abs(np.sin(X)), rtol=0, atol=1e-15)
+
+
+def test_formula_over_one_period_repeats_outside_it():
+    """A parabola arch f = -(x - 0.2)^2 / 0.4 written over one period [0, 0.4] is not periodic by
+    itself; the track repeats it (f(x) = f(x mod 0.4)), and its repeats meet at an angle at
+    x = 0: the slope -2 (x - 0.2)/0.4 is +1 just after a joint and -1 just before it."""
+    P = 0.4
+    t = rs.Track.profile("-((x-0.2)**2)/0.4", period=P)
+    u = np.mod(X, P)
+    np.testing.assert_allclose(t.y(X), -((u - 0.2) ** 2) / 0.4, rtol=0, atol=1e-15)
+    np.testing.assert_allclose(t.slope(X), -2.0 * (u - 0.2) / 0.4, rtol=0, atol=1e-14)
+    assert t.kinks == (0.0,)
+    np.testing.assert_allclose(t.shape_range(), (-0.1, 0.0), atol=1e-12)
 
 
 def test_polyline_contains_the_kinks():

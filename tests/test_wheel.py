@@ -128,6 +128,28 @@ def test_outline_drops_a_repeated_closing_point():
                                rtol=1e-14)
 
 
+def test_dense_outline_far_from_the_origin_keeps_its_last_rim_point_and_its_symmetry():
+    """9000 points of the three-lobed polar wheel r = 0.1 + 0.02 cos(3 phi), given in a
+    drawing frame with the axle at (10, 10) m. The last rim point is one step (about 7e-5 m)
+    from the first, less than numpy's default allclose tolerance there (1e-5 of 10 m), but it
+    is a real point: dropping it left 8999 points, no 3-fold symmetry, and a track period of a
+    whole turn. The wheel's period is the track length of a third of a turn,
+    int_0^(2pi/3) r dphi = (2 pi / 3) 0.1 m (the cos(3 phi) term integrates to zero); the
+    inscribed polygon is shorter by O(step^2 / r^2) (about 1e-7 relative here: a chord
+    replacing an arc of angle h lies within r h^2 / 8 of it)."""
+    n, axle = 9000, np.array([10.0, 10.0])
+    phi = TWO_PI * np.arange(n) / n
+    r = 0.1 + 0.02 * np.cos(3 * phi)
+    pts = np.column_stack([r * np.cos(phi), r * np.sin(phi)]) + axle
+    w = rs.Wheel.outline(pts, axle=axle)
+    assert len(w.vertices) == n and w.symmetry == 3
+    pair = rs.track_for(w)
+    assert pair.lobes == 3
+    assert pair.track.period == pytest.approx(TWO_PI / 3 * 0.1, rel=1e-6)
+    # A closing point that repeats the first (to 1e-9 m) is still dropped.
+    assert len(rs.Wheel.outline(np.vstack([pts, pts[:1] + 1e-9]), axle=axle).vertices) == n
+
+
 @pytest.mark.parametrize("a,b", [(0.05, 0.04), (0.3, 0.1), (0.1, 0.3), (1.0, 1.0)])
 def test_centred_ellipse_radius(a, b):
     # Polar equation of an ellipse about its centre: r = ab / sqrt(b^2 cos^2 + a^2 sin^2)

@@ -16,6 +16,11 @@ lowest axle height that keeps its whole outline on or above the track,
 those heights as a rigid beam with the least body height (a two-variable linear
 programme, solved over the pairs of supporting axles); a wheel below the beam has
 lifted off. This ignores the slip and dynamics that the simulation includes.
+
+A wheelbase is judged as a builder measures it: within ``vehicle.wheelbase_tolerance_m``
+of a whole number of track periods it is in phase; farther off, coupled wheels are out of
+phase only when the cart's bounce, pitch or skid (the slip one shaft angle forces) exceed
+those of a wheelbase off by the tolerance, so round wheels are in phase at any wheelbase.
 """
 
 from __future__ import annotations
@@ -220,6 +225,27 @@ class PhasingResult:
         vibration up to :data:`SEAT_BAND_HZ` (see :func:`band_limited_peak_accel`).
     notes : tuple of str
         Plain statements for the builder.
+    whole_periods : int
+        The whole number of track periods nearest the wheelbase (at least 1; 0 for one axle).
+    wheelbase_error_m : float
+        Wheelbase minus ``whole_periods`` track periods [m].
+    skid_m : float
+        Slip [m] per wheel turn that one shaft angle forces on the worst axle: a wheel turning
+        at the rear wheel's rate ``1/r_0`` over a contact at radius ``r_i`` slides
+        ``|r_i / r_0 - 1|`` per metre travelled, ``skid = max_i int_0^L |r_i/r_0 - 1| dx``
+        (first order: the contacts taken at their ideal points). For uncoupled wheels it is the
+        slip a shared shaft would force.
+    wheelbase_tolerance_m : float
+        Build tolerance [m] the wheelbase is judged against.
+    tolerance_cost : dict or None
+        ``bounce_m``, ``pitch_range_rad`` and ``skid_m`` of the worse of the wheelbases
+        ``whole_periods`` periods plus and minus the tolerance; None when the wheelbase is
+        within the tolerance of a whole number of periods (or the cart has one axle).
+    out_of_phase : bool
+        True for coupled wheels whose wheelbase costs more bounce, pitch or skid than a
+        wheelbase off by the build tolerance: the cart will not ride level.
+    out_of_phase_note : str or None
+        The statement (also in ``notes``) that says so, with the figures and the fix.
     """
 
     coupled: bool
@@ -236,6 +262,13 @@ class PhasingResult:
     seat_bounce_m: float
     seat_accel_peak_m_s2: float | None
     notes: tuple[str, ...]
+    whole_periods: int = 0
+    wheelbase_error_m: float = 0.0
+    skid_m: float = 0.0
+    wheelbase_tolerance_m: float = 0.0
+    tolerance_cost: dict | None = None
+    out_of_phase: bool = False
+    out_of_phase_note: str | None = None
 
     def to_dict(self) -> dict:
         """Summary with units in the keys (JSON-ready).
@@ -254,6 +287,13 @@ class PhasingResult:
             "pitch_range_rad": float(self.pitch_range_rad),
             "seat_bounce_m": float(self.seat_bounce_m),
             "seat_accel_peak_m_s2": self.seat_accel_peak_m_s2,
+            "whole_periods": int(self.whole_periods),
+            "wheelbase_error_m": float(self.wheelbase_error_m),
+            "skid_m": float(self.skid_m),
+            "wheelbase_tolerance_m": float(self.wheelbase_tolerance_m),
+            "tolerance_cost": (None if self.tolerance_cost is None
+                               else {k: float(v) for k, v in self.tolerance_cost.items()}),
+            "out_of_phase": bool(self.out_of_phase),
             "notes": list(self.notes),
         }
 
@@ -277,8 +317,59 @@ def _rest_beam(xa: np.ndarray, h: np.ndarray):
     return best_a, best_b
 
 
+def _skid_m(pair: RollingPair, offs: np.ndarray, x: np.ndarray) -> float:
+    """Worst axle's slip [m] per wheel turn at the rear wheel's shaft rate (see PhasingResult)."""
+    if len(offs) < 2:
+        return 0.0
+    r = np.array([pair.contact_radius(x + o) for o in offs])
+    slip = np.abs(r[1:] / r[:1] - 1.0)
+    return float(np.max(slip.mean(axis=1)) * pair.revolution_length)
+
+
+def _length_digits(tol_m: float) -> int:
+    """Decimals [m] that print a length to within ``tol_m`` (at least 4: 0.1 mm)."""
+    if tol_m <= 0:
+        return 9
+    return int(min(9, max(4, math.ceil(-math.log10(tol_m)))))
+
+
+def _exceeds(cost: dict, limit: dict, size: float) -> bool:
+    """Whether any of bounce, pitch and skid is above the limit (past round-off)."""
+    return (cost["bounce_m"] > limit["bounce_m"] * (1 + 1e-6) + 1e-9 * size
+            or cost["pitch_range_rad"] > limit["pitch_range_rad"] * (1 + 1e-6) + 1e-9
+            or cost["skid_m"] > limit["skid_m"] * (1 + 1e-6) + 1e-9 * size)
+
+
+def _tolerance_cost(pair: RollingPair, vehicle, wheelbase_m: float, tol: float,
+                    samples: int, phase_offsets_rad) -> dict:
+    """Bounce, pitch and skid of the worse of ``wheelbase_m`` plus and minus ``tol``.
+
+    The same mounting errors act, so that only the wheelbase differs.
+    """
+    from dataclasses import replace
+
+    worst = {"bounce_m": 0.0, "pitch_range_rad": 0.0, "skid_m": 0.0}
+    for wb in (wheelbase_m - tol, wheelbase_m + tol):
+        if wb <= 0:
+            continue
+        if vehicle.coupled:
+            v = replace(vehicle, wheelbase_m=wb, wheelbase_periods=None)
+            res = cart_phasing(pair, v, samples=samples, phase_offsets_rad=phase_offsets_rad,
+                               _judge=False)
+            cost = {"bounce_m": res.bounce_m, "pitch_range_rad": res.pitch_range_rad,
+                    "skid_m": res.skid_m}
+        else:  # uncoupled wheels ride level: only the shafts' rates differ
+            x = np.linspace(0.0, pair.revolution_length, samples, endpoint=False)
+            cost = {"bounce_m": 0.0, "pitch_range_rad": 0.0,
+                    "skid_m": _skid_m(pair, axle_offsets_m(vehicle.axles, wb), x)}
+        worst = {k: max(worst[k], float(cost[k])) for k in worst}
+    return worst
+
+
 def cart_phasing(pair: RollingPair, vehicle, *, speed_m_s: float | None = None,
-                 phase_offsets_rad=None, samples: int = 720) -> PhasingResult:
+                 phase_offsets_rad=None, samples: int = 720,
+                 wheelbase_tolerance_m: float | None = None,
+                 _judge: bool = True) -> PhasingResult:
     """Phase errors, axle heights, chassis pitch and seat bounce of a cart over a revolution.
 
     Parameters
@@ -293,11 +384,17 @@ def cart_phasing(pair: RollingPair, vehicle, *, speed_m_s: float | None = None,
         Mounting error [rad] of each wheel on a shared shaft (coupled wheels only).
     samples : int
         Chassis positions over one revolution.
+    wheelbase_tolerance_m : float, optional
+        Build tolerance [m] of the wheelbase; default ``vehicle.wheelbase_tolerance_m``.
+        A wheelbase within it of a whole number of track periods is in phase; one farther off
+        is judged by what it costs: coupled wheels are out of phase when the cart bounces,
+        pitches or skids more than on a wheelbase off by the tolerance.
 
     Returns
     -------
     PhasingResult
     """
+    base_samples = samples
     offs = axle_offsets_m(vehicle.axles, vehicle.wheelbase_m)
     n_ax = len(offs)
     deltas = np.zeros(n_ax) if phase_offsets_rad is None else np.asarray(phase_offsets_rad, float)
@@ -359,23 +456,53 @@ def cart_phasing(pair: RollingPair, vehicle, *, speed_m_s: float | None = None,
         if band < SEAT_BAND_HZ:
             notes.append(f"the seat acceleration estimate keeps vibration up to {band:.3g} Hz only"
                          f" (the cart takes {L / abs(float(speed_m_s)):.3g} s a wheel turn)")
-    if n_ax > 1:
-        whole = abs(wb_periods - round(wb_periods)) <= 1e-6
-        if vehicle.coupled and not whole:
-            notes.append(
-                f"the wheelbase is {wb_periods:.3f} track periods, not a whole number: coupled"
-                f" wheels drift up to {math.degrees(float(phase_error.max())):.1f} deg from their"
-                " ideal angles, so the cart bounces and pitches; use a wheelbase of"
-                f" {round(wb_periods) or 1} x {P:.4f} m or drive the wheels separately")
-        if not vehicle.coupled and not whole:
+    bounce = float(np.max(np.ptp(heights, axis=1)))
+    tol = float(vehicle.wheelbase_tolerance_m if wheelbase_tolerance_m is None
+                else wheelbase_tolerance_m)
+    if not tol >= 0 or not math.isfinite(tol):
+        raise InputError(f"wheelbase_tolerance_m must be a length >= 0, got {tol!r}")
+    skid = _skid_m(pair, offs, x)
+    whole_n = max(1, round(wb_periods)) if n_ax > 1 else 0
+    wb_err = float(vehicle.wheelbase_m - whole_n * P) if n_ax > 1 else 0.0
+    tol_cost = None
+    out_of_phase = False
+    phase_note = None
+    if n_ax > 1 and _judge and abs(wb_err) > tol:
+        # Judge the wheelbase by what it costs against what the build tolerance costs anyway.
+        tol_cost = _tolerance_cost(pair, vehicle, whole_n * P, tol, base_samples,
+                                   phase_offsets_rad)
+        cost = {"bounce_m": bounce, "pitch_range_rad": float(np.ptp(pitch)), "skid_m": skid}
+        costly = _exceeds(cost, tol_cost, size)
+        # The fix offered: the nearer of the whole numbers of periods on either side that keeps
+        # neighbouring wheels clear of each other (a wheelbase of at least 2 r_max).
+        fits = [k for k in sorted({math.floor(wb_periods), math.ceil(wb_periods)},
+                                  key=lambda k: abs(k - wb_periods))
+                if k >= 1 and k * P >= 2.0 * size * (1 - 1e-9)]
+        k_fix = fits[0] if fits else max(1, math.ceil(2.0 * size / P - 1e-9))
+        good = f"{k_fix * P:.{_length_digits(tol)}f} m"
+        if vehicle.coupled and costly:
+            out_of_phase = True
+            phase_note = (
+                f"the axles are coupled but the wheelbase {vehicle.wheelbase_m:.4f} m is"
+                f" {wb_periods:.3f} track periods, not a whole number ({1000 * abs(wb_err):.2f} mm"
+                f" from {whole_n} x {P:.4f} m, more than the {1000 * tol:g} mm build tolerance):"
+                " wheels turning at one angle meet the track out of phase, drifting up to"
+                f" {math.degrees(float(phase_error.max())):.2f} deg from their ideal angles, so the"
+                f" cart bounces {1000 * bounce:.2f} mm, pitches {math.degrees(cost['pitch_range_rad']):.3f}"
+                f" deg and the wheels skid {1000 * skid:.2f} mm a wheel turn (off by the tolerance:"
+                f" {1000 * tol_cost['bounce_m']:.2f} mm, {math.degrees(tol_cost['pitch_range_rad']):.3f}"
+                f" deg, {1000 * tol_cost['skid_m']:.2f} mm); make the wheelbase {good}"
+                f" (vehicle.wheelbase_periods = {k_fix}) or uncouple the axles")
+            notes.append(phase_note)
+        if not vehicle.coupled and costly:
             notes.append(
                 f"the wheelbase is {wb_periods:.3f} track periods: the uncoupled wheels each roll"
-                " ideally but their shafts turn at different rates at each moment, so each"
-                " driven wheel needs its own motor or a differential")
-        if np.any(lifted):
-            notes.append("axle(s) " + ", ".join(str(i) for i in np.flatnonzero(lifted))
-                         + " lift off the track during the cycle")
-    bounce = float(np.max(np.ptp(heights, axis=1)))
+                " ideally but their shafts turn at different rates at each moment (a shared"
+                f" shaft would skid {1000 * skid:.2f} mm a wheel turn), so each driven wheel needs"
+                f" its own motor or a differential, or make the wheelbase {good}")
+    if n_ax > 1 and np.any(lifted):
+        notes.append("axle(s) " + ", ".join(str(i) for i in np.flatnonzero(lifted))
+                     + " lift off the track during the cycle")
     if vehicle.coupled and np.any(deltas):
         notes.append("mounting errors on the shared shaft ("
                      + ", ".join(f"axle {i} {math.degrees(d):+.2f} deg" for i, d in enumerate(deltas))
@@ -386,4 +513,6 @@ def cart_phasing(pair: RollingPair, vehicle, *, speed_m_s: float | None = None,
         phase_error_rad=phase_error, x_m=x, axle_height_m=heights, pitch_rad=pitch,
         seat_height_m=seat, load_share=share, lifted=lifted,
         bounce_m=bounce, pitch_range_rad=float(np.ptp(pitch)),
-        seat_bounce_m=float(np.ptp(seat)), seat_accel_peak_m_s2=seat_acc, notes=tuple(notes))
+        seat_bounce_m=float(np.ptp(seat)), seat_accel_peak_m_s2=seat_acc, notes=tuple(notes),
+        whole_periods=whole_n, wheelbase_error_m=wb_err, skid_m=skid, wheelbase_tolerance_m=tol,
+        tolerance_cost=tol_cost, out_of_phase=out_of_phase, out_of_phase_note=phase_note)

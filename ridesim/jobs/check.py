@@ -13,7 +13,9 @@
 
 ``rollable`` is False when the wheel cuts into the track, when the surface
 cannot supply the friction (or a wheel lifts off at the drive's speed), when
-coupled axles cannot all roll at one angle, or when the wheel does not close.
+coupled axles cannot all roll at one angle (their wheelbase costs more bounce, pitch or skid
+than one off by the build tolerance from a whole number of track periods), or when the
+wheel does not close.
 Every figure is an engineering estimate from a rigid, ideal model.
 """
 
@@ -36,7 +38,7 @@ from ridesim.assess.clearance import ClearanceResult, CuspSeat, clearance, cusp_
 from ridesim.assess.phasing import cart_phasing
 from ridesim.errors import InputError
 from ridesim.safety import SAFETY_CAUTIONS, caution_lines, with_safety
-from ridesim.scenario.build import solve_scenario, wheel_mass
+from ridesim.scenario.build import resolve_wheelbase, solve_scenario, wheel_mass
 from ridesim.scenario.load import Scenario
 
 __all__ = ["CheckResult", "check_scenario", "SAFETY_CAUTIONS", "CHECK_CAUTIONS"]
@@ -301,6 +303,7 @@ def check_scenario(sc: Scenario) -> CheckResult:
     if not isinstance(sc, Scenario):
         raise InputError(f"sc must be a Scenario (see load_scenario), got {type(sc).__name__}")
     pair = solve_scenario(sc)
+    sc = resolve_wheelbase(sc, pair)
     cautions = with_safety(CHECK_CAUTIONS)
     avail = float(sc.surface.friction)
     if not pair.closed:
@@ -390,32 +393,16 @@ def check_scenario(sc: Scenario) -> CheckResult:
         notes.append(f"the wheels would leave the track above {lift:.3g} m/s, less than twice the"
                      f" drive's {v:.3g} m/s; limit the speed")
 
-    # -- coupled axles must see the same track phase
+    # -- several axles: phasing, pitch and seat bounce (quasi-static). Coupled axles must see
+    # the same track phase: a wheelbase is judged by the bounce, pitch and skid it costs
+    # against a wheelbase off by the build tolerance (vehicle.wheelbase_tolerance_m).
     veh = sc.vehicle
-    if veh.coupled and veh.axles > 1:
-        per = pair.track.period
-        k = veh.wheelbase_m / per
-        if abs(k - round(k)) > 1e-6 * max(1.0, abs(k)):
-            reasons.append(
-                f"the axles are coupled but the wheelbase {veh.wheelbase_m:.4f} m is {k:.3f} track"
-                f" periods, not a whole number: wheels turning at one angle would meet the track"
-                f" out of phase and skid; make the wheelbase a multiple of {per:.4f} m or uncouple"
-                " the axles"
-            )
-
-    # -- several axles: phasing, pitch and seat bounce (quasi-static)
     cart = None
     if veh.axles > 1:
         cart = cart_phasing(pair, veh, speed_m_s=v, phase_offsets_rad=veh.phase_offsets_rad)
-        for note in cart.notes:
-            if "not a whole number" in note:
-                reasons_bounce = (f"; the coupled cart would bounce {1000 * cart.bounce_m:.1f} mm"
-                                  f" and pitch {_deg(cart.pitch_range_rad):.2f} deg")
-                for i, r in enumerate(reasons):
-                    if "not a whole number" in r:
-                        reasons[i] = r + reasons_bounce
-            else:
-                notes.append(note)
+        if cart.out_of_phase:
+            reasons.append(cart.out_of_phase_note)
+        notes += [n for n in cart.notes if n != cart.out_of_phase_note]
 
     # -- a constant shaft speed makes the cart surge
     shaft = None
@@ -463,7 +450,7 @@ def check_scenario(sc: Scenario) -> CheckResult:
                  "lobes": int(pair.lobes), "depth_min_m": float(pair.depth_range()[0]),
                  "depth_max_m": float(pair.depth_range()[1]),
                  "wheel_mass_kg": float(mp.mass_kg), "wheel_inertia_kg_m2": float(mp.inertia_kg_m2)},
-        cart=None if cart is None else cart.to_dict(),
+        cart=None if cart is None else {"wheelbase_m": float(veh.wheelbase_m), **cart.to_dict()},
         shaft_drive=shaft, phases=phases,
     )
 

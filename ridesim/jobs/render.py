@@ -54,11 +54,12 @@ def render_scenario(sc, out_dir: str | Path, *, svg: bool = False, simulate: boo
     from ridesim.model.vehicle import axle_offsets_m
     from ridesim.render.clip import render_clip
     from ridesim.render.plots import plot_series, render_solver_plots, write_index
-    from ridesim.scenario.build import solve_scenario, wheel_mass
+    from ridesim.scenario.build import resolve_wheelbase, solve_scenario, wheel_mass
 
     out = Path(out_dir)
     out.mkdir(parents=True, exist_ok=True)
     pair = solve_scenario(sc)
+    sc = resolve_wheelbase(sc, pair)
     mp = wheel_mass(sc, pair.wheel)
     items = list(render_solver_plots(pair, out, mass=mp, svg=svg))
     steady = analyze_cycle(pair, vehicle=sc.vehicle, surface=sc.surface, wheel_mass=mp,

@@ -243,9 +243,10 @@ def size_motor(sc, *, dt_s: float | None = None) -> MotorSizing:
     MotorSizing
     """
     from ridesim.assess.analytic import TorqueModel, duty_run
-    from ridesim.scenario.build import solve_scenario, wheel_mass
+    from ridesim.scenario.build import resolve_wheelbase, solve_scenario, wheel_mass
 
     pair = solve_scenario(sc)
+    sc = resolve_wheelbase(sc, pair)
     mp = wheel_mass(sc, pair.wheel)
     cautions = list(CAUTIONS)
     v_top = float(sc.drive.speed_m_s)

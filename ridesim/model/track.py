@@ -76,7 +76,9 @@ class Track:
         Parameters
         ----------
         formula : str
-            Height [m] in terms of ``x`` [m], e.g. ``"0.5*cos(2*x)"``.
+            Height [m] in terms of ``x`` [m], e.g. ``"0.5*cos(2*x)"``, for one period
+            ``0 <= x <= period``; it repeats from there (``x`` is taken modulo the period), so
+            it need not be periodic by itself.
         period : float
             Length [m] of one repeat; ``f(0)`` must equal ``f(period)``.
         kinks : sequence of float, optional
@@ -92,16 +94,24 @@ class Track:
         fx = parse(formula, variable="x")
         dfx = fx.derivative()
 
-        def f(x: np.ndarray) -> np.ndarray:
+        # The formula describes one period, [0, period]; elsewhere it repeats (x is taken
+        # modulo the period), so a formula that is not periodic by itself (a parabola arch)
+        # still gives a periodic track. At a joint x = k * period the slope is the one just
+        # after it, as at any kink. Inside the base period x is used as given (exact).
+        def wrap(x) -> np.ndarray:
             x = np.asarray(x, dtype=float)
+            return np.where((x >= 0.0) & (x < P), x, np.mod(x, P))
+
+        def f(x: np.ndarray) -> np.ndarray:
+            x = wrap(x)
             return np.broadcast_to(fx(x), x.shape).astype(float)
 
         def df(x: np.ndarray) -> np.ndarray:
-            x = np.asarray(x, dtype=float)
+            x = wrap(x)
             return np.broadcast_to(dfx(x), x.shape).astype(float)
 
         probe = np.linspace(0.0, P, 2049)
-        v = f(probe)
+        v = np.broadcast_to(fx(probe), probe.shape).astype(float)  # both ends, unwrapped
         if not np.all(np.isfinite(v)):
             bad = probe[~np.isfinite(v)][0]
             raise GeometryError(f'track formula "{formula}" is not finite at x = {bad:.6g} m')
@@ -112,7 +122,9 @@ class Track:
                 f" f({P:g}) = {v[-1]:.9g} m; fix the formula or period_m"
             )
         ks = list(kinks)
-        d0, d1 = df(np.array([0.0, P]))
+        # The formula's own slopes at the two ends of the period (not wrapped): where they
+        # differ the repeats meet at an angle.
+        d0, d1 = np.broadcast_to(dfx(np.array([0.0, P])), (2,)).astype(float)
         if abs(d0 - d1) > 1e-9 * max(1.0, abs(d0)):
             ks.append(0.0)  # the profile's ends meet at an angle
         return cls("formula", P, f=f, df=df, kinks=ks,

@@ -7,9 +7,13 @@ the wheelbase [m]; axle 0 is the rearmost.
 
 from __future__ import annotations
 
+import math
+
 import numpy as np
 
-__all__ = ["axle_offsets_m", "drive_motors", "motor_name"]
+from ridesim.errors import InputError
+
+__all__ = ["axle_offsets_m", "drive_motors", "motor_name", "whole_period_wheelbases_m"]
 
 
 def axle_offsets_m(axles: int, wheelbase_m: float) -> np.ndarray:
@@ -30,7 +34,47 @@ def axle_offsets_m(axles: int, wheelbase_m: float) -> np.ndarray:
     n = int(axles)
     if n == 1:
         return np.zeros(1)
-    return (np.arange(n) - 0.5 * (n - 1)) * float(wheelbase_m)
+    wb = float(wheelbase_m)
+    if not wb > 0 or not math.isfinite(wb):
+        raise InputError(
+            f"wheelbase_m must be a positive length for {n} axles, got {wb!r}; a wheelbase given"
+            " as vehicle.wheelbase_periods is set by ridesim.scenario.build.resolve_wheelbase"
+        )
+    return (np.arange(n) - 0.5 * (n - 1)) * wb
+
+
+def whole_period_wheelbases_m(period_m: float, lo_m: float, hi_m: float) -> list[tuple[int, float]]:
+    """Wheelbases [m] that are whole numbers of track periods, from ``lo_m`` to ``hi_m``.
+
+    Wheels coupled to one shaft meet the track in the same phase only on such a wheelbase.
+
+    Parameters
+    ----------
+    period_m : float
+        Track period [m].
+    lo_m, hi_m : float
+        Range [m] (inclusive).
+
+    Returns
+    -------
+    list of (int, float)
+        ``(k, k * period_m)`` for every whole ``k >= 1`` in the range.
+
+    Examples
+    --------
+    >>> whole_period_wheelbases_m(0.25, 0.3, 1.0)
+    [(2, 0.5), (3, 0.75), (4, 1.0)]
+    """
+    P = float(period_m)
+    if not P > 0 or not math.isfinite(P):
+        raise InputError(f"period_m must be a positive length, got {period_m!r}")
+    lo, hi = float(lo_m), float(hi_m)
+    if not (math.isfinite(lo) and math.isfinite(hi)) or lo > hi:
+        raise InputError(f"the wheelbase range must be two finite lengths MIN <= MAX, got {lo_m!r},"
+                         f" {hi_m!r}")
+    k0 = max(1, math.ceil(lo / P - 1e-9))
+    k1 = math.floor(hi / P + 1e-9)
+    return [(k, k * P) for k in range(k0, k1 + 1)]
 
 
 def motor_name(axles) -> str:

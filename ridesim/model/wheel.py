@@ -365,10 +365,21 @@ class Wheel:
             raise InputError(f"{name} must be at least three [x, y] pairs, got shape {v.shape}")
         if not np.all(np.isfinite(v)):
             raise InputError(f"{name} must be finite numbers in metres")
-        if np.allclose(v[0], v[-1]):
-            v = v[:-1]
         scale = float(np.max(np.abs(v - v.mean(axis=0))))
-        keep = np.linalg.norm(np.diff(v, axis=0, append=v[:1]), axis=1) > 1e-12 * scale
+        # Consecutive repeats go first (a point within 1e-12 of the outline's size of the one
+        # before it), then a closing point: one far closer to the first point than its
+        # neighbours are to each other (a thousandth of the shorter neighbouring step) is
+        # the first point again, while a real rim point lies about one step from it. A fixed
+        # tolerance (numpy's allclose: 1e-5 of the coordinates) would take a densely sampled
+        # outline's last rim point for a repeat when the points sit far from the origin.
+        floor = 1e-12 * scale
+        steps = np.linalg.norm(np.diff(v, axis=0), axis=1)
+        v = v[np.concatenate(([True], steps > floor))]
+        if len(v) >= 3:
+            step = min(float(np.linalg.norm(v[1] - v[0])), float(np.linalg.norm(v[-1] - v[-2])))
+            if float(np.linalg.norm(v[-1] - v[0])) <= max(floor, 1e-3 * step):
+                v = v[:-1]
+        keep = np.linalg.norm(np.diff(v, axis=0, append=v[:1]), axis=1) > floor
         v = v[keep]
         if len(v) < 3:
             raise InputError(f"{name} must have at least three distinct points")

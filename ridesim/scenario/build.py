@@ -11,6 +11,7 @@ from __future__ import annotations
 
 import csv
 import re
+from dataclasses import replace
 from pathlib import Path
 
 import numpy as np
@@ -23,7 +24,8 @@ from ridesim.solve.forward import track_for
 from ridesim.solve.inverse import wheel_for
 from ridesim.solve.pair import RollingPair
 
-__all__ = ["read_points_csv", "wheel_from_spec", "track_from_spec", "solve_scenario", "wheel_mass"]
+__all__ = ["read_points_csv", "wheel_from_spec", "track_from_spec", "solve_scenario", "wheel_mass",
+           "resolve_wheelbase"]
 
 
 _CSV_UNITS_M = {"m": 1.0, "mm": 1e-3}
@@ -185,6 +187,43 @@ def solve_scenario(sc: Scenario) -> RollingPair:
     if sc.track.depth_m is not None:
         return _wrap("track.depth_m", wheel_for, t, depth=sc.track.depth_m)
     return _wrap("track.lobes", wheel_for, t, lobes=sc.track.lobes or 1)
+
+
+def resolve_wheelbase(sc: Scenario, pair: RollingPair) -> Scenario:
+    """The scenario with its wheelbase in metres, given as ``vehicle.wheelbase_periods``.
+
+    ``wheelbase_periods`` alone sets ``wheelbase_m = wheelbase_periods * period`` (the solved
+    track's period). Given with ``wheelbase_m``, the two must agree within
+    ``vehicle.wheelbase_tolerance_m``; ``wheelbase_m`` (the measured length) is kept.
+    A scenario without ``wheelbase_periods`` is returned as it is.
+
+    Parameters
+    ----------
+    sc : Scenario
+        Validated scenario.
+    pair : RollingPair
+        Its solved pair (:func:`solve_scenario`).
+
+    Returns
+    -------
+    Scenario
+    """
+    veh = sc.vehicle
+    if veh.wheelbase_periods is None:
+        return sc
+    period = float(pair.track.period)
+    wb = float(veh.wheelbase_periods) * period
+    if veh.wheelbase_m > 0:
+        tol = float(veh.wheelbase_tolerance_m)
+        if abs(veh.wheelbase_m - wb) > tol:
+            raise ScenarioError(
+                f"vehicle.wheelbase_m = {veh.wheelbase_m:.6g} m and vehicle.wheelbase_periods ="
+                f" {veh.wheelbase_periods:g} ({veh.wheelbase_periods:g} x {period:.6g} m ="
+                f" {wb:.6g} m) differ by {1000 * abs(veh.wheelbase_m - wb):.3g} mm, more than"
+                f" vehicle.wheelbase_tolerance_m = {1000 * tol:g} mm; give only one of them"
+            )
+        return sc
+    return replace(sc, vehicle=replace(veh, wheelbase_m=wb))
 
 
 def wheel_mass(sc: Scenario, wheel: Wheel) -> MassProperties:

@@ -94,10 +94,12 @@ _TOP_KEYS = ("name", "description") + _SECTIONS
 
 # Groups of keys of which at most one may be given. ``Scenario.replace`` drops
 # the other members of a group when one member is set, so that a sweep can
-# switch e.g. from apothem_m to side_m with a single change.
+# switch e.g. from apothem_m to side_m with a single change. (The wheelbase may be
+# given both ways when the two agree; a change of one still replaces the other.)
 _EXCLUSIVE: dict[str, tuple[tuple[str, ...], ...]] = {
     "wheel": (_POLYGON_SIZES, ("points_m", "file")),
     "track": (("points_m", "file"), ("lobes", "depth_m")),
+    "vehicle": (("wheelbase_m", "wheelbase_periods"),),
 }
 
 _POLYGON_NAMES = {
@@ -278,8 +280,8 @@ class VehicleSpec:
     axles : int
         Number of axles (>= 1), each with one wheel profile.
     wheelbase_m : float
-        Distance between neighbouring axles in m; > 0 when ``axles`` > 1,
-        ignored when ``axles`` = 1.
+        Distance between neighbouring axles in m; > 0 when ``axles`` > 1 (unless
+        ``wheelbase_periods`` gives it), ignored when ``axles`` = 1.
     coupled : bool
         True when all axles are forced to turn together (chain or gears).
     seat_m : (float, float)
@@ -290,6 +292,15 @@ class VehicleSpec:
     phase_offsets_rad : tuple of float or None
         Mounting error of each wheel on a shared shaft [rad] (clockwise positive), one per
         axle; used when ``coupled`` (uncoupled wheels find their own angle by rolling).
+    wheelbase_periods : float or None
+        The wheelbase as a number of track periods (the period is known once the pair is
+        solved: :func:`ridesim.scenario.build.resolve_wheelbase` sets ``wheelbase_m``). Given with
+        ``wheelbase_m``, the two must agree within ``wheelbase_tolerance_m`` and
+        ``wheelbase_m`` (the measured length) is the one used.
+    wheelbase_tolerance_m : float
+        Build tolerance of the wheelbase [m] (default 0.5 mm, a workshop figure for a drilled
+        or jig-built chassis: common practice): a coupled cart's wheelbase is judged by what
+        it costs (bounce, pitch, skid) against a wheelbase off by this much.
     """
 
     body_mass_kg: float = default_of("vehicle.body_mass_kg")
@@ -300,6 +311,8 @@ class VehicleSpec:
     seat_m: Point = default_of("vehicle.seat_m")
     driven_axles: tuple[int, ...] | None = default_of("vehicle.driven_axles")
     phase_offsets_rad: tuple[float, ...] | None = default_of("vehicle.phase_offsets_rad")
+    wheelbase_periods: float | None = default_of("vehicle.wheelbase_periods")
+    wheelbase_tolerance_m: float = default_of("vehicle.wheelbase_tolerance_m")
 
     @property
     def driven_axle_indices(self) -> tuple[int, ...]:
@@ -996,10 +1009,11 @@ def _parse_vehicle(raw: Any) -> VehicleSpec:
     t.only([f.name for f in fields(VehicleSpec)])
     axles = t.get("axles")
     wheelbase = t.get("wheelbase_m")
-    if axles > 1 and wheelbase <= 0:
+    periods = t.get("wheelbase_periods")
+    if axles > 1 and wheelbase <= 0 and periods is None:
         raise ScenarioError(
             f"vehicle.wheelbase_m must be > 0 when axles = {axles}, got {_show(wheelbase)}; "
-            "give the distance between neighbouring axles"
+            "give the distance between neighbouring axles (or vehicle.wheelbase_periods)"
         )
     driven = None
     if t.has("driven_axles"):
@@ -1041,6 +1055,8 @@ def _parse_vehicle(raw: Any) -> VehicleSpec:
         seat_m=t.get("seat_m"),
         driven_axles=driven,
         phase_offsets_rad=phases,
+        wheelbase_periods=periods,
+        wheelbase_tolerance_m=t.get("wheelbase_tolerance_m"),
     )
 
 

@@ -275,6 +275,14 @@ KEYS: tuple[Key, ...] = (
     Key("vehicle", "wheelbase_m", "real", 0.0, "m",
         "distance between neighbouring axles (> 0 when axles > 1)",
         ge=0, plausible=(0.0, 20.0), source="common practice: toy carts to ride-on trains"),
+    Key("vehicle", "wheelbase_periods", "real", None, "-",
+        "wheelbase as a number of track periods (set once the track is solved); with"
+        " wheelbase_m the two must agree within wheelbase_tolerance_m",
+        gt=0, plausible=(0.5, 50.0), source="common practice: one to a few dozen arches between axles"),
+    Key("vehicle", "wheelbase_tolerance_m", "real", 5e-4, "m",
+        "build tolerance of the wheelbase: a coupled cart's wheelbase is judged by what it costs"
+        " against a wheelbase off by this much",
+        ge=0, plausible=(1e-5, 5e-3), source="common practice: a drilled or jig-built chassis holds 0.5 mm"),
     Key("vehicle", "coupled", "bool", False, "",
         "all axles forced to turn together (chain or gears)"),
     Key("vehicle", "seat_m", "pair", (0.0, 0.3), "m",

@@ -45,10 +45,11 @@ class IdealEngine(Engine):
         """
         from ridesim.assess.analytic import TorqueModel, analyze_cycle
         from ridesim.model.vehicle import axle_offsets_m
-        from ridesim.scenario.build import solve_scenario, wheel_mass
+        from ridesim.scenario.build import resolve_wheelbase, solve_scenario, wheel_mass
 
         sc = scenario
         pair = solve_scenario(sc) if pair is None else pair
+        sc = resolve_wheelbase(sc, pair)
         mp = wheel_mass(sc, pair.wheel)
         run, drv, veh = sc.run, sc.drive, sc.vehicle
         dt = float(run.timestep_s)

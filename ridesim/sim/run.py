@@ -187,10 +187,11 @@ class PymunkEngine(Engine):
         -------
         PymunkEngine
         """
-        from ridesim.scenario.build import solve_scenario, wheel_mass
+        from ridesim.scenario.build import resolve_wheelbase, solve_scenario, wheel_mass
 
         if pair is None:
             pair = solve_scenario(scenario)
+        scenario = resolve_wheelbase(scenario, pair)
         return cls(scenario, pair, wheel_mass(scenario, pair.wheel), WorldOptions(**options))
 
     def _body_columns(self) -> tuple[list[tuple[int, ...]], int]:

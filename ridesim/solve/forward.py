@@ -38,6 +38,10 @@ def _wrap_pi(a: float) -> float:
     return (a + math.pi) % TWO_PI - math.pi
 
 
+def _wrap_pi_array(a: np.ndarray) -> np.ndarray:
+    return np.mod(a + math.pi, TWO_PI) - math.pi
+
+
 def track_for(wheel: Wheel, *, path: str = "line") -> RollingPair:
     """Solve the ideal track for ``wheel``.
 
@@ -86,10 +90,19 @@ def track_for(wheel: Wheel, *, path: str = "line") -> RollingPair:
         starts, _, _ = wheel.edge_lines()
         cusps = []
         verts = wheel.vertices
+        # Match each vertex by angle (the map list may be rotated): the nearest start angle
+        # on the circle, found by bisection among the sorted angles (and the wrap-around).
+        start_mod = np.mod(starts[:-1], TWO_PI)
+        order = np.argsort(start_mod)
+        sorted_a = start_mod[order]
+        want = np.mod(np.asarray(th_v) - HALF_PI, TWO_PI)
+        pos = np.searchsorted(sorted_a, want)
+        cand = np.stack([(pos - 1) % len(order), pos % len(order)])
+        dist = np.abs(_wrap_pi_array(sorted_a[cand] - want[None, :]))
+        match = order[cand[np.argmin(dist, axis=0), np.arange(len(want))]]
         for i in range(len(th_v)):
             phi = float((th_v[i] - HALF_PI) % TWO_PI)
-            # Match the vertex by angle (the map list may be rotated).
-            j = int(np.argmin(np.abs(np.angle(np.exp(1j * (starts[:-1] - (th_v[i] - HALF_PI)))))))
+            j = int(match[i])
             cusps.append(Cusp(x_m=float(x_v[i] % rev), vertex=j, phi_rad=phi,
                               depth_m=float(np.hypot(*verts[j]))))
     else:
@@ -134,12 +147,12 @@ def track_for(wheel: Wheel, *, path: str = "line") -> RollingPair:
     cusps.sort(key=lambda c: c.x_m)
     period = rev / k
     kinks_x: list[float] = []
-    for xc in sorted(c.x_m % period for c in cusps):
-        if xc > period * (1 - 1e-9):
-            xc = 0.0  # a cusp at the period's end is the one at its start
-        if not any(abs(xc - k) <= 1e-9 * period for k in kinks_x):
+    # A cusp at the period's end is the one at its start; cusps within 1e-9 of the period of
+    # one already kept are the same (sorted, so a repeat is next to the one it repeats).
+    for xc in sorted(0.0 if xc > period * (1 - 1e-9) else xc
+                     for xc in (c.x_m % period for c in cusps)):
+        if not kinks_x or xc - kinks_x[-1] > 1e-9 * period:
             kinks_x.append(xc)
-    kinks_x.sort()
     track = Track("solved", period, f=y_rev, df=slope_rev, kinks=kinks_x,
                   params={"period_m": period, "revolution_length_m": rev},
                   extremes=(-rmax, -rmin))
