@@ -33,79 +33,12 @@ class _Parser(argparse.ArgumentParser):
         raise _ArgumentError(f"{self.prog}: {message}")
 
 
-def _fmt_m(v: float) -> str:
-    return f"{v:.6g} m ({v * 1000:.2f} mm)"
-
-
 # ---------------------------------------------------------------------------- commands
 def _cmd_solve(sc, args) -> tuple[dict, str]:
-    from ridesim.scenario.build import solve_scenario
+    from ridesim.jobs.solve import solve_text, solve_with_wheelbases
 
-    pair = solve_scenario(sc)
-    out = pair.to_dict()
-    lines = [f"scenario: {sc.name}"]
-    if out["solved_from"] == "wheel":
-        lines.append(f"solved the track for the {out['wheel']['kind'].replace('_', ' ')} wheel")
-    else:
-        lines.append(f"solved the wheel for the {sc.track.shape} track: lowered by"
-                     f" depth {_fmt_m(out['depth_m'])}")
-    lines += [
-        f"track period:          {_fmt_m(out['period_m'])}",
-        f"revolution length:     {_fmt_m(out['revolution_length_m'])}"
-        f"  ({out['lobes']} period(s) per wheel turn)",
-        f"contact depth range:   {out['depth_min_m']:.6g} .. {out['depth_max_m']:.6g} m below the axle",
-    ]
-    for kind, label in (("valley", "cusps"), ("crest", "crest corners")):
-        cs = [c for c in out["cusps"] if c.get("kind", "valley") == kind]
-        if cs:
-            xs = ", ".join(f"{c['x_m']:.4f}" for c in cs[:8])
-            more = "" if len(cs) <= 8 else f", ... ({len(cs)} in all)"
-            lines.append(f"{label} in one revolution at x = {xs}{more} m")
-    if not out["cusps"]:
-        lines.append("no cusps (smooth track)")
-    if out["closed"]:
-        lines.append("closure: the wheel closes after one revolution")
-    else:
-        lines.append(f"closure: NOT closed; after {out['lobes']} period(s) the wheel is"
-                     f" {out['closure_gap_rad']:+.6g} rad from a full turn")
-        return out, "\n".join(lines)
-    lines += _whole_period_wheelbases(out, args)
-    return out, "\n".join(lines)
-
-
-WHEELBASE_LIST_MAX = 10000
-"""Most whole-period wheelbases `solve` lists (a range wider than that is refused)."""
-
-
-def _whole_period_wheelbases(out: dict, args) -> list[str]:
-    """Add the whole-period wheelbases to solve's figures; their text lines.
-
-    The default range runs from one wheel diameter (2 r_max: neighbouring wheels cannot
-    touch) to five diameters; ``--wheelbase-range MIN MAX`` sets another.
-    """
-    from ridesim.model.vehicle import whole_period_wheelbases_m
-
-    P, r_max = float(out["period_m"]), float(out["depth_max_m"])
-    rng = getattr(args, "wheelbase_range", None)
-    lo, hi = (2.0 * r_max, 10.0 * r_max) if rng is None else (float(rng[0]), float(rng[1]))
-    if not (0.0 <= lo <= hi < float("inf")):
-        raise ScenarioError_(f"--wheelbase-range must be two lengths 0 <= MIN <= MAX in metres,"
-                             f" got {lo:g} {hi:g}")
-    if hi / P > WHEELBASE_LIST_MAX:
-        raise ScenarioError_(f"--wheelbase-range {lo:g} {hi:g} m holds more than"
-                             f" {WHEELBASE_LIST_MAX} track periods of {P:.6g} m; give a narrower"
-                             " range")
-    wbs = whole_period_wheelbases_m(P, lo, hi)
-    out["wheelbase_range_m"] = [lo, hi]
-    out["whole_period_wheelbases_m"] = [w for _, w in wbs]
-    out["whole_period_wheelbase_periods"] = [k for k, _ in wbs]
-    head = (f"whole-period wheelbases from {lo:.4f} to {hi:.4f} m (coupled axles meet the track"
-            " in phase; vehicle.wheelbase_periods = k):")
-    if not wbs:
-        return [head, "  none in this range"]
-    shown = ", ".join(f"{w:.4f} m (k = {k})" for k, w in wbs[:12])
-    more = "" if len(wbs) <= 12 else f", ... ({len(wbs)} in all, every {P:.6g} m)"
-    return [head, f"  {shown}{more}"]
+    out = solve_with_wheelbases(sc, wheelbase_range_m=getattr(args, "wheelbase_range", None))
+    return out, solve_text(sc, out)
 
 
 def _cmd_check(sc, args) -> tuple[dict, str]:
@@ -116,7 +49,7 @@ def _cmd_check(sc, args) -> tuple[dict, str]:
 
 
 def _cmd_simulate(sc, args) -> tuple[dict, str]:
-    from ridesim.metrics.ride import simulate
+    from ridesim.jobs.simulate import simulate, write_probes
 
     progress = None
     if not args.json and sys.stderr.isatty():
@@ -127,12 +60,12 @@ def _cmd_simulate(sc, args) -> tuple[dict, str]:
         sys.stderr.write("\n")
     if args.out:
         Path(args.out).mkdir(parents=True, exist_ok=True)
-        res.write_csv(Path(args.out) / "probes.csv")
+        write_probes(res, Path(args.out) / "probes.csv")
     return res.to_dict(), _text_of(res)
 
 
 def _cmd_size_motor(sc, args) -> tuple[dict, str]:
-    from ridesim.metrics.motor import size_motor
+    from ridesim.jobs.size_motor import size_motor
 
     res = size_motor(sc)
     return res.to_dict(), res.to_text()
@@ -206,7 +139,7 @@ def _cmd_export(sc, args) -> tuple[dict, str]:
 
 
 def _cmd_report(sc, args) -> tuple[dict, str]:
-    from ridesim.render.report import write_report
+    from ridesim.jobs.report import write_report
 
     out = _need_out(args, "report")
     progress = None

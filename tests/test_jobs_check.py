@@ -301,9 +301,8 @@ def test_coupled_wheelbase_within_the_build_tolerance_rolls():
     (closed form above): 0.881252 m is two periods to within a micrometre, and 0.8812 m (two
     periods to 0.1 mm) to within 0.06 mm, both inside the default 0.5 mm build tolerance
     (a workshop figure: common practice). Neither may be refused."""
-    from ridesim.scenario.build import solve_scenario
-
     from ridesim.assess.phasing import cart_phasing
+    from ridesim.scenario.build import solve_scenario
 
     P = rounded_polygon_period(4, 0.25, 0.01)
     sc = scenario_from_dict(rounded_square_dict(wheelbase_m=0.881252))
@@ -343,9 +342,8 @@ def test_coupled_wheelbase_of_one_and_a_half_periods_is_refused_with_its_cost():
 def test_wheelbase_in_track_periods():
     """vehicle.wheelbase_periods = 3 puts the axles 3 track periods apart: 3 x 2 a
     asinh(tan(pi/6)) for the hexagon (Hall & Wagon 1992)."""
-    from ridesim.scenario.build import resolve_wheelbase, solve_scenario
-
     from ridesim.errors import ScenarioError
+    from ridesim.scenario.build import resolve_wheelbase, solve_scenario
 
     P = 2 * 0.12 * math.asinh(math.tan(math.pi / 6))
     sc = scenario_from_dict(hexagon_dict(coupled=True, wheelbase_periods=3))

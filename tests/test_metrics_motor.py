@@ -21,7 +21,8 @@ import math
 import numpy as np
 import pytest
 
-from ridesim.metrics.motor import duty_profile, size_motor
+from ridesim.jobs.size_motor import size_motor
+from ridesim.metrics.motor import duty_profile
 from ridesim.scenario.load import scenario_from_dict
 
 G = 9.80665
@@ -202,7 +203,7 @@ def circle_newton():
 @pytest.fixture(scope="module")
 def circle_runs():
     from ridesim.jobs.check import check_scenario
-    from ridesim.metrics.ride import simulate
+    from ridesim.jobs.simulate import simulate
 
     out = {}
     for coupled in (True, False):
@@ -301,7 +302,7 @@ def trolley_runs():
     from pathlib import Path
 
     from ridesim.jobs.check import check_scenario
-    from ridesim.metrics.ride import simulate
+    from ridesim.jobs.simulate import simulate
     from ridesim.scenario.load import load_scenario
 
     sc = load_scenario(Path(__file__).resolve().parents[1] / "scenarios" / "hexagon_trolley.toml")

@@ -156,7 +156,9 @@ def test_result_dict_contract_and_csv(tmp_path):
     assert [w["name"] for w in d["torque"]["motors"]] == ["axle 0 shaft", "axle 1 shaft"]
     assert any("ASTM F2291" in c for c in d["cautions"])
     assert d["steps"] == p.steps and d["sim_time_s"] == pytest.approx(p.steps * p.dt_s)
-    out = r.write_csv(tmp_path / "probes.csv")
+    from ridesim.jobs.simulate import write_probes
+
+    out = write_probes(r, tmp_path / "probes.csv")
     rows = out.read_text().splitlines()
     assert len(rows) == p.steps + 1
     assert rows[0].split(",")[0] == "time_s"

@@ -8,7 +8,8 @@ from pathlib import Path
 
 import pytest
 
-from ridesim.render.report import flatten, write_report
+from ridesim.jobs.report import write_report
+from ridesim.render.report import flatten
 from ridesim.scenario.load import load_scenario
 
 ROOT = Path(__file__).resolve().parent.parent

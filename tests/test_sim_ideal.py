@@ -12,7 +12,8 @@ import numpy as np
 import pytest
 
 from ridesim.assess.analytic import analyze_cycle
-from ridesim.metrics.ride import SimResult, moving_average, simulate
+from ridesim.jobs.simulate import simulate
+from ridesim.metrics.ride import SimResult, moving_average
 from ridesim.scenario.build import solve_scenario, wheel_mass
 from ridesim.scenario.load import load_scenario
 from ridesim.sim.ideal import IdealEngine

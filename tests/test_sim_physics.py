@@ -14,7 +14,8 @@ import math
 import numpy as np
 import pytest
 
-from ridesim.metrics import ride, simulate
+from ridesim.jobs.simulate import simulate
+from ridesim.metrics import ride
 from ridesim.scenario.load import DriveSpec, scenario_from_dict
 from ridesim.sim.run import PymunkEngine
 from ridesim.sim.world import STANDARD_GRAVITY_M_S2 as G

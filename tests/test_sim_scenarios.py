@@ -17,7 +17,8 @@ import pytest
 
 import ridesim as rs
 from ridesim.errors import SimulationError
-from ridesim.metrics import ride, simulate
+from ridesim.jobs.simulate import simulate
+from ridesim.metrics import ride
 from ridesim.scenario.build import solve_scenario, wheel_mass
 from ridesim.scenario.load import load_scenario, scenario_from_dict
 from ridesim.sim.run import PymunkEngine
@@ -294,7 +295,9 @@ def test_tunnelling_stops_with_a_fix_in_the_message():
 
 def test_csv_of_a_run(tmp_path):
     r = simulate(square(1.5, seconds=0.3))
-    path = r.write_csv(tmp_path / "run.csv")
+    from ridesim.jobs.simulate import write_probes
+
+    path = write_probes(r, tmp_path / "run.csv")
     data = np.loadtxt(path, delimiter=",", skiprows=1)
     assert data.shape == (300, len(r.probes.columns()))
     np.testing.assert_allclose(data[:, 0], r.probes.time_s, rtol=1e-8)

@@ -28,7 +28,8 @@ import scipy.stats
 
 import ridesim as rs
 from ridesim.errors import GeometryError, InputError
-from ridesim.metrics import ride, simulate
+from ridesim.jobs.simulate import simulate
+from ridesim.metrics import ride
 from ridesim.model.tolerance import (
     AsBuilt,
     as_built_mass,
@@ -457,7 +458,7 @@ def test_coupled_mounting_error_bounce_matches_the_quasi_static_estimate():
     cart's bounce.
     """
     from ridesim.assess.phasing import cart_phasing
-    from ridesim.metrics.ride import simulate
+    from ridesim.jobs.simulate import simulate
     from ridesim.scenario.build import solve_scenario
     from ridesim.scenario.load import load_scenario
 

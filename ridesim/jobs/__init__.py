@@ -1,7 +1,18 @@
-"""The jobs a scenario can be run through, by name, returning JSON-ready dicts.
+"""The application layer: the jobs a scenario can be run through.
 
-Used by the command line and by sweeps, so that both compute exactly the same
-figures. Each layer is imported only when its job runs.
+One module a job, each orchestrating the pure layers below it (scenario, model, solve,
+assess, sim, metrics, render, export):
+
+* :mod:`.solve` -- the pair, its figures and the whole-period wheelbases;
+* :mod:`.check` -- will it roll (clearance, friction, torque by phase, cart phasing);
+* :mod:`.simulate` -- the rigid-body run and the ride measured from it;
+* :mod:`.size_motor` -- the drive over a duty cycle, per motor;
+* :mod:`.render` -- pictures and the clip; :mod:`.report` -- the HTML page;
+* :mod:`.sweep` -- many cases of one job on a process pool or a Dask cluster.
+
+:func:`run_job` runs the figure-producing jobs by name and returns JSON-ready dicts; the
+command line, sweeps and design searches call it, so every entry point computes exactly
+the same figures. Each layer is imported only when its job runs.
 """
 
 from __future__ import annotations
@@ -14,9 +25,9 @@ __all__ = ["JOBS", "run_job"]
 
 
 def _solve(sc: Scenario, progress=None) -> dict:
-    from ridesim.scenario.build import solve_scenario
+    from ridesim.jobs.solve import solve_with_wheelbases
 
-    return solve_scenario(sc).to_dict()
+    return solve_with_wheelbases(sc)
 
 
 def _check(sc: Scenario, progress=None) -> dict:
@@ -26,13 +37,13 @@ def _check(sc: Scenario, progress=None) -> dict:
 
 
 def _simulate(sc: Scenario, progress=None) -> dict:
-    from ridesim.metrics.ride import simulate
+    from ridesim.jobs.simulate import simulate
 
     return simulate(sc, progress=progress).to_dict()
 
 
 def _size_motor(sc: Scenario, progress=None) -> dict:
-    from ridesim.metrics.motor import size_motor
+    from ridesim.jobs.size_motor import size_motor
 
     return size_motor(sc).to_dict()
 

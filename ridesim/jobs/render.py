@@ -104,8 +104,8 @@ def render_scenario(sc, out_dir: str | Path, *, svg: bool = False, simulate: boo
 def _sim_plots(sc, steady, out: Path, svg: bool, res, pair, mp):
     """Simulated torque against the analytic model, axle heights, seat accelerations, comfort."""
     from ridesim.errors import InputError
+    from ridesim.jobs.simulate import simulate
     from ridesim.metrics import comfort as cf
-    from ridesim.metrics.ride import simulate
     from ridesim.render.plots import plot_series, plot_spectrum
 
     if res is None:

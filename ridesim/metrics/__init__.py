@@ -1,10 +1,9 @@
-"""Ride metrics from probe time series, and the simulation entry point :func:`simulate`."""
+"""Ride metrics from probe time series; the simulation job is :func:`ridesim.jobs.simulate.simulate`."""
 
 from ridesim.metrics.ride import (
     SimResult,
     axle_bounce_m,
     contact_lost,
-    simulate,
     slip_onset,
     slip_threshold_m_s,
     speed_stats,
@@ -15,7 +14,6 @@ __all__ = [
     "SimResult",
     "axle_bounce_m",
     "contact_lost",
-    "simulate",
     "slip_onset",
     "slip_threshold_m_s",
     "speed_stats",

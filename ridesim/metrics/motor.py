@@ -45,7 +45,7 @@ from ridesim.assess.analytic import duty_profile, phase_figures
 from ridesim.model.vehicle import motor_name
 from ridesim.safety import caution_lines, with_safety
 
-__all__ = ["MotorSizing", "GearCheck", "duty_profile", "size_motor", "CAUTIONS", "MOTOR_CAUTIONS"]
+__all__ = ["MotorSizing", "GearCheck", "duty_profile", "motor_sizing", "CAUTIONS", "MOTOR_CAUTIONS"]
 
 G = 9.80665
 #: Assumed start acceleration [m/s^2] when a scenario gives none (flagged in the cautions).
@@ -228,13 +228,21 @@ class MotorSizing:
         return "\n".join(lines)
 
 
-def size_motor(sc, *, dt_s: float | None = None) -> MotorSizing:
-    """Size the drive for a scenario's duty cycle (per motor).
+def motor_sizing(pair, sc, mp, *, dt_s: float | None = None) -> MotorSizing:
+    """Size the drive of a solved pair for its scenario's duty cycle (per motor).
+
+    The scenario-level job is :func:`ridesim.jobs.size_motor.size_motor`, which solves the
+    pair and computes the wheel's mass first.
 
     Parameters
     ----------
+    pair : RollingPair
+        The solved wheel and track.
     sc : Scenario
-        Validated scenario: drive speed and acceleration, ``[duty]``, ``[motor]``.
+        Validated scenario with its wheelbase resolved: drive speed and acceleration,
+        ``[duty]``, ``[motor]``.
+    mp : MassProperties
+        The wheel's mass properties.
     dt_s : float, optional
         Time step [s]; default resolves each track period with at least 64 samples.
 
@@ -243,11 +251,7 @@ def size_motor(sc, *, dt_s: float | None = None) -> MotorSizing:
     MotorSizing
     """
     from ridesim.assess.analytic import TorqueModel, duty_run
-    from ridesim.scenario.build import resolve_wheelbase, solve_scenario, wheel_mass
 
-    pair = solve_scenario(sc)
-    sc = resolve_wheelbase(sc, pair)
-    mp = wheel_mass(sc, pair.wheel)
     cautions = list(CAUTIONS)
     v_top = float(sc.drive.speed_m_s)
     if sc.drive.mode == "shaft_speed":

@@ -19,10 +19,7 @@ ramp) are reported too, with the torque peak inside them.
 from __future__ import annotations
 
 import math
-import os
-from collections.abc import Callable
 from dataclasses import dataclass, field
-from pathlib import Path
 
 import numpy as np
 
@@ -57,7 +54,6 @@ __all__ = [
     "AT_LIMIT_FRACTION",
     "STALL_SPEED_FRACTION",
     "SimResult",
-    "simulate",
 ]
 
 TORQUE_FILTER_S = 0.010
@@ -772,22 +768,17 @@ class SimResult:
         lines.extend(caution_lines(d["cautions"]))
         return "\n".join(lines)
 
-    def write_csv(self, path: str | os.PathLike) -> Path:
-        """Write the probe time series as CSV, atomically (temporary file, then rename).
+    def probes_csv(self) -> str:
+        """The probe time series as CSV text: one header row of column names, then one row a step.
 
-        Parameters
-        ----------
-        path : str or path-like
-            Destination file.
+        Write it with :func:`ridesim.export.results.write_text_atomic` (as ``simulate --out``
+        does), so a reader never sees half a file.
 
         Returns
         -------
-        Path
-            The written file.
+        str
         """
         import io
-
-        from ridesim.export.results import write_text_atomic
 
         cols = self.probes.columns()
         names = list(cols)
@@ -795,7 +786,7 @@ class SimResult:
         buf = io.StringIO()
         buf.write(",".join(names) + "\n")
         np.savetxt(buf, data, delimiter=",", fmt="%.9g")
-        return write_text_atomic(path, buf.getvalue())
+        return buf.getvalue()
 
 
 def _worst_by_phase(tq: list) -> dict:
@@ -931,38 +922,3 @@ def _model_cautions(probes: Probes) -> list[str]:
     if not info.get("torque_sign_known", True):
         out.append("Torque sign unknown in this pymunk build: figures are magnitudes.")
     return out
-
-
-def simulate(scenario, *, progress: Callable[[float], None] | None = None, pair=None,
-             **options) -> SimResult:
-    """Run the rigid-body simulation of a scenario and measure the ride.
-
-    Parameters
-    ----------
-    scenario : Scenario
-        Validated scenario (``ridesim.scenario.load.load_scenario``).
-    progress : callable, optional
-        Called with the fraction done (0 to 1) as the run advances.
-    pair : RollingPair, optional
-        The solved pair, when already at hand.
-    **options
-        Build settings of :class:`ridesim.sim.world.WorldOptions` (``grade_rad``, ...).
-
-    Returns
-    -------
-    SimResult
-
-    Raises
-    ------
-    SimulationError
-        When the run becomes unphysical (tunnelling, NaN, blow-up); the message names the fix.
-    """
-    from ridesim.sim.run import PymunkEngine
-
-    eng = PymunkEngine.from_scenario(scenario, pair, **options)
-    probes = eng.run(progress=progress)
-    if not math.isfinite(float(np.sum(probes.axle_y_m))):
-        from ridesim.errors import SimulationError
-
-        raise SimulationError("simulation produced NaN axle heights; halve run.timestep_s")
-    return SimResult.from_probes(probes, name=scenario.name)

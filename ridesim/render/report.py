@@ -14,7 +14,7 @@ import json
 import math
 from pathlib import Path
 
-__all__ = ["write_report", "format_value", "flatten"]
+__all__ = ["report_page", "format_value", "flatten"]
 
 _CSS = """
 body{font-family:system-ui,-apple-system,"Segoe UI",Roboto,sans-serif;margin:0;color:#1d2733;
@@ -101,46 +101,24 @@ def _img(path: Path, caption: str) -> str:
             f"<figcaption>{html.escape(caption)}</figcaption></figure>")
 
 
-def write_report(sc, out_dir: str | Path, *, simulate: bool = True, clip_s: float = 4.0,
-                 progress=None) -> tuple[Path, dict]:
-    """Write ``report.html`` (and its pictures beside it) for a scenario.
+def report_page(sc, figures: dict, items) -> str:
+    """The HTML page of a scenario's report.
 
     Parameters
     ----------
     sc : Scenario
-        Validated scenario.
-    out_dir : str or Path
-        Output folder.
-    simulate : bool
-        Include the rigid-body simulation (bounce, slip, torque, comfort) and replay it in
-        the clip.
-    clip_s : float
-        Clip length [s].
-    progress : callable, optional
-        ``progress(fraction)`` while the clip is drawn.
+        The scenario reported on.
+    figures : dict
+        JSON-ready figures: ``check``, ``size_motor`` and, when run, ``simulate``.
+    items : list of (Path, str)
+        The pictures (file and caption) to embed.
 
     Returns
     -------
-    (Path, dict)
-        The page and the figures it shows (``check``, ``size_motor``, ``simulate``).
+    str
+        One self-contained HTML document.
     """
-    from ridesim.export.results import json_ready, write_text_atomic
-    from ridesim.jobs.check import check_scenario
-    from ridesim.jobs.render import render_scenario
-    from ridesim.metrics.motor import size_motor
-
-    out = Path(out_dir)
-    check = check_scenario(sc)
-    figures = {"check": json_ready(check.to_dict()),
-               "size_motor": json_ready(size_motor(sc).to_dict())}
-    sim = None
-    if simulate:
-        from ridesim.metrics.ride import simulate as run_sim
-
-        sim = run_sim(sc)
-        figures["simulate"] = json_ready(sim.to_dict())
-    items = render_scenario(sc, out / "pictures", simulate=simulate, clip_s=clip_s,
-                            progress=progress, sim_result=sim)
+    sim = figures.get("simulate")
     c = figures["check"]
     ok = bool(c.get("rollable"))
     parts = [
@@ -176,5 +154,4 @@ def write_report(sc, out_dir: str | Path, *, simulate: bool = True, clip_s: floa
                  + "".join(f"<li>{html.escape(t)}</li>" for t in cautions) + "</ul></div>")
     parts.append("<h2>Scenario</h2><pre>" + html.escape(json.dumps(sc.to_dict(), indent=1))
                  + "</pre></main></body></html>")
-    page = write_text_atomic(out / "report.html", "\n".join(parts))
-    return page, figures
+    return "\n".join(parts)

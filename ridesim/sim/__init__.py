@@ -2,7 +2,7 @@
 
 The engine interface (:class:`Engine`, :class:`Probes`) lets another engine be
 measured by the same ride metrics (:mod:`ridesim.metrics.ride`, whose
-:func:`~ridesim.metrics.ride.simulate` is the usual entry point). The pymunk
+:func:`~ridesim.jobs.simulate.simulate` is the usual entry point). The pymunk
 parts (:class:`PymunkEngine`, :func:`build_world`, ...) are imported on first
 use, so that reading probe records does not load pymunk.
 """
