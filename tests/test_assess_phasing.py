@@ -7,6 +7,7 @@ import pytest
 
 import ridesim as rs
 from ridesim.assess.phasing import cart_phasing, resting_height
+from ridesim.render.wording import describe
 from ridesim.scenario.load import VehicleSpec
 
 
@@ -45,7 +46,7 @@ def test_whole_period_wheelbase_coupled_rides_level():
     assert res.phase_error_rad.max() <= 1e-9
     assert res.bounce_m <= 1e-9 and res.pitch_range_rad <= 1e-9 and res.seat_bounce_m <= 1e-9
     np.testing.assert_allclose(res.load_share, [0.5, 0.5], atol=1e-12)  # lever rule, COM midway
-    assert not res.notes
+    assert not res.findings
 
 
 def test_half_period_wheelbase_coupled_bounces_and_says_so():
@@ -67,10 +68,12 @@ def test_half_period_wheelbase_coupled_bounces_and_says_so():
     err = np.abs(theta(x + wb) - theta(x) - (theta(wb - 1.25 * P) - theta(-1.25 * P)))
     assert coupled.phase_error_rad[1] == pytest.approx(err.max(), rel=1e-9)
     assert coupled.bounce_m > 1e-3 and coupled.pitch_range_rad > 0
-    assert any("not a whole number" in s for s in coupled.notes)
+    assert [f.code for f in coupled.findings] == ["wheelbase_out_of_phase"]
+    assert "not a whole number" in describe(coupled.findings[0])
     free = cart_phasing(pair, VehicleSpec(axles=2, wheelbase_m=2.5 * P, coupled=False))
     assert free.bounce_m <= 1e-9 and free.phase_error_rad.max() == 0.0
-    assert any("own motor" in s for s in free.notes)
+    assert [f.code for f in free.findings] == ["wheelbase_uncoupled_rates"]
+    assert "own motor" in describe(free.findings[0])
 
 
 def test_mounting_error_costs_bounce_like_the_closed_form():
@@ -218,8 +221,9 @@ def test_one_and_a_half_periods_bounces_and_pitches_like_the_closed_form_and_is_
     assert res.pitch_range_rad == pytest.approx(np.ptp(np.arctan(h / wb)), abs=1e-12)
     assert res.bounce_m > 0.03  # a real bounce: 40 mm on a 0.3 m square
     assert res.out_of_phase and res.whole_periods in (1, 2)
-    assert f"bounces {1000 * res.bounce_m:.2f} mm" in res.out_of_phase_note
-    assert res.out_of_phase_note in res.notes
+    (finding,) = [f for f in res.findings if f.code == "wheelbase_out_of_phase"]
+    assert finding.blocks and finding.data["bounce_m"] == res.bounce_m
+    assert f"bounces {1000 * res.bounce_m:.2f} mm" in describe(finding)
     # A wheelbase off by the tolerance costs far less.
     assert res.tolerance_cost["bounce_m"] < 0.02 * res.bounce_m
 
@@ -254,15 +258,17 @@ def test_wheelbase_within_the_build_tolerance_is_in_phase():
     pair = rs.track_for(rs.Wheel.polygon(sides=4, apothem=a))
     P = 2 * a * math.asinh(1.0)
     near = cart_phasing(pair, VehicleSpec(axles=2, wheelbase_m=2 * P + 1e-6, coupled=True))
-    assert not near.out_of_phase and near.tolerance_cost is None and not near.notes
+    assert not near.out_of_phase and near.tolerance_cost is None and not near.findings
     assert near.whole_periods == 2 and near.wheelbase_error_m == pytest.approx(1e-6, abs=1e-12)
     assert near.wheelbase_tolerance_m == 5e-4
     off = VehicleSpec(axles=2, wheelbase_m=2 * P + 6e-4, coupled=True)
     far = cart_phasing(pair, off)
     assert far.out_of_phase
     assert far.bounce_m > far.tolerance_cost["bounce_m"] > 0
-    assert "vehicle.wheelbase_periods = 2" in far.out_of_phase_note
-    assert f"{2 * P:.4f} m" in far.out_of_phase_note
+    (finding,) = far.findings
+    assert finding.data["fix_periods"] == 2 and finding.data["fix_m"] == pytest.approx(2 * P)
+    assert "vehicle.wheelbase_periods = 2" in describe(finding)
+    assert f"{2 * P:.4f} m" in describe(finding)
     assert not cart_phasing(pair, off, wheelbase_tolerance_m=1e-3).out_of_phase
 
 
@@ -273,5 +279,5 @@ def test_round_wheels_are_in_phase_at_any_wheelbase():
     wb = 0.37 * pair.track.period + 0.3
     res = cart_phasing(pair, VehicleSpec(axles=2, wheelbase_m=wb, coupled=True))
     assert abs(res.wheelbase_error_m) > 1e-2
-    assert not res.out_of_phase and not res.notes
+    assert not res.out_of_phase and not res.findings
     assert res.bounce_m <= 1e-12 and res.skid_m <= 1e-12

@@ -30,6 +30,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
+from ridesim.assess.findings import Finding
 from ridesim.errors import InputError
 from ridesim.model.vehicle import axle_offsets_m
 from ridesim.solve.pair import RollingPair
@@ -223,8 +224,8 @@ class PhasingResult:
     seat_accel_peak_m_s2 : float or None
         Peak vertical seat acceleration [m/s^2] at the given speed (``v² d²y/dx²``), keeping
         vibration up to :data:`SEAT_BAND_HZ` (see :func:`band_limited_peak_accel`).
-    notes : tuple of str
-        Plain statements for the builder.
+    findings : tuple of Finding
+        What the phasing found (codes and figures; :mod:`ridesim.render.wording` words them).
     whole_periods : int
         The whole number of track periods nearest the wheelbase (at least 1; 0 for one axle).
     wheelbase_error_m : float
@@ -244,8 +245,6 @@ class PhasingResult:
     out_of_phase : bool
         True for coupled wheels whose wheelbase costs more bounce, pitch or skid than a
         wheelbase off by the build tolerance: the cart will not ride level.
-    out_of_phase_note : str or None
-        The statement (also in ``notes``) that says so, with the figures and the fix.
     """
 
     coupled: bool
@@ -261,14 +260,13 @@ class PhasingResult:
     pitch_range_rad: float
     seat_bounce_m: float
     seat_accel_peak_m_s2: float | None
-    notes: tuple[str, ...]
+    findings: tuple[Finding, ...]
     whole_periods: int = 0
     wheelbase_error_m: float = 0.0
     skid_m: float = 0.0
     wheelbase_tolerance_m: float = 0.0
     tolerance_cost: dict | None = None
     out_of_phase: bool = False
-    out_of_phase_note: str | None = None
 
     def to_dict(self) -> dict:
         """Summary with units in the keys (JSON-ready).
@@ -294,7 +292,7 @@ class PhasingResult:
             "tolerance_cost": (None if self.tolerance_cost is None
                                else {k: float(v) for k, v in self.tolerance_cost.items()}),
             "out_of_phase": bool(self.out_of_phase),
-            "notes": list(self.notes),
+            "findings": [f.to_dict() for f in self.findings],
         }
 
 
@@ -448,14 +446,14 @@ def cart_phasing(pair: RollingPair, vehicle, *, speed_m_s: float | None = None,
     sx, sy = vehicle.seat_m
     seat = a + b * sx + sy * np.cos(pitch) - sy
     seat_acc = None
-    notes = []
+    findings: list[Finding] = []
     if speed_m_s is not None and speed_m_s != 0 and samples >= 8:
         # At steady speed v the seat height over time is h(v t); its acceleration within the
         # ISO 2631-1 band.
         seat_acc = band_limited_peak_accel(seat, L / abs(float(speed_m_s)), band)
         if band < SEAT_BAND_HZ:
-            notes.append(f"the seat acceleration estimate keeps vibration up to {band:.3g} Hz only"
-                         f" (the cart takes {L / abs(float(speed_m_s)):.3g} s a wheel turn)")
+            findings.append(Finding("seat_band_limited", {
+                "band_hz": float(band), "turn_s": float(L / abs(float(speed_m_s)))}))
     bounce = float(np.max(np.ptp(heights, axis=1)))
     tol = float(vehicle.wheelbase_tolerance_m if wheelbase_tolerance_m is None
                 else wheelbase_tolerance_m)
@@ -466,7 +464,6 @@ def cart_phasing(pair: RollingPair, vehicle, *, speed_m_s: float | None = None,
     wb_err = float(vehicle.wheelbase_m - whole_n * P) if n_ax > 1 else 0.0
     tol_cost = None
     out_of_phase = False
-    phase_note = None
     if n_ax > 1 and _judge and abs(wb_err) > tol:
         # Judge the wheelbase by what it costs against what the build tolerance costs anyway.
         tol_cost = _tolerance_cost(pair, vehicle, whole_n * P, tol, base_samples,
@@ -482,37 +479,28 @@ def cart_phasing(pair: RollingPair, vehicle, *, speed_m_s: float | None = None,
         good = f"{k_fix * P:.{_length_digits(tol)}f} m"
         if vehicle.coupled and costly:
             out_of_phase = True
-            phase_note = (
-                f"the axles are coupled but the wheelbase {vehicle.wheelbase_m:.4f} m is"
-                f" {wb_periods:.3f} track periods, not a whole number ({1000 * abs(wb_err):.2f} mm"
-                f" from {whole_n} x {P:.4f} m, more than the {1000 * tol:g} mm build tolerance):"
-                " wheels turning at one angle meet the track out of phase, drifting up to"
-                f" {math.degrees(float(phase_error.max())):.2f} deg from their ideal angles, so the"
-                f" cart bounces {1000 * bounce:.2f} mm, pitches {math.degrees(cost['pitch_range_rad']):.3f}"
-                f" deg and the wheels skid {1000 * skid:.2f} mm a wheel turn (off by the tolerance:"
-                f" {1000 * tol_cost['bounce_m']:.2f} mm, {math.degrees(tol_cost['pitch_range_rad']):.3f}"
-                f" deg, {1000 * tol_cost['skid_m']:.2f} mm); make the wheelbase {good}"
-                f" (vehicle.wheelbase_periods = {k_fix}) or uncouple the axles")
-            notes.append(phase_note)
+            findings.append(Finding("wheelbase_out_of_phase", {
+                "wheelbase_m": float(vehicle.wheelbase_m), "wheelbase_periods": float(wb_periods),
+                "wheelbase_error_m": wb_err, "whole_periods": int(whole_n), "period_m": float(P),
+                "wheelbase_tolerance_m": tol, "phase_error_max_rad": float(phase_error.max()),
+                "bounce_m": bounce, "pitch_range_rad": float(cost["pitch_range_rad"]),
+                "skid_m": float(skid), "tolerance_cost": dict(tol_cost),
+                "fix_m": float(k_fix * P), "fix_text": good, "fix_periods": int(k_fix)}))
         if not vehicle.coupled and costly:
-            notes.append(
-                f"the wheelbase is {wb_periods:.3f} track periods: the uncoupled wheels each roll"
-                " ideally but their shafts turn at different rates at each moment (a shared"
-                f" shaft would skid {1000 * skid:.2f} mm a wheel turn), so each driven wheel needs"
-                f" its own motor or a differential, or make the wheelbase {good}")
+            findings.append(Finding("wheelbase_uncoupled_rates", {
+                "wheelbase_periods": float(wb_periods), "skid_m": float(skid),
+                "fix_m": float(k_fix * P), "fix_text": good, "fix_periods": int(k_fix)}))
     if n_ax > 1 and np.any(lifted):
-        notes.append("axle(s) " + ", ".join(str(i) for i in np.flatnonzero(lifted))
-                     + " lift off the track during the cycle")
+        findings.append(Finding("axles_lift", {"axles": [int(i) for i in np.flatnonzero(lifted)]}))
     if vehicle.coupled and np.any(deltas):
-        notes.append("mounting errors on the shared shaft ("
-                     + ", ".join(f"axle {i} {math.degrees(d):+.2f} deg" for i, d in enumerate(deltas))
-                     + f") make the cart bounce {1000 * bounce:.2f} mm and pitch"
-                     f" {math.degrees(float(np.ptp(pitch))):.2f} deg")
+        findings.append(Finding("mounting_errors", {
+            "offsets_rad": [float(d) for d in deltas], "bounce_m": bounce,
+            "pitch_range_rad": float(np.ptp(pitch))}))
     return PhasingResult(
         coupled=bool(vehicle.coupled), wheelbase_periods=wb_periods,
         phase_error_rad=phase_error, x_m=x, axle_height_m=heights, pitch_rad=pitch,
         seat_height_m=seat, load_share=share, lifted=lifted,
         bounce_m=bounce, pitch_range_rad=float(np.ptp(pitch)),
-        seat_bounce_m=float(np.ptp(seat)), seat_accel_peak_m_s2=seat_acc, notes=tuple(notes),
+        seat_bounce_m=float(np.ptp(seat)), seat_accel_peak_m_s2=seat_acc, findings=tuple(findings),
         whole_periods=whole_n, wheelbase_error_m=wb_err, skid_m=skid, wheelbase_tolerance_m=tol,
-        tolerance_cost=tol_cost, out_of_phase=out_of_phase, out_of_phase_note=phase_note)
+        tolerance_cost=tol_cost, out_of_phase=out_of_phase)

@@ -35,8 +35,10 @@ from ridesim.assess.analytic import (
     shaft_speed_cycle,
 )
 from ridesim.assess.clearance import ClearanceResult, CuspSeat, clearance, cusp_seating
+from ridesim.assess.findings import Finding
 from ridesim.assess.phasing import cart_phasing
 from ridesim.errors import InputError
+from ridesim.render.wording import describe
 from ridesim.safety import SAFETY_CAUTIONS, caution_lines, with_safety
 from ridesim.scenario.build import resolve_wheelbase, solve_scenario, wheel_mass
 from ridesim.scenario.load import Scenario
@@ -70,12 +72,10 @@ class CheckResult:
     ----------
     name : str
         Scenario name.
-    rollable : bool
-        True when nothing blocks the roll (see the module notes).
-    reasons : list of str
-        What blocks the roll, each as a sentence a builder can act on (empty when rollable).
-    notes : list of str
-        Advice that does not block the roll (thin margins, drive limits, tangent corners).
+    findings : list of Finding
+        What the check found, as codes and figures (:mod:`ridesim.assess.findings`): those that
+        block the roll make ``rollable`` False; the others are advice (thin margins, drive
+        limits, tangent corners). ``reasons`` and ``notes`` word them.
     cautions : list of str
         Safety cautions carried by every check.
     speed_m_s : float or None
@@ -105,9 +105,7 @@ class CheckResult:
     """
 
     name: str
-    rollable: bool
-    reasons: list[str]
-    notes: list[str]
+    findings: list[Finding]
     cautions: list[str]
     speed_m_s: float | None
     clearance: ClearanceResult | None
@@ -119,6 +117,21 @@ class CheckResult:
     cart: dict | None = None
     shaft_drive: dict | None = None
     phases: dict = field(default_factory=dict)
+
+    @property
+    def rollable(self) -> bool:
+        """True when no finding blocks the roll."""
+        return not any(f.blocks for f in self.findings)
+
+    @property
+    def reasons(self) -> list[str]:
+        """What blocks the roll, each as a sentence a builder can act on (empty when rollable)."""
+        return [describe(f) for f in self.findings if f.blocks]
+
+    @property
+    def notes(self) -> list[str]:
+        """Advice that does not block the roll, in words."""
+        return [describe(f) for f in self.findings if not f.blocks]
 
     # ------------------------------------------------------------------ friction summary
     def _friction(self) -> dict:
@@ -156,7 +169,8 @@ class CheckResult:
         """
         cl, st = self.clearance, self.steady
         out: dict = {"name": self.name, "rollable": bool(self.rollable),
-                     "reasons": list(self.reasons), "notes": list(self.notes)}
+                     "reasons": list(self.reasons), "notes": list(self.notes),
+                     "findings": [f.to_dict() for f in self.findings]}
         if cl is None:
             out["clearance"] = {"min_m": None, "at_x_m": None}
         else:
@@ -277,10 +291,6 @@ class CheckResult:
         return "\n".join(lines)
 
 
-def _deg(rad: float) -> float:
-    return math.degrees(rad)
-
-
 def check_scenario(sc: Scenario) -> CheckResult:
     """Check whether the scenario's build will roll, and what it needs.
 
@@ -307,10 +317,9 @@ def check_scenario(sc: Scenario) -> CheckResult:
     cautions = with_safety(CHECK_CAUTIONS)
     avail = float(sc.surface.friction)
     if not pair.closed:
-        reason = (f"the wheel does not close: after {pair.lobes} track period(s) it is"
-                  f" {pair.closure_gap_rad:+.4g} rad from a full turn at track.depth_m ="
-                  f" {pair.depth:.6g} m; give track.lobes instead of depth_m to find a closing depth")
-        return CheckResult(name=sc.name, rollable=False, reasons=[reason], notes=[],
+        nc = Finding("not_closed", {"lobes": int(pair.lobes), "closure_gap_rad": float(pair.closure_gap_rad),
+                                    "depth_m": float(pair.depth)})
+        return CheckResult(name=sc.name, findings=[nc],
                            cautions=cautions, speed_m_s=None, clearance=None, seats=[],
                            steady=None, accelerating=None, friction_available=avail)
     mp = wheel_mass(sc, pair.wheel)
@@ -323,42 +332,25 @@ def check_scenario(sc: Scenario) -> CheckResult:
     if sc.drive.accel_m_s2 > 0:
         acc = analyze_cycle(pair, vehicle=sc.vehicle, surface=sc.surface, wheel_mass=mp,
                             speed_m_s=v, accel_m_s2=sc.drive.accel_m_s2)
-    reasons: list[str] = []
-    notes: list[str] = []
+    found: list[Finding] = []
     L = pair.revolution_length
 
     # -- clearance
     worst_seat = min(seats, key=lambda s: s.approach_margin_rad) if seats else None
     if cl.interferes:
-        first = cl.first_interference_x_m
-        msg = (f"the wheel's {cl.feature} cuts {1000 * -cl.min_m:.1f} mm into the track at"
-               f" x = {cl.at_x_m:.3f} m (clearance {1000 * cl.min_m:.1f} mm"
-               + (f"; the overlap starts at x = {first:.3f} m" if first is not None else "") + ")")
-        if worst_seat is not None and worst_seat.approach_margin_rad < -1e-6:
-            msg += (f": the track's cusps open only {_deg(worst_seat.opening_angle_rad):.0f} deg,"
-                    " less than the 90 deg a corner needs to come down into a cusp clear of the"
-                    " neighbouring arch; use a wheel with more sides (a regular polygon needs at"
-                    " least 4, and 5 or more leaves margin) or blunter corners")
-        else:
-            msg += ": change the wheel shape or move the axle so the outline clears the track"
-        reasons.append(msg)
+        narrow = worst_seat is not None and worst_seat.approach_margin_rad < -1e-6
+        found.append(Finding("interference", {
+            "feature": cl.feature, "clearance_m": float(cl.min_m), "at_x_m": float(cl.at_x_m),
+            "first_x_m": _f(cl.first_interference_x_m),
+            "cusp_opening_rad": float(worst_seat.opening_angle_rad) if narrow else None}))
     elif worst_seat is not None and abs(worst_seat.approach_margin_rad) <= 1e-6:
-        notes.append(
-            "the corners come down into cusps that open at exactly 90 deg, tangent to the next"
-            " arch, so they clear it only just: wear, flex or a corner radius can make them catch"
-            " (square wheels); round the corners slightly and check the track near the cusps"
-        )
+        found.append(Finding("tangent_corners", {
+            "cusp_opening_rad": float(worst_seat.opening_angle_rad)}))
     if pair.cusps and not cl.interferes:
-        notes.append(
-            f"the track has {len(pair.cusps)} corner(s) per wheel turn where the contact jumps"
-            " from one face to the next; this model treats them as exact, but a real wheel's"
-            " rounded corners and the impact there add bounce and torque spikes: run"
-            " `ridesim simulate` to see them"
-        )
+        found.append(Finding("cusps_exact_model", {"count": len(pair.cusps)}))
     spec = sc.wheel
     if spec is not None and spec.corner_radius_m > 0 and not spec.fit_track_to_corners:
-        notes.append(f"clearance was checked for sharp corners; the {1000 * spec.corner_radius_m:g}"
-                     " mm corner radius changes the contact near the cusps")
+        found.append(Finding("clearance_sharp_corners", {"corner_radius_m": float(spec.corner_radius_m)}))
 
     # -- friction and lift-off
     worst = steady if acc is None or not (acc.mu_peak > steady.mu_peak) else acc
@@ -366,32 +358,18 @@ def check_scenario(sc: Scenario) -> CheckResult:
     lift = steady.lift_off_speed_m_s
     lifted_at_speed = lift is not None and lift <= v
     if not math.isfinite(mu) or lifted_at_speed:
-        reasons.append(
-            f"a wheel leaves the track at {v:.3g} m/s: its normal load reaches zero above"
-            f" {lift if lift is not None else 0.0:.3g} m/s (the wheel's centre of mass is off its"
-            " axle, or the drive pushes too hard on a slope); run slower, balance the wheel about"
-            " its axle or add body weight"
-        )
+        found.append(Finding("lift_off", {"speed_m_s": float(v), "lift_off_speed_m_s": _f(lift)}))
     elif mu > avail:
         x_at = worst.mu_peak_x_m
-        slope = _slope_at(pair, x_at)
-        during = ""
-        if worst is acc:
-            during = (f" while accelerating at {acc.accel_m_s2:.3g} m/s^2 ({steady.mu_peak:.2f} at"
-                      " steady speed)")
-        reasons.append(
-            f"peak friction demand {mu:.2f} exceeds the surface's {avail:.2f} at x = {x_at:.3f} m,"
-            f" where the track slopes {_deg(math.atan(abs(slope))):.0f} deg{during}: the wheel"
-            " will slip there; use a grippier surface (rubber on dry concrete is about 1.0) or a"
-            " gentler track (more wheel sides, a smaller wave, a rounder wheel)"
-            + (", or accelerate more gently" if during else "")
-        )
+        found.append(Finding("friction_exceeded", {
+            "required": float(mu), "available": avail, "at_x_m": float(x_at),
+            "slope_rad": float(math.atan(abs(_slope_at(pair, x_at)))),
+            "accel_m_s2": float(acc.accel_m_s2) if worst is acc and acc is not None else None,
+            "required_steady": float(steady.mu_peak)}))
     elif mu > 0.8 * avail:
-        notes.append(f"friction margin is thin: the track needs {mu:.2f} of the surface's {avail:.2f};"
-                     " friction coefficients vary widely with dirt, moisture and wear, so measure it")
+        found.append(Finding("friction_margin_thin", {"required": float(mu), "available": avail}))
     if lift is not None and not lifted_at_speed and lift < 2.0 * v:
-        notes.append(f"the wheels would leave the track above {lift:.3g} m/s, less than twice the"
-                     f" drive's {v:.3g} m/s; limit the speed")
+        found.append(Finding("lift_off_near", {"lift_off_speed_m_s": float(lift), "speed_m_s": float(v)}))
 
     # -- several axles: phasing, pitch and seat bounce (quasi-static). Coupled axles must see
     # the same track phase: a wheelbase is judged by the bounce, pitch and skid it costs
@@ -400,9 +378,7 @@ def check_scenario(sc: Scenario) -> CheckResult:
     cart = None
     if veh.axles > 1:
         cart = cart_phasing(pair, veh, speed_m_s=v, phase_offsets_rad=veh.phase_offsets_rad)
-        if cart.out_of_phase:
-            reasons.append(cart.out_of_phase_note)
-        notes += [n for n in cart.notes if n != cart.out_of_phase_note]
+        found += list(cart.findings)
 
     # -- a constant shaft speed makes the cart surge
     shaft = None
@@ -412,17 +388,13 @@ def check_scenario(sc: Scenario) -> CheckResult:
                               speed_m_s=shaft["speed_max_m_s"], accel_m_s2=shaft["accel_peak_m_s2"])
         shaft["mu_peak_bound"] = float(max(surge.mu_peak, steady.mu_peak))
         if shaft["mu_peak_bound"] > avail:
-            notes.append(f"while surging, the contact may need friction up to"
-                         f" {shaft['mu_peak_bound']:.2f} (bound: peak surge acceleration everywhere),"
-                         f" above the surface's {avail:.2f} (steady speed: {steady.mu_peak:.2f})")
-        notes.append(
-            f"a constant shaft speed of {sc.drive.shaft_speed_rad_s:.3g} rad/s makes the ground speed"
-            f" surge between {shaft['speed_min_m_s']:.3g} and {shaft['speed_max_m_s']:.3g} m/s"
-            f" (up to {shaft['accel_peak_m_s2']:.3g} m/s^2): each motor then needs"
-            f" {shaft['peak_Nm']:.3g} N m peak, {shaft['rms_Nm']:.3g} N m r.m.s., far more than at a"
-            " steady ground speed, plus impacts where the contact jumps; a speed-regulating drive"
-            " avoids it"
-        )
+            found.append(Finding("shaft_surge_friction", {
+                "required_bound": shaft["mu_peak_bound"], "available": avail,
+                "required_steady": float(steady.mu_peak)}))
+        found.append(Finding("shaft_surge", {
+            "shaft_speed_rad_s": float(sc.drive.shaft_speed_rad_s),
+            **{k: float(shaft[k]) for k in ("speed_min_m_s", "speed_max_m_s", "accel_peak_m_s2",
+                                            "peak_Nm", "rms_Nm")}}))
 
     # -- torque by phase (per motor)
     phases = _phases(pair, sc, mp, steady)
@@ -430,20 +402,17 @@ def check_scenario(sc: Scenario) -> CheckResult:
     # -- drive
     peak_T = max(p["peak_Nm"] for p in phases.values() if p.get("peak_Nm") is not None)
     if peak_T > sc.drive.max_torque_Nm:
-        worst = max((k for k in phases if phases[k].get("peak_Nm") is not None),
-                    key=lambda k: phases[k]["peak_Nm"])
-        notes.append(f"the drive's torque limit {sc.drive.max_torque_Nm:.3g} N m per motor is below"
-                     f" the {peak_T:.3g} N m peak a motor needs ({PHASE_LABELS[worst]}); the cart"
-                     " will slow near the peaks or not start")
+        top = max((k for k in phases if phases[k].get("peak_Nm") is not None),
+                  key=lambda k: phases[k]["peak_Nm"])
+        found.append(Finding("drive_torque_limit", {
+            "limit_Nm": float(sc.drive.max_torque_Nm), "peak_Nm": float(peak_T), "phase": top,
+            "phase_label": PHASE_LABELS[top]}))
     if sc.drive.mode == "torque" and sc.drive.torque_Nm is not None:
-        tc = steady.constant_torque_Nm
-        notes.append(f"a constant {tc:.3g} N m per motor balances the rolling resistance;"
-                     f" the drive's {sc.drive.torque_Nm:.3g} N m will keep "
-                     + ("accelerating the cart: limit its speed" if sc.drive.torque_Nm > tc
-                        else "slowing the cart"))
+        found.append(Finding("torque_drive_balance", {
+            "balance_Nm": float(steady.constant_torque_Nm), "torque_Nm": float(sc.drive.torque_Nm)}))
 
     return CheckResult(
-        name=sc.name, rollable=not reasons, reasons=reasons, notes=notes, cautions=cautions,
+        name=sc.name, findings=found, cautions=cautions,
         speed_m_s=v, clearance=cl, seats=seats, steady=steady, accelerating=acc,
         friction_available=avail,
         summary={"period_m": float(pair.track.period), "revolution_length_m": float(L),
