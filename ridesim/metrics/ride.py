@@ -950,21 +950,26 @@ def _model_cautions(probes: Probes) -> list[str]:
                    " the radius). For a polygon wheel, wheel.fit_track_to_corners = true solves the"
                    " track for the rounded corners.")
     if info.get("corner_radius_source") == "wheel" and info.get("corner_radius_m") and info.get("r_max_m"):
-        # Euler-Savary: the corner arc and the valley fitted to it differ in curvature by
-        # cos(phi)/r (phi = 0 at the valley bottom), so a gap eps opens at s = sqrt(2 eps r) from
-        # the contact: 1 micrometre of error moves the contact by s and its moment by N s.
+        # Euler-Savary: the corner arc (radius rho) and the valley fitted to it differ in
+        # curvature by cos(phi)/r (phi = 0 at the valley bottom, r about r_max): a sink eps
+        # closes the gap out to s = sqrt(2 eps r) either side, and, the two centres being only
+        # about rho^2 / r apart, a phase error dx turns the contact by dx r / rho^2, moving it
+        # dx r / rho along the arc.
         from ridesim.sim.world import STANDARD_GRAVITY_M_S2
 
-        s_um = math.sqrt(2e-6 * float(info["r_max_m"]))
+        r_c, rho = float(info["r_max_m"]), float(info["corner_radius_m"])
+        s_um = math.sqrt(2e-6 * r_c)
         n_ax = max(int(probes.axle_y_m.shape[1]), 1)
         load = (float(info.get("body_mass_kg") or 0.0) / n_ax
                 + float(info.get("wheel_mass_kg") or 0.0)) * STANDARD_GRAVITY_M_S2
         out.append(f"The wheel's rounded corners seat in valleys fitted to them, which they match in"
-                   f" curvature to within cos(phi)/r: a height or phase error of 1 micrometre moves the"
-                   f" contact there by about {1e3 * s_um:.2g} mm and the shaft torque by about"
-                   f" {load * s_um:.2g} N m, so torque peaks at the corners are no finer than that (on"
-                   " a square of apothem 0.15 m at 0.5 rad/s the 10 ms peak read 2 to 3 times the"
-                   " exact 0.13 N m). Take corner torques from the analytic model (ridesim check).")
+                   f" curvature to within cos(phi)/r: 1 micrometre of sink spreads the contact there"
+                   f" over about +-{1e3 * s_um:.2g} mm, and a phase error moves it {r_c / rho:.3g} times"
+                   f" as far along the corner (10 micrometres: {1e-2 * r_c / rho:.2g} mm); each"
+                   f" millimetre is {1e-3 * load:.2g} N m of shaft torque, so torque peaks at the"
+                   " corners are no finer than that (on a square of apothem 0.15 m at 0.5 rad/s the"
+                   " 10 ms peak read 2 to 3 times the exact 0.13 N m). Take corner torques from the"
+                   " analytic model (ridesim check).")
     if info.get("body_inertia_estimated") and not info.get("pitch_held"):
         out.append("Body inertia was estimated as a box spanning the wheels; give"
                    " vehicle.body_inertia_kg_m2 for pitch figures you rely on.")
