@@ -200,6 +200,43 @@ def test_track_shapes_on_a_straight_line_make_one_block():
     np.testing.assert_allclose(sh.cache_bb().top, -0.1, atol=1e-12)
 
 
+def _top_at(pts, rho, x):
+    """Height [m] of a rounded block's surface at x, from a downward pymunk segment query."""
+    body = pymunk.Body(body_type=pymunk.Body.STATIC)
+    sh = pymunk.Poly(body, [tuple(p) for p in pts], radius=rho)
+    space = pymunk.Space()
+    space.add(body, sh)
+    hit = space.segment_query_first((x, 1.0), (x, -1.0), 0.0, pymunk.ShapeFilter())
+    return float(hit.point.y)
+
+
+def test_a_sawtooth_peak_stays_sharp_when_marked_as_a_kink():
+    """A triangle peak of turn tau rounded by rho loses rho (1/cos(tau/2) - 1) of its height
+    (the inset moves the vertex down by rho / cos(tau/2), the rounding raises it by rho:
+    elementary geometry); a peak marked as a true kink of the track keeps its height exactly."""
+    rise, run = 0.03, 0.075
+    x = np.linspace(-2 * run, 2 * run, 17)  # four edges per flank
+    y = -0.105 - rise * (1 - np.abs(np.abs(x) / run - 1))
+    xy = np.column_stack([x, y])
+
+    def peak_block(polys):
+        return [(p, r) for p, r in polys if p[:-2, 0].min() < 0.0 < p[:-2, 0].max()][0]
+
+    polys, _ = track_shapes(xy, clear_m=0.005, depth_m=0.05, max_radius_m=0.2)
+    block = peak_block(polys)
+    tau = 2 * math.atan(rise / run)
+    rho = block[1]
+    assert rho > 0
+    np.testing.assert_allclose(_top_at(*block, 0.0), -0.105 - rho * (1 / math.cos(tau / 2) - 1),
+                               atol=1e-9)
+    kink = np.isin(np.arange(17), [0, 4, 8, 12, 16])
+    polys, _ = track_shapes(xy, clear_m=0.005, depth_m=0.05, max_radius_m=0.2, kink=kink)
+    block = peak_block(polys)
+    assert block[1] == 0.0
+    # (A ray through the vertex itself may slip past it: probe just beside the peak.)
+    np.testing.assert_allclose(_top_at(*block, 1e-7), -0.105 - rise / run * 1e-7, atol=1e-12)
+
+
 def test_space_is_tuned_for_metres():
     sc = square_scenario()
     pair = solve_scenario(sc)

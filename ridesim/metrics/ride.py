@@ -51,6 +51,13 @@ __all__ = [
     "speed_stats",
     "contact_lost",
     "drive_stats",
+    "PHASE_DRIFT_FINDING_RAD",
+    "BOUNCE_GROWTH_MIN_M",
+    "BOUNCE_TREND_WINDOWS",
+    "CREEP_ITERATIONS",
+    "phase_drift_rad",
+    "bounce_trend",
+    "creep_findings",
     "AT_LIMIT_FRACTION",
     "STALL_SPEED_FRACTION",
     "SimResult",
@@ -123,6 +130,30 @@ CONTACT_FLICKER_CAUTION = 0.05
 MASS_RATIO_CAUTION = 30.0
 """Body-to-wheel mass ratio above which a result carries a solver caution (the ellipse toy with
 a 4 kg body, ratio 76, slips at 30 iterations where the analytic model says it grips)."""
+
+PHASE_DRIFT_FINDING_RAD = 0.01
+"""Phase drift [rad] of a wheel against its track above which a run carries a creep finding.
+
+An exact pair rolled without slip keeps its phase: the drift is the wheel's angle less the
+angle rolling would give at the same travelled distance. 0.01 rad puts the contact about 1 %
+of the rolling radius off its ideal place; a square wheel (apothem 0.15 m) that far out of phase
+at its cusps already bounced by 0.2 mm and read its 10 ms torque peak 2 to 6 times too high.
+"""
+
+BOUNCE_GROWTH_MIN_M = 1e-4
+"""Least rise [m] of the windowed bounce, first window to last, that counts as a growing bounce
+(a tenth of a millimetre: above the solver's own jitter on the demo builds, 0.01 to 0.1 mm)."""
+
+BOUNCE_TREND_WINDOWS = 4
+"""Most windows the settled record is cut into to follow the bounce over time (each covers at
+least one track period of travel)."""
+
+CREEP_ITERATIONS = 100
+"""Solver iterations recommended when a wheel creeps: on the square wheel of the creep tests
+(apothem 0.15 m, 0.5 rad/s, 1 ms steps) 30 iterations let the phase error grow without bound
+while 100 and more held it under 0.5 mrad over two revolutions (tracks built to 1 micrometre);
+so did a five times shorter step at 30 iterations (0.1 mrad, torque r.m.s. within 12 %), which
+the finding recommends first."""
 
 SIM_CAUTIONS = (
     "Rigid bodies: no tyre or track compliance and no bearing play; contacts are resolved in"
@@ -573,6 +604,149 @@ def contact_lost(probes: Probes) -> bool:
     return bool(np.any(run[n - 1 :] >= 1.0 - 1e-12))
 
 
+def phase_drift_rad(probes: Probes) -> np.ndarray | None:
+    """Each wheel's phase drift [rad] against its track over the run.
+
+    The wheel's angle less the angle that rolling without slip on the ideal pair gives at the
+    same axle position (``probes.rolling_angle_rad``), at the end of the run less at its start
+    (an as-built start pose may begin off the ideal phase). Negative: the wheel fell behind
+    its track (the vehicle travelled further than its wheel turned).
+
+    Parameters
+    ----------
+    probes : Probes
+        Probe record.
+
+    Returns
+    -------
+    ndarray, shape (A,), or None
+        None when the engine gives no rolling reference.
+    """
+    ref = probes.rolling_angle_rad
+    if ref is None or probes.steps == 0:
+        return None
+    ph = np.asarray(probes.wheel_angle_rad, dtype=float) - np.asarray(ref, dtype=float)
+    return ph[-1] - ph[0]
+
+
+def bounce_trend(probes: Probes) -> dict:
+    """How the axle bounce develops over the settled record.
+
+    The settled record is cut into up to :data:`BOUNCE_TREND_WINDOWS` equal windows, each at
+    least one track period of travel long (``info["track_period_m"]`` over the mean speed); the
+    peak-to-peak axle height is taken in each, worst axle, and a straight line fitted through
+    them against time.
+
+    Parameters
+    ----------
+    probes : Probes
+        Probe record.
+
+    Returns
+    -------
+    dict
+        ``trend_m_s`` (slope [m/s] of the fitted line, None with fewer than two windows),
+        ``window_bounce_m`` (list [m]), ``window_s`` (window length [s] or None) and
+        ``growing``: the bounce rose by at least :data:`BOUNCE_GROWTH_MIN_M` and by half from the
+        first window to the last, with a rising trend.
+    """
+    out = {"trend_m_s": None, "window_bounce_m": [], "window_s": None, "growing": False}
+    m = settled(probes)
+    t = probes.time_s[m]
+    y = probes.axle_y_m[m]
+    if len(t) < 4:
+        return out
+    span = float(t[-1] - t[0])
+    period = probes.info.get("track_period_m")
+    v = float(np.mean(np.abs(probes.speed_m_s[m])))
+    if period and v > 0:
+        n = int(min(BOUNCE_TREND_WINDOWS, math.floor(span * v / float(period))))
+    else:
+        n = BOUNCE_TREND_WINDOWS
+    if n < 2:
+        return out
+    edges = np.linspace(t[0], t[-1], n + 1)
+    idx = np.clip(np.searchsorted(edges, t, side="right") - 1, 0, n - 1)
+    b = np.array([float(np.max(np.ptp(y[idx == k], axis=0))) for k in range(n)])
+    mid = 0.5 * (edges[:-1] + edges[1:])
+    slope = float(np.polyfit(mid, b, 1)[0])
+    out.update(trend_m_s=slope, window_bounce_m=[float(v_) for v_ in b], window_s=span / n,
+               growing=bool(slope > 0 and b[-1] - b[0] >= BOUNCE_GROWTH_MIN_M and b[-1] >= 1.5 * b[0]))
+    return out
+
+
+def creep_findings(probes: Probes, drift: np.ndarray | None, trend: dict,
+                   slip_onset_s: float | None = None, slip_distance_m: float = 0.0) -> list[str]:
+    """Findings of a wheel creeping out of phase with its track, with the cause where known.
+
+    A finding is raised when a wheel's phase drift (:func:`phase_drift_rad`) exceeds
+    :data:`PHASE_DRIFT_FINDING_RAD` or the bounce grows (:func:`bounce_trend`).
+
+    Parameters
+    ----------
+    probes : Probes
+        Probe record.
+    drift : ndarray or None
+        Phase drift [rad] per axle.
+    trend : dict
+        Result of :func:`bounce_trend`.
+    slip_onset_s : float or None
+        Onset [s] of sustained slip, None when none.
+    slip_distance_m : float
+        Rim travel [m] above the slip threshold.
+
+    Returns
+    -------
+    list of str
+        Empty when the wheels kept their phase.
+    """
+    big = drift is not None and drift.size and float(np.max(np.abs(drift))) > PHASE_DRIFT_FINDING_RAD
+    if not (big or trend.get("growing")):
+        return []
+    parts = []
+    if big:
+        a = int(np.argmax(np.abs(drift)))
+        d = float(drift[a])
+        parts.append(f"wheel {a} ended {d:+.3g} rad out of phase with its track ("
+                     + ("behind" if d < 0 else "ahead") + "; rolling without slip keeps 0, a finding"
+                     f" above {PHASE_DRIFT_FINDING_RAD:g} rad)")
+    if trend.get("growing"):
+        wb = trend["window_bounce_m"]
+        lead = "its axle bounce" if big else "the axle bounce"
+        parts.append(f"{lead} grows by {1e3 * trend['trend_m_s']:.3g} mm/s ({1e3 * wb[0]:.3g} mm"
+                     f" in the first {trend['window_s']:.3g} s, {1e3 * wb[-1]:.3g} mm in the last)")
+    if not big and drift is not None and drift.size:
+        parts[-1] += f" while the phase moved {float(drift[np.argmax(np.abs(drift))]):+.3g} rad"
+    info = probes.info
+    it = int(info.get("iterations") or 0)
+    r_roll = 0.5 * float(info.get("r_min_m") or 0.0) + 0.5 * float(info.get("r_max_m") or 0.0)
+    creep_m = float(np.max(np.abs(drift))) * r_roll if drift is not None and drift.size else 0.0
+    if slip_onset_s is not None or (slip_distance_m > 0 and slip_distance_m >= 0.5 * creep_m):
+        cause = (f"the wheel slipped at the contact ({1e3 * slip_distance_m:.3g} mm of rim scrub"
+                 " above the slip threshold): more friction, or less torque, keeps it in phase")
+    else:
+        seen = (f" (the slip probe saw {1e3 * slip_distance_m:.3g} mm of rim scrub against"
+                f" {1e3 * creep_m:.3g} mm of creep)" if slip_distance_m > 0 else "")
+        cause = (f"not slip the probe can see{seen}: the phase is lost a little at contact changes and"
+                 " a wheel out of phase meets the next arch or kink early, which loses more")
+        cr = float(info.get("corner_radius_m") or 0.0)
+        if cr > 0 and info.get("corner_radius_source") in ("default", "scenario", "option"):
+            cause += (f"; the wheel's corners are rounded by {1e3 * cr:.3g} mm while the track's"
+                      " valleys were solved for sharp ones, so each corner rocks across its valley"
+                      " instead of rolling into it (measured on a five-lobed wheel on a sawtooth:"
+                      " 2.1 mm corners let the bounce grow, 0.2 mm kept it steady)")
+        if it and it < CREEP_ITERATIONS:
+            cause += (f"; with run.iterations = {it} the contact solver's friction may not converge"
+                      " and the contact creeps")
+    rec = (f"rerun with run.timestep_s = {0.2 * probes.dt_s:g} s, or with run.iterations ="
+           f" {max(CREEP_ITERATIONS, 2 * it)} and run.timestep_s = {0.5 * probes.dt_s:g} s"
+           + (", and set wheel.corner_radius_m to the real edge radius (or, for a polygon wheel,"
+              " wheel.fit_track_to_corners = true)" if "rounded by" in cause else "")
+           + "; if the drift stays, the model cannot hold this pair in phase: read bounce and torque"
+           " peaks as those of an out-of-phase ride, not of the ideal pair")
+    return ["CREEP: " + "; ".join(parts) + f". Cause: {cause}. Recommended: {rec}."]
+
+
 # ----------------------------------------------------------------------------- result
 
 
@@ -615,6 +789,12 @@ class SimResult:
         ISO 2631-1 ride comfort at the seat point (``weighted_rms_m_s2``, ``vdv_m_s175``,
         ``crest_factor``, ``band`` and extras), or ``{"unavailable": reason}`` when the record
         is too short.
+    phase_drift_per_axle_rad : list of float or None
+        Each wheel's phase drift [rad] against its track (:func:`phase_drift_rad`).
+    bounce_trend : dict
+        See :func:`bounce_trend`.
+    findings : list of str
+        Creep findings (:func:`creep_findings`): a wheel out of phase or a growing bounce.
     """
 
     probes: Probes
@@ -633,6 +813,17 @@ class SimResult:
     slip_distance_m: float = 0.0
     cautions: list = field(default_factory=list)
     comfort: dict | None = None
+    phase_drift_per_axle_rad: list | None = None
+    bounce_trend: dict = field(default_factory=dict)
+    findings: list = field(default_factory=list)
+
+    @property
+    def phase_drift_rad(self) -> float | None:
+        """The largest phase drift [rad] over the wheels, with its sign (None when unknown)."""
+        d = self.phase_drift_per_axle_rad
+        if not d:
+            return None
+        return float(max(d, key=abs))
 
     @classmethod
     def from_probes(cls, probes: Probes, name: str = "", cautions: list | None = None) -> SimResult:
@@ -656,6 +847,9 @@ class SimResult:
         t_on, ax_on, peak = slip_onset(probes, thr)
         scrub_t, scrub_d = slip_scrub(probes, thr)
         comfort = _comfort(probes)
+        drift = phase_drift_rad(probes)
+        trend = bounce_trend(probes)
+        findings = creep_findings(probes, drift, trend, t_on, scrub_d)
         notes = with_safety(SIM_CAUTIONS, probes.info.get("cautions", []), cautions or [],
                             _model_cautions(probes), comfort.get("cautions", []))
         return cls(
@@ -665,6 +859,8 @@ class SimResult:
             torque=torque_stats(probes), speed=speed_stats(probes), contact_lost=contact_lost(probes),
             drive=drive_stats(probes), slip_time_s=scrub_t, slip_distance_m=scrub_d, cautions=notes,
             comfort={k: v for k, v in comfort.items() if k != "cautions"},
+            phase_drift_per_axle_rad=None if drift is None else [float(v) for v in drift],
+            bounce_trend=trend, findings=findings,
         )
 
     def to_dict(self) -> dict:
@@ -700,6 +896,9 @@ class SimResult:
             "engine": info.get("engine", ""),
             "axle_bounce_m": self.axle_bounce_m,
             "axle_bounce_per_axle_m": list(self.axle_bounce_per_axle_m),
+            "axle_bounce_trend_m_s": self.bounce_trend.get("trend_m_s"),
+            "axle_bounce_windows_m": list(self.bounce_trend.get("window_bounce_m", [])),
+            "bounce_growing": bool(self.bounce_trend.get("growing", False)),
             "slip": {
                 "onset_time_s": self.slip_onset_time_s,
                 "onset_axle": self.slip_onset_axle,
@@ -708,7 +907,12 @@ class SimResult:
                 "min_duration_s": SLIP_MIN_DURATION_S,
                 "time_over_threshold_s": self.slip_time_s,
                 "distance_over_threshold_m": self.slip_distance_m,
+                "phase_drift_rad": self.phase_drift_rad,
+                "phase_drift_per_axle_rad": (None if self.phase_drift_per_axle_rad is None
+                                             else list(self.phase_drift_per_axle_rad)),
+                "phase_drift_finding_rad": PHASE_DRIFT_FINDING_RAD,
             },
+            "findings": list(self.findings),
             "torque": top,
             "speed": dict(self.speed),
             "contact_lost": bool(self.contact_lost),
@@ -730,6 +934,8 @@ class SimResult:
         sl, sp, tq = d["slip"], d["speed"], d["torque"]
         onset = ("none" if sl["onset_time_s"] is None else
                  f"at {sl['onset_time_s']:.3f} s on axle {sl['onset_axle']}")
+        if sl["onset_time_s"] is None and d.get("findings"):
+            onset = "none held at the contact, yet the wheel crept out of phase (see CREEP)"
         lines = [
             f"{self.name}: simulated {d['sim_time_s']:.3g} s in {d['steps']} steps of"
             f" {1000 * d['timestep_s']:.3g} ms ({d['engine']})",
@@ -741,6 +947,15 @@ class SimResult:
             + ("" if not sl["time_over_threshold_s"] else
                f"; above the threshold {1000 * sl['time_over_threshold_s']:.0f} ms in all,"
                f" {1000 * sl['distance_over_threshold_m']:.3g} mm of rim scrub"),
+        ]
+        if sl.get("phase_drift_rad") is not None:
+            tr = d.get("axle_bounce_trend_m_s")
+            lines.append(
+                f"creep:        wheel phase {sl['phase_drift_rad']:+.3g} rad against its track at the end"
+                f" (finding above {sl['phase_drift_finding_rad']:g} rad)"
+                + ("" if tr is None else f"; bounce trend {1e3 * tr:+.3g} mm/s"
+                   + (", GROWING" if d.get("bounce_growing") else "")))
+        lines += [
             *_torque_lines(tq),
             f"speed:        mean {sp['mean_m_s']:.4g} m/s, final {sp['final_m_s']:.4g} m/s,"
             f" ripple {sp['ripple_pct'] if sp['ripple_pct'] is None else round(sp['ripple_pct'], 3)} %",
@@ -765,6 +980,7 @@ class SimResult:
                          f" {c['crest_factor']:.3g}: {c['band']}")
         elif c:
             lines.append(f"comfort:      not evaluated ({c.get('unavailable', '')})")
+        lines.extend(f"FINDING: {f}" for f in d.get("findings", []))
         lines.extend(caution_lines(d["cautions"]))
         return "\n".join(lines)
 
@@ -905,6 +1121,27 @@ def _model_cautions(probes: Probes) -> list[str]:
                    " cusps, so the wheel dips there and rocks a little out of phase (more the larger"
                    " the radius). For a polygon wheel, wheel.fit_track_to_corners = true solves the"
                    " track for the rounded corners.")
+    if info.get("corner_radius_source") == "wheel" and info.get("corner_radius_m") and info.get("r_max_m"):
+        # Euler-Savary: the corner arc (radius rho) and the valley fitted to it differ in
+        # curvature by cos(phi)/r (phi = 0 at the valley bottom, r about r_max): a sink eps
+        # closes the gap out to s = sqrt(2 eps r) either side, and, the two centres being only
+        # about rho^2 / r apart, a phase error dx turns the contact by dx r / rho^2, moving it
+        # dx r / rho along the arc.
+        from ridesim.sim.world import STANDARD_GRAVITY_M_S2
+
+        r_c, rho = float(info["r_max_m"]), float(info["corner_radius_m"])
+        s_um = math.sqrt(2e-6 * r_c)
+        n_ax = max(int(probes.axle_y_m.shape[1]), 1)
+        load = (float(info.get("body_mass_kg") or 0.0) / n_ax
+                + float(info.get("wheel_mass_kg") or 0.0)) * STANDARD_GRAVITY_M_S2
+        out.append(f"The wheel's rounded corners seat in valleys fitted to them, which they match in"
+                   f" curvature to within cos(phi)/r: 1 micrometre of sink spreads the contact there"
+                   f" over about +-{1e3 * s_um:.2g} mm, and a phase error moves it {r_c / rho:.3g} times"
+                   f" as far along the corner (10 micrometres: {1e-2 * r_c / rho:.2g} mm); each"
+                   f" millimetre is {1e-3 * load:.2g} N m of shaft torque, so torque peaks at the"
+                   " corners are no finer than that (on a square of apothem 0.15 m at 0.5 rad/s the"
+                   " 10 ms peak read 2 to 3 times the exact 0.13 N m). Take corner torques from the"
+                   " analytic model (ridesim check).")
     if info.get("body_inertia_estimated") and not info.get("pitch_held"):
         out.append("Body inertia was estimated as a box spanning the wheels; give"
                    " vehicle.body_inertia_kg_m2 for pitch figures you rely on.")

@@ -65,6 +65,10 @@ class Probes:
         Commanded ground speed [m/s] (speed mode), else None.
     info : dict
         Engine-specific facts (build settings, tolerances) with unit-suffixed keys.
+    rolling_angle_rad : ndarray, shape (N, A), or None
+        Wheel angle [rad] that rolling without slip on the ideal pair gives with the axle at
+        ``axle_x_m`` (the pair's ``wheel_angle``); None when the engine does not know it.
+        ``wheel_angle_rad - rolling_angle_rad`` is the wheel's phase against its track.
     """
 
     time_s: np.ndarray
@@ -86,6 +90,7 @@ class Probes:
     settle_s: float
     target_speed_m_s: float | None = None
     info: dict = field(default_factory=dict)
+    rolling_angle_rad: np.ndarray | None = None
 
     @property
     def steps(self) -> int:

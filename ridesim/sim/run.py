@@ -648,8 +648,11 @@ class PymunkEngine(Engine):
             "iterations": int(self.scenario.run.iterations),
             "r_min_m": w.r_min_m,
             "r_max_m": w.r_max_m,
+            "track_period_m": float(self.pair.track.period),
             "cautions": list(self._cautions),
         }
+        # The phase reference: the wheel angle rolling without slip gives at each axle's x.
+        rolling = np.asarray(self.pair.wheel_angle(ax_x.ravel()), dtype=float).reshape(ax_x.shape)
         return Probes(
             time_s=t, axle_x_m=ax_x, axle_y_m=ax_y, wheel_angle_rad=ang, wheel_rate_rad_s=rate,
             pitch_rad=pitch, speed_m_s=speed, seat_ax_m_s2=seat_ax, seat_ay_m_s2=seat_ay,
@@ -657,6 +660,7 @@ class PymunkEngine(Engine):
             shaft_torque_Nm=torque, shaft_axles=tuple(tuple(a) for a in w.drive.shaft_axles),
             dt_s=dt, settle_s=float(self.scenario.run.settle_s),
             target_speed_m_s=float(d.speed_m_s) if d.mode == "speed" else None, info=info,
+            rolling_angle_rad=rolling,
         )
 
     def _contacts(self, k: int, rows: np.ndarray):

@@ -66,6 +66,7 @@ __all__ = [
     "World",
     "Drive",
     "DEFAULT_CORNER_RADIUS_FRACTION",
+    "TRACK_TOLERANCE_FRACTION",
     "STANDARD_GRAVITY_M_S2",
     "make_space",
     "track_vertices",
@@ -103,6 +104,21 @@ millimetres across) the chord tolerance alone leaves facets of 10 degrees and mo
 rounded corner rolling through such a faceted valley hops from facet to facet (1 to 3 mm
 of bounce measured on squares and hexagons with corners of 0.5 to 1 % of the apothem)."""
 
+TRACK_TOLERANCE_FRACTION = 1e-5
+"""Default largest gap between the track polyline and the ideal track, as a fraction of the least
+wheel radius (clipped to 0.2 to 1 micrometre).
+
+A chord is shorter than the arc it spans by ``kappa^2 h^3 / 24``, so a polyline whose chords
+stand ``tol`` off a curve of curvature ``kappa`` is shorter than it by the fraction
+``kappa tol / 3`` [derived]. A wheel rolling on it without slip covers less rim per period than
+the ideal pair and falls behind its track: measured on a square wheel (apothem 0.15 m, corners
+rounded 3 mm, track fitted to them) at 1e-5 m, the wheel lost 0.1 to 0.2 mrad per half
+revolution, its corners then struck the next arch early and the phase error grew (10 mrad and
+1.5 mm of bounce after 8 s at 2 rad/s; 0.33 rad and 36 mm after 25 s at 0.5 rad/s). At 1e-6 m it
+kept its phase within 0.4 mrad over two revolutions. The smaller gap costs about 10 % in
+step rate (most track pieces are convex blocks of many edges).
+"""
+
 SLOP_M = 1e-3
 """Allowed contact overlap [m]: pymunk's default 0.1 means 10 cm at metre scale."""
 
@@ -133,9 +149,15 @@ class WorldOptions:
         Magnitude of gravity [m/s^2].
     track_tolerance_m : float or None
         Largest gap [m] between the track polyline and the ideal curve; None: the
-        default rule ``clip(1e-4 * least radius, 2e-6, 1e-5)``.
+        default rule ``clip(1e-5 * least radius, 2e-7, 1e-6)`` (see :data:`TRACK_TOLERANCE_FRACTION`).
     wheel_tolerance_m : float or None
-        Largest gap [m] between a smooth wheel's polygon and its rim; None: as the track.
+        Largest gap [m] between a smooth wheel's polygon and its rim; None: the rule
+        ``clip(1e-4 * least radius, 2e-6, 1e-5)``. Unlike the track's, it was left alone: finer
+        wheels gave no consistent gain. On the wave sculpture 3e-6 and 1e-6 m halved the
+        phase drift (0.8 to 0.3-0.4 mrad in 6 s, bounce 0.075 to 0.03 mm); on the five-lobed
+        wheel of the creep tests 3e-6 m made it worse (0.4 to 1.6 mrad in 8 s, 0.05 to
+        0.12 mm); at 1e-6 m a smooth wheel meets the 720-vertex cap of :func:`wheel_outline`,
+        whose evenly spaced vertices ran the ellipse toy 2.7 times slower.
     corner_radius_m : float or None
         Corner radius [m] overriding the scenario's ``wheel.corner_radius_m``; None: use
         the scenario's value when > 0, else :data:`DEFAULT_CORNER_RADIUS_FRACTION` of
@@ -923,7 +945,8 @@ def _miter_inset(xy: np.ndarray, r: float) -> np.ndarray:
 
 def track_shapes(xy: np.ndarray, clear_m: float, depth_m: float, max_edges: int = 48,
                  round_fraction: float = 0.9, max_radius_m: float = np.inf,
-                 joints_x_m: np.ndarray | None = None, joint_half_m: float = 0.0):
+                 joints_x_m: np.ndarray | None = None, joint_half_m: float = 0.0,
+                 kink: np.ndarray | None = None):
     """Static collision shapes for a track polyline: convex blocks on humps, segments in valleys.
 
     Where the polyline bends downwards (over a hump, or straight) the ground below it is
@@ -960,6 +983,12 @@ def track_shapes(xy: np.ndarray, clear_m: float, depth_m: float, max_edges: int 
         rounding of every hump); their own block is still limited by its edge lengths.
     joint_half_m : float
         Half-width [m] of the ramp at each joint.
+    kink : ndarray of bool, shape (M,), optional
+        True at vertices that are true kinks of the track (a sawtooth's peaks). A block holding
+        a convex kink is left unrounded: rounding would shave the peak (by
+        ``rho (1/cos(turn/2) - 1)``, 4 mm for a 43 degree peak between 5 cm edges), and a
+        wheel's notch made to sit on that peak would drop onto the shaved hump and lose its
+        phase there. Kinks are also left out of the least radius of curvature.
 
     Returns
     -------
@@ -997,9 +1026,10 @@ def track_shapes(xy: np.ndarray, clear_m: float, depth_m: float, max_edges: int 
         near = np.minimum(np.abs(xy[:, 0] - jx[np.clip(jj - 1, 0, len(jx) - 1)]),
                           np.abs(xy[:, 0] - jx[np.clip(jj, 0, len(jx) - 1)]))
         at_joint = near <= joint_half_m * (1.0 + 1e-9) + 1e-12
-        k_hump = float(np.max(kappa[~valley & ~at_joint], initial=0.0))
     else:
-        k_hump = float(np.max(kappa[~valley], initial=0.0))
+        at_joint = np.zeros(len(xy), dtype=bool)
+    is_kink = np.zeros(len(xy), dtype=bool) if kink is None else np.asarray(kink, dtype=bool)
+    k_hump = float(np.max(kappa[~valley & ~at_joint & ~is_kink], initial=0.0))
     rho_all = round_fraction / k_hump if k_hump > 0 else np.inf
     i = 0
     while i < m:
@@ -1024,6 +1054,8 @@ def track_shapes(xy: np.ndarray, clear_m: float, depth_m: float, max_edges: int 
         rho = float(min(rho, max_radius_m))
         if not math.isfinite(rho):
             rho = float(depth_m)
+        if np.any(is_kink[i : j + 1] & ~valley[i : j + 1]):
+            rho = 0.0
         lo, hi = max(i - 1, 0), min(j + 1, m)
         q = _miter_inset(xy[lo : hi + 1], rho)[i - lo : j - lo + 1] if rho > 0 else xy[i : j + 1]
         ybot = float(q[:, 1].min()) - depth_m
@@ -1080,8 +1112,10 @@ def build_world(scenario, pair, mass, options: WorldOptions | None = None) -> Wo
 
     tol = opt.track_tolerance_m
     if tol is None:
-        tol = min(max(1e-4 * r_min, 2e-6), 1e-5)
-    wtol = opt.wheel_tolerance_m if opt.wheel_tolerance_m is not None else tol
+        tol = min(max(TRACK_TOLERANCE_FRACTION * r_min, 2e-7), 1e-6)
+    wtol = opt.wheel_tolerance_m
+    if wtol is None:
+        wtol = min(max(1e-4 * r_min, 2e-6), 1e-5)
     if not (tol > 0 and wtol > 0):
         raise InputError(f"track/wheel tolerance must be > 0 m, got {tol!r}, {wtol!r}")
 
@@ -1144,11 +1178,17 @@ def build_world(scenario, pair, mass, options: WorldOptions | None = None) -> Wo
     # Track shapes need the corner radius: wheel corners meet the track at its valleys.
     cr_guess = _corner_radius(scenario, opt, r_min)
     clear = max(3.0 * cr_guess, 5.0 * opt.collision_slop_m)
+    kinks = np.asarray(pair.track.kinks, dtype=float)
+    at_kink = None
+    if len(kinks):
+        P = float(pair.track.period)
+        d = np.mod(xy[:, 0][:, None] - kinks[None, :] + 0.5 * P, P) - 0.5 * P
+        at_kink = np.any(np.abs(d) <= 1e-9 * P, axis=1)
     if joints is None:
-        polys, segs_xy = track_shapes(xy, clear, 0.5 * r_min, max_radius_m=2.0 * r_max)
+        polys, segs_xy = track_shapes(xy, clear, 0.5 * r_min, max_radius_m=2.0 * r_max, kink=at_kink)
     else:
         polys, segs_xy = track_shapes(xy, clear, 0.5 * r_min, max_radius_m=2.0 * r_max,
-                                      joints_x_m=joints, joint_half_m=JOINT_RAMP_HALF_M)
+                                      joints_x_m=joints, joint_half_m=JOINT_RAMP_HALF_M, kink=at_kink)
     shapes = []
     for pts, rho in polys:
         sh = pymunk.Poly(static, [(float(a), float(b)) for a, b in pts], radius=rho)
