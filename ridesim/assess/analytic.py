@@ -53,13 +53,13 @@ import math
 from dataclasses import dataclass, field
 
 import numpy as np
-from scipy.optimize import brentq
 
 from ridesim.assess.friction import G_STANDARD_M_S2, ContactLoads, contact_loads, cycle_nodes
 from ridesim.errors import InputError
 from ridesim.io.scenario import DriveSpec, SurfaceSpec, VehicleSpec
 from ridesim.model.vehicle import axle_offsets_m
 from ridesim.model.wheel import MassProperties
+from ridesim.roots import find_root
 from ridesim.solve.pair import RollingPair
 
 __all__ = ["AnalyticResult", "analyze_cycle", "TorqueModel", "shaft_speed_cycle"]
@@ -290,7 +290,7 @@ def _constant_torque_ripple(pair, x, w, offsets, driven_set, mp, body_mass, crr,
             return T, None
         while mean_speed(hi) < v_mean:
             hi *= 4.0
-        u0 = brentq(lambda u: mean_speed(u) - v_mean, lo, hi, xtol=1e-15, rtol=1e-13)
+        u0 = find_root(lambda u: mean_speed(u) - v_mean, lo, hi, xtol=1e-15, rtol=1e-13)
     except (ValueError, RuntimeError):
         return T, None
     v = np.sqrt(np.maximum(2.0 * (u0 + rest) / Mx, 0.0))

@@ -73,9 +73,9 @@ import math
 from dataclasses import dataclass
 
 import numpy as np
-from scipy.optimize import minimize_scalar
 
 from ridesim.errors import InputError
+from ridesim.roots import find_minimum
 from ridesim.solve.pair import RollingPair
 
 __all__ = [
@@ -509,8 +509,7 @@ class _Checker:
         def f(ph: float) -> float:
             return self._gap_at_phi(xq, c, s, ph)
 
-        res = minimize_scalar(f, bounds=(lo, hi), method="bounded",
-                              options={"xatol": 1e-12 * TWO_PI})
+        res = find_minimum(f, lo, hi, xatol=1e-12 * TWO_PI)
         g0 = f(phi0)
         if res.fun < g0:
             return float(res.fun), float(res.x)
@@ -659,8 +658,7 @@ def clearance(
     if P > 1:
         lo = float(x[k - 1]) if k > 0 else float(x[k]) - (float(x[1]) - float(x[0]))
         hi = float(x[k + 1]) if k + 1 < P else float(x[k]) + (float(x[-1]) - float(x[-2]))
-        res = minimize_scalar(lambda q: chk.refined_pose(q)[0], bounds=(lo, hi), method="bounded",
-                              options={"xatol": 1e-12 * L})
+        res = find_minimum(lambda q: chk.refined_pose(q)[0], lo, hi, xatol=1e-12 * L)
         cand = chk.refined_pose(float(res.x))
         if cand[0] < best[0]:
             best, xbest = cand, float(res.x)
@@ -752,9 +750,8 @@ def _euclid(track, px: float, py: float, gap: float) -> float:
     d2 = (xs - px) ** 2 + (ys - py) ** 2
     i = int(np.argmin(d2))
     h = xs[1] - xs[0]
-    res = minimize_scalar(lambda q: (q - px) ** 2 + (_at(track.y, q) - py) ** 2,
-                          bounds=(xs[i] - h, xs[i] + h), method="bounded",
-                          options={"xatol": 1e-14 * max(1.0, abs(px))})
+    res = find_minimum(lambda q: (q - px) ** 2 + (_at(track.y, q) - py) ** 2,
+                       xs[i] - h, xs[i] + h, xatol=1e-14 * max(1.0, abs(px)))
     d = math.sqrt(min(float(d2[i]), float(res.fun)))
     return math.copysign(min(d, w), gap)
 
