@@ -2,7 +2,8 @@
 
 Each command runs as a fresh ``python3`` process from the repository root (so this
 checkout's package is the one imported): ``import ridesim`` alone, then ``ridesim
---help``, ``solve``, ``export`` and ``check`` of the one-axle pull toy. The commands
+--help``, ``solve``, ``export`` and ``check`` of the one-axle pull toy, and ``check``
+of the one-axle wave-track sculpture ("check 2"). The commands
 are alternated round by round (every command once per round, in a rotated order),
 so load on a shared machine hits them alike; each figure is the median over the
 rounds of the child's CPU time (user + system, from ``getrusage``) and of its wall
@@ -26,7 +27,8 @@ import time
 from pathlib import Path
 
 ROOT = Path(__file__).resolve().parents[1]
-SCENARIO = "scenarios/ellipse_pull_toy.toml"
+SCENARIO = "scenarios/ellipse_pull_toy.toml"  # one axle, smooth (elliptical) wheel
+SCENARIO_2 = "scenarios/wave_track_sculpture.toml"  # one axle, wheel solved for a wave track
 TARGET = 1.5
 
 
@@ -38,6 +40,7 @@ def commands(out: str) -> dict[str, list[str]]:
         "ridesim solve": [py, "-m", "ridesim.cli", "solve", SCENARIO],
         "ridesim export": [py, "-m", "ridesim.cli", "export", SCENARIO, "--out", out],
         "ridesim check": [py, "-m", "ridesim.cli", "check", SCENARIO],
+        "ridesim check 2": [py, "-m", "ridesim.cli", "check", SCENARIO_2],
     }
 
 
