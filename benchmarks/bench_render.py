@@ -101,8 +101,8 @@ def main() -> int:
           f" load average {os.getloadavg()[0]:.1f}")
     print(f"scenario: {sc.name}; {args.repeat} paired repeats, alternated; medians")
     jobs = {
-        "render (5 plots + 4 s clip)": lambda out: render_scenario(sc, out),
-        "report (check, motor, simulation, 9 plots, clip)": lambda out: write_report(sc, out),
+        "render (5 plots + 4 s clip)": ("render", lambda out: render_scenario(sc, out)),
+        "report (check, motor, simulation, 9 plots, clip)": ("report", lambda out: write_report(sc, out)),
     }
     with tempfile.TemporaryDirectory() as tmp:
         tmp = Path(tmp)
@@ -112,18 +112,19 @@ def main() -> int:
         print()
         print(f"{'command':<50}{'previous':>18}{'current':>18}{'speed-up':>16}")
         print(f"{'':<50}{'CPU / wall [s]':>18}{'CPU / wall [s]':>18}{'CPU / wall':>16}")
-        for label, job in jobs.items():
+        for label, (short, job) in jobs.items():
             t = {"previous": [], "current": []}
             for r in range(args.repeat):
                 for key, which in (("previous", Path_.previous), ("current", Path_.current)):
                     Path_.use(which)
-                    t[key].append(timed(lambda key=key, r=r, job=job: job(tmp / f"{key}{r}")))
+                    out = tmp / short / f"{key}{r}"
+                    t[key].append(timed(lambda job=job, out=out: job(out)))
             med = {k: (statistics.median(c for c, _ in v), statistics.median(w for _, w in v))
                    for k, v in t.items()}
             (pc, pw), (cc, cw) = med["previous"], med["current"]
             print(f"{label:<50}{pc:>8.2f} / {pw:<7.2f}{cc:>10.2f} / {cw:<7.2f}"
                   f"{pc / cc:>8.2f}x / {pw / cw:.2f}x")
-            n, diff = compare_pngs(tmp / "previous0", tmp / "current0")
+            n, diff = compare_pngs(tmp / short / "previous0", tmp / short / "current0")
             print(f"{'':<50}PNGs compared: {n}, differing in any pixel: {diff}")
         Path_.use(Path_.current)
     return 0
