@@ -262,15 +262,24 @@ _COMMANDS: dict[str, tuple[Callable, str]] = {
 
 
 def _available() -> dict[str, tuple[Callable, str]]:
-    """Commands whose layer is installed (the CLI lists only what works)."""
-    import importlib.util
+    """Commands whose layer is installed (the CLI lists only what works).
 
-    need = {"check": "ridesim.jobs.check", "simulate": "ridesim.metrics.ride"}
+    The modules are looked for, not imported: ``importlib.util.find_spec`` of a
+    submodule would import its package (and a package's ``__init__`` may import a whole layer),
+    which would make ``--help`` as slow as ``check``.
+    """
+    from importlib.machinery import PathFinder
+
+    here = [str(Path(__file__).resolve().parent)]
+    need = {"check": ("jobs", "check"), "simulate": ("jobs", "simulate")}
     out = {}
     for name, entry in _COMMANDS.items():
         mod = need.get(name)
-        if mod is None or importlib.util.find_spec(mod) is not None:
-            out[name] = entry
+        if mod is not None:
+            pkg = PathFinder.find_spec(mod[0], here)
+            if pkg is None or PathFinder.find_spec(mod[1], pkg.submodule_search_locations) is None:
+                continue
+        out[name] = entry
     return out
 
 

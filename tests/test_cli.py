@@ -306,3 +306,25 @@ def test_solve_lists_whole_period_wheelbases_for_rounded_corners_too(tmp_path, c
     saved = json.loads((tmp_path / "solve.json").read_text())
     assert saved["whole_period_wheelbase_periods"] == [2, 3]
     assert saved["whole_period_wheelbases_m"] == pytest.approx([2 * P, 3 * P], rel=1e-12)
+
+
+@pytest.mark.parametrize("args", [
+    ["--help"],
+    ["solve", "ellipse_pull_toy.toml"],
+    ["check", "ellipse_pull_toy.toml"],
+    ["check", "wave_track_sculpture.toml"],
+    ["export", "wave_track_sculpture.toml", "--out", "{tmp}"],
+])
+def test_light_commands_do_not_import_heavy_modules(args, tmp_path):
+    # Light commands must start fast (DEVELOPERS.md: heavy imports happen where used). Which
+    # modules a command loads is a property of the code, not of the machine: list them.
+    argv = [a.replace("{tmp}", str(tmp_path)) if a.endswith("}") else
+            (str(SCENARIOS / a) if a.endswith(".toml") else a) for a in args]
+    code = ("import sys, io, contextlib\nfrom ridesim.cli import main\n"
+            "with contextlib.redirect_stdout(io.StringIO()):\n"
+            f"    rc = main({argv!r})\n"
+            "heavy = ('scipy.optimize', 'scipy.fft', 'matplotlib', 'pymunk', 'PIL', 'ridesim.sim.world')\n"
+            "print(rc, sorted(m for m in heavy if m in sys.modules))\n")
+    res = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True, cwd=ROOT)
+    assert res.returncode == 0, res.stderr
+    assert res.stdout.split() == ["0", "[]"], res.stdout

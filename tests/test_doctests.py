@@ -17,6 +17,7 @@ MODULES = [
     "ridesim.metrics.comfort",
     "ridesim.model.expr",
     "ridesim.model.tolerance",
+    "ridesim.roots",
 ]
 
 

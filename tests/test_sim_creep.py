@@ -24,10 +24,11 @@ import math
 
 import numpy as np
 import pytest
-from ridesim.io.scenario import scenario_from_dict
 
+from ridesim.jobs.simulate import simulate
 from ridesim.metrics import ride
-from ridesim.metrics.ride import SimResult, simulate
+from ridesim.metrics.ride import SimResult
+from ridesim.scenario.load import scenario_from_dict
 from ridesim.sim.engine import Probes
 
 APOTHEM, RHO, BODY, WHEEL = 0.15, 0.003, 10.0, 2.0

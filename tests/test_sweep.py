@@ -166,3 +166,27 @@ def test_rows_of_another_ridesim_version_are_refused(tmp_path, monkeypatch):
     monkeypatch.undo()
     again = run_sweep(load_sweep(sweep), tmp_path / "out", workers=1)
     assert (again.done, again.computed) == (12, 0)
+
+
+def test_plot_metric_keeps_the_callers_matplotlib_backend(tmp_path):
+    # A notebook or GUI user's backend must survive a sweep plot: set a non-Agg backend
+    # first, so a plot that switched to Agg would be caught.
+    import struct
+
+    import matplotlib
+
+    from ridesim.jobs.sweep.summary import plot_metric
+
+    before = matplotlib.get_backend()
+    try:
+        matplotlib.use("pdf")
+        rows = [{"case": str(i), "a_m": str(0.1 * i), "m": str(i * i), "error": ""} for i in range(1, 5)]
+        out = plot_metric(rows, "m", ["a_m"], tmp_path / "m.png")
+        assert matplotlib.get_backend().lower() == "pdf"
+    finally:
+        matplotlib.use(before)
+    data = out.read_bytes()
+    # PNG signature and IHDR size (PNG specification, ISO/IEC 15948, 5.2 and 11.2.2):
+    # 6.4 x 4.0 in at 100 dpi is 640 x 400 px.
+    assert data[:8] == b"\x89PNG\r\n\x1a\n"
+    assert struct.unpack(">II", data[16:24]) == (640, 400)

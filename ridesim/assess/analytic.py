@@ -58,12 +58,12 @@ import math
 from dataclasses import dataclass, field
 
 import numpy as np
-from scipy.optimize import brentq
 
 from ridesim.assess.friction import G_STANDARD_M_S2, ContactLoads, contact_loads, cycle_nodes
 from ridesim.errors import InputError
 from ridesim.model.vehicle import axle_offsets_m, drive_motors, motor_name
 from ridesim.model.wheel import MassProperties
+from ridesim.roots import find_root
 from ridesim.scenario.load import DriveSpec, SurfaceSpec, VehicleSpec
 from ridesim.solve.pair import RollingPair
 
@@ -334,7 +334,7 @@ def _constant_torque_ripple(pair, x, w, offsets, driven_set, mp, body_mass, crr,
             return T, None
         while mean_speed(hi) < v_mean:
             hi *= 4.0
-        u0 = brentq(lambda u: mean_speed(u) - v_mean, lo, hi, xtol=1e-15, rtol=1e-13)
+        u0 = find_root(lambda u: mean_speed(u) - v_mean, lo, hi, xtol=1e-15, rtol=1e-13)
     except (ValueError, RuntimeError):
         return T, None
     v = np.sqrt(np.maximum(2.0 * (u0 + rest) / Mx, 0.0))

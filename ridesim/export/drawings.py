@@ -23,11 +23,11 @@ until it meets the tolerance. Polygon wheels keep their exact vertices.
 
 from __future__ import annotations
 
+import html
 import math
 import re
 from collections.abc import Callable, Sequence
 from pathlib import Path
-from xml.sax.saxutils import escape
 
 import numpy as np
 
@@ -207,14 +207,14 @@ def track_profile_mm(track, x0_m: float, x1_m: float, tol_m: float = CHORD_TOL_M
 
 def _crest_x(track) -> float:
     """Position [m] of a highest point of the track in its base period."""
-    from scipy.optimize import minimize_scalar
+    from ridesim.roots import find_minimum
 
     x = np.linspace(track.start, track.start + track.period, 4097)
     y = track.y(x)
     j = int(np.argmax(y))
     h = x[1] - x[0]
-    res = minimize_scalar(lambda q: -float(track.y(np.array(q))), bounds=(x[j] - h, x[j] + h),
-                          method="bounded", options={"xatol": 1e-12 * track.period})
+    res = find_minimum(lambda q: -float(track.y(np.array(q))), x[j] - h, x[j] + h,
+                       xatol=1e-12 * track.period)
     xc = float(res.x) if -res.fun >= y[j] else float(x[j])
     # Snap to a kink or the period start when within rounding (kinked crests, x = 0 crests).
     for cand in (track.start, *track.kinks, track.start + track.period):
@@ -313,7 +313,8 @@ class _Sheet:
     def text(self, x: float, y: float, s: str, anchor: str = "start", size: float = FONT_MM) -> None:
         """Text at sheet position [mm] (not flipped)."""
         self.ann.append(f'<text x="{_f(x)}" y="{_f(y)}" font-family="DejaVu Sans, Arial, sans-serif"'
-                        f' font-size="{_f(size)}" text-anchor="{anchor}" fill="{TEXT}">{escape(s)}</text>')
+                        f' font-size="{_f(size)}" text-anchor="{anchor}" fill="{TEXT}">'
+                        f'{html.escape(s, quote=False)}</text>')
 
     def line(self, x0: float, y0: float, x1: float, y1: float, colour: str) -> None:
         """Line between sheet positions [mm]."""
@@ -341,8 +342,8 @@ class _Sheet:
             '<?xml version="1.0" encoding="UTF-8" standalone="no"?>',
             f'<svg xmlns="http://www.w3.org/2000/svg" version="1.1" width="{w}mm" height="{h}mm"'
             f' viewBox="0 0 {w} {h}">',
-            f"<title>{escape(title)}</title>",
-            f"<desc>{escape(desc)}</desc>",
+            f"<title>{html.escape(title, quote=False)}</title>",
+            f"<desc>{html.escape(desc, quote=False)}</desc>",
             f'<metadata><rs:layout xmlns:rs="urn:ridesim:drawing-layout" units="mm" {layout}/></metadata>',
             f'<g id="geometry" transform="translate({_f(self.tx)} {_f(self.ty)}) scale(1 -1)">',
             *self.geo,

@@ -317,17 +317,15 @@ class Track:
         return self._extremes
 
     def _search_range(self) -> tuple[float, float]:
-        from scipy.optimize import minimize_scalar
+        from ridesim.roots import find_minimum
 
         x = np.linspace(self._x0, self._x0 + self._period, 4097)
         v = self._f(x)
         h = x[1] - x[0]
-        lo = minimize_scalar(lambda q: float(self._f(np.array(q))),
-                             bounds=(x[int(np.argmin(v))] - h, x[int(np.argmin(v))] + h),
-                             method="bounded", options={"xatol": 1e-13})
-        hi = minimize_scalar(lambda q: -float(self._f(np.array(q))),
-                             bounds=(x[int(np.argmax(v))] - h, x[int(np.argmax(v))] + h),
-                             method="bounded", options={"xatol": 1e-13})
+        lo = find_minimum(lambda q: float(self._f(np.array(q))),
+                          x[int(np.argmin(v))] - h, x[int(np.argmin(v))] + h, xatol=1e-13)
+        hi = find_minimum(lambda q: -float(self._f(np.array(q))),
+                          x[int(np.argmax(v))] - h, x[int(np.argmax(v))] + h, xatol=1e-13)
         return min(float(v.min()), float(lo.fun)), max(float(v.max()), -float(hi.fun))
 
     def pieces(self) -> list[tuple[float, float]]:

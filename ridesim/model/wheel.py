@@ -601,7 +601,7 @@ class Wheel:
                                      self._edge_alpha[inside]])
             k = int(np.argmin(cand_r))
             return float(cand_r[k]), float(vr.max()), float(cand_a[k] % TWO_PI)
-        from scipy.optimize import brentq
+        from ridesim.roots import find_root
 
         phi = np.linspace(0.0, TWO_PI, 4096, endpoint=False)
         r = self.radius(phi)
@@ -616,7 +616,7 @@ class Wheel:
             a, b = phi[j] - h, phi[j] + h
             sa, sb = slope(a), slope(b)
             if sa * sb < 0:  # a smooth extremum: the root of r' locates it to ~1e-11 rad
-                p = brentq(slope, a, b, xtol=1e-14)
+                p = find_root(slope, a, b, xtol=1e-14)
             else:  # a corner (or a flat): the best sample will do
                 p = phi[j]
             best.append((float(self.radius(np.array(p))), float(p) % TWO_PI))

@@ -119,7 +119,7 @@ def closure_angle(track: Track, depth: float) -> float:
 
 
 def _closing_depth(track: Track, lobes: int) -> float:
-    from scipy.optimize import brentq  # imported here: keeps `import ridesim` light
+    from ridesim.roots import find_root
 
     lo, hi = track.shape_range()
     target = TWO_PI / lobes
@@ -141,7 +141,7 @@ def _closing_depth(track: Track, lobes: int) -> float:
                     " highest point the wheel turns less than 2*pi/lobes per period (the track"
                     " is too steep or sharp at its peak); try fewer lobes or a gentler profile"
                 )
-        new = brentq(F, hi + delta, d_hi, xtol=1e-15 * span, rtol=1e-15, maxiter=200)
+        new = find_root(F, hi + delta, d_hi, xtol=1e-15 * span, rtol=1e-15, maxiter=200)
         if track.line_nodes is not None:
             return float(new)
         if root is not None and abs(new - root) <= 1e-13 * max(abs(new), span):

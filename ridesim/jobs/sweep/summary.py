@@ -87,10 +87,10 @@ def plot_metric(rows: list[dict[str, str]], metric: str, params: list[str], path
     """
     import io
 
-    import matplotlib
-
-    matplotlib.use("Agg")
-    import matplotlib.pyplot as plt
+    # A pyplot-free figure on its own Agg canvas: draws off-screen without switching the
+    # caller's backend (a notebook keeps its own) and without pyplot's figure registry.
+    from matplotlib.backends.backend_agg import FigureCanvasAgg
+    from matplotlib.figure import Figure
 
     from ridesim.export.results import write_bytes_atomic
 
@@ -99,7 +99,9 @@ def plot_metric(rows: list[dict[str, str]], metric: str, params: list[str], path
             raise ScenarioError(f"{p!r} is not a column of the sweep table")
     ok = [r for r in rows if not r.get("error") and _num(r[metric]) is not None
           and all(_num(r[p]) is not None for p in params)]
-    fig, ax = plt.subplots(figsize=(6.4, 4.0), dpi=100)
+    fig = Figure(figsize=(6.4, 4.0), dpi=100)
+    FigureCanvasAgg(fig)
+    ax = fig.subplots()
     if len(params) == 1:
         xs = sorted({_num(r[params[0]]) for r in ok})
         groups = {x: [_num(r[metric]) for r in ok if _num(r[params[0]]) == x] for x in xs}
@@ -121,5 +123,4 @@ def plot_metric(rows: list[dict[str, str]], metric: str, params: list[str], path
     fig.tight_layout()
     buf = io.BytesIO()
     fig.savefig(buf, format="png")
-    plt.close(fig)
     return write_bytes_atomic(path, buf.getvalue())
