@@ -220,7 +220,7 @@ class AnalyticResult:
             ``name``, ``axles``, ``peak_Nm``, ``rms_Nm``, ``mean_Nm`` [N m],
             ``max_shaft_speed_rad_s`` [rad/s], ``peak_power_W`` and ``mean_power_W`` [W].
         """
-        if self.motor_torque_Nm is None:
+        if self.motor_torque_Nm is None or self.motor_speed_rad_s is None or self.motor_power_W is None:
             return []
         w = np.asarray(self.weight_m, dtype=float)
         ws = float(w.sum())
@@ -454,6 +454,7 @@ def analyze_cycle(
     N0 = np.vstack([c.normal_N for c in l0])
     N2 = np.vstack([c.normal_N for c in l1]) - N0
     scale = max(float(np.max(np.abs(N0))), 1e-300)
+    lift: float | None
     if np.any(N0 <= 0):
         lift = 0.0
     else:
@@ -715,7 +716,7 @@ def phase_figures(t_s, torque_Nm, shaft_speed_rad_s, window_s) -> dict:
         out["motors"] = []
         return out
     T, W = tq[:, m], om[:, m]
-    per = []
+    per: list[dict[str, float]] = []
     for k in range(T.shape[0]):
         per.append({"peak_Nm": float(np.max(np.abs(T[k]))),
                     "rms_Nm": float(np.sqrt(np.mean(T[k] ** 2))),
@@ -723,8 +724,8 @@ def phase_figures(t_s, torque_Nm, shaft_speed_rad_s, window_s) -> dict:
                     "max_shaft_speed_rad_s": float(np.max(np.abs(W[k]))),
                     "peak_power_W": float(np.max(T[k] * W[k]))})
     worst = max(range(len(per)), key=lambda k: per[k]["rms_Nm"])
-    for k in keys:
-        out[k] = max(p[k] for p in per) if k != "mean_Nm" else per[worst][k]
+    for key in keys:
+        out[key] = max(p[key] for p in per) if key != "mean_Nm" else per[worst][key]
     out["motors"] = per
     return out
 

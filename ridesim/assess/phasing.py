@@ -99,6 +99,7 @@ class _Rim:
     def __init__(self, pair: RollingPair, n_smooth: int = 720, per_edge: int = 24) -> None:
         w = pair.wheel
         self.wheel = w
+        self.v: np.ndarray | None
         if w.is_polygon:
             self.v = np.asarray(w.vertices)
             self.n = len(self.v)

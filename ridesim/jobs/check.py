@@ -23,6 +23,7 @@ from __future__ import annotations
 
 import math
 from dataclasses import dataclass, field
+from typing import Any
 
 import numpy as np
 
@@ -190,7 +191,7 @@ class CheckResult:
             by_phase = {k: {kk: vv for kk, vv in v.items() if kk != "motors"}
                         for k, v in self.phases.items()}
             peaks = {k: v["peak_Nm"] for k, v in by_phase.items() if v.get("peak_Nm") is not None}
-            top = max(peaks, key=peaks.get) if peaks else "cruise"
+            top = max(peaks, key=lambda k: peaks[k]) if peaks else "cruise"
             tq = {"per": "motor",
                   "peak_Nm": float(peaks.get(top, st.torque_peak_Nm)),
                   "peak_phase": top,
@@ -342,7 +343,8 @@ def check_scenario(sc: Scenario) -> CheckResult:
         found.append(Finding("interference", {
             "feature": cl.feature, "clearance_m": float(cl.min_m), "at_x_m": float(cl.at_x_m),
             "first_x_m": _f(cl.first_interference_x_m),
-            "cusp_opening_rad": float(worst_seat.opening_angle_rad) if narrow else None}))
+            "cusp_opening_rad": (float(worst_seat.opening_angle_rad)
+                                 if narrow and worst_seat is not None else None)}))
     elif worst_seat is not None and abs(worst_seat.approach_margin_rad) <= 1e-6:
         found.append(Finding("tangent_corners", {
             "cusp_opening_rad": float(worst_seat.opening_angle_rad)}))
@@ -434,10 +436,11 @@ def _phases(pair, sc: Scenario, mp, steady: AnalyticResult) -> dict:
     """
     v = float(steady.speed_m_s)
     L = float(pair.revolution_length)
-    cruise = {"window_s": None, "peak_Nm": float(steady.torque_peak_Nm),
+    cruise: dict[str, Any] = {"window_s": None, "peak_Nm": float(steady.torque_peak_Nm),
               "rms_Nm": float(steady.torque_rms_Nm), "mean_Nm": float(steady.torque_mean_Nm),
               "max_shaft_speed_rad_s": float(steady.shaft_speed_max_rad_s),
-              "peak_power_W": float(np.max(steady.motor_power_W)) if steady.motors else 0.0,
+              "peak_power_W": (float(np.max(steady.motor_power_W))
+                               if steady.motors and steady.motor_power_W is not None else 0.0),
               "covers": f"at {v:.3g} m/s over one wheel revolution"
                         + (f" ({L / v:.3g} s)" if v > 0 else "")}
     accel = float(sc.drive.accel_m_s2)

@@ -267,7 +267,7 @@ def weighting_response(freq_hz: Any, weighting: str = "k") -> np.ndarray:
     h = 1.0 / (1.0 + w1 / (w.q1 * s) + w1**2 / s**2)  # high-pass
     h = h / (1.0 + s / (w.q1 * w2) + s**2 / w2**2)  # low-pass
     h = h * (1.0 + s / w3) / (1.0 + s / (w.q4 * w4) + s**2 / w4**2)  # acceleration-velocity transition
-    if w.f5_hz is not None:
+    if w.f5_hz is not None and w.f6_hz is not None and w.q5 is not None and w.q6 is not None:
         w5, w6 = two_pi * w.f5_hz, two_pi * w.f6_hz
         h = (
             h

@@ -20,6 +20,7 @@ from __future__ import annotations
 
 import math
 from dataclasses import dataclass, field
+from typing import Any
 
 import numpy as np
 
@@ -650,7 +651,8 @@ def bounce_trend(probes: Probes) -> dict:
         ``growing``: the bounce rose by at least :data:`BOUNCE_GROWTH_MIN_M` and by half from the
         first window to the last, with a rising trend.
     """
-    out = {"trend_m_s": None, "window_bounce_m": [], "window_s": None, "growing": False}
+    out: dict[str, Any] = {"trend_m_s": None, "window_bounce_m": [], "window_s": None,
+                           "growing": False}
     m = settled(probes)
     t = probes.time_s[m]
     y = probes.axle_y_m[m]
@@ -704,7 +706,7 @@ def creep_findings(probes: Probes, drift: np.ndarray | None, trend: dict,
     if not (big or trend.get("growing")):
         return []
     parts = []
-    if big:
+    if big and drift is not None:
         a = int(np.argmax(np.abs(drift)))
         d = float(drift[a])
         parts.append(f"wheel {a} ended {d:+.3g} rad out of phase with its track ("
@@ -873,7 +875,7 @@ class SimResult:
         dict
         """
         tq = self.torque
-        top = {
+        top: dict[str, Any] = {
             "per": "motor",
             "peak_Nm": max((t["peak_Nm"] for t in tq), default=0.0),
             "rms_Nm": max((t["rms_Nm"] for t in tq), default=0.0),

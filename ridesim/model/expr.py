@@ -191,7 +191,8 @@ def _tokenize(text: str, fail: Callable[[str], FormulaError]) -> list[_Token]:
         if kind == _NUM:
             rest = text[end:]
             if rest[:1] == "." or re.match(r"[eE][+-](?![0-9])", rest):
-                bad = re.match(r"[0-9.eE+-]*", text[pos:]).group()
+                bad_m = re.match(r"[0-9.eE+-]*", text[pos:])
+                bad = bad_m.group() if bad_m else text[pos:end]
                 raise fail(
                     f"malformed number '{bad}' at position {pos}; write numbers like 2, 0.5, .5 or 1e-3"
                 )
@@ -199,7 +200,7 @@ def _tokenize(text: str, fail: Callable[[str], FormulaError]) -> list[_Token]:
             if not np.isfinite(value):
                 raise fail(f"number '{m.group()}' at position {pos} is too large for a float")
         if kind != "ws":
-            tokens.append(_Token(kind, m.group(), pos))
+            tokens.append(_Token(str(kind), m.group(), pos))
         pos = end
     tokens.append(_Token(_END, "", n))
     return tokens
@@ -474,7 +475,7 @@ def _compile(root: _Node) -> tuple[tuple[int, Any], ...]:
             stack.pop()
         elif isinstance(item, _Node):
             stack.append(item.steps())
-        else:
+        elif isinstance(item, tuple):
             program.append(item)
     return tuple(program)
 
@@ -655,7 +656,7 @@ def _call(name: str, *args: _Node) -> _Node:
 
 
 def _select(op: str, a: _Node, b: _Node, p: _Node, q: _Node) -> _Node:
-    if _all_const(p, q) and p.value == q.value:
+    if isinstance(p, _Const) and isinstance(q, _Const) and p.value == q.value:
         return p
     return _Select(op, a, b, p, q)
 

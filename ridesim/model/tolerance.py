@@ -29,6 +29,7 @@ from __future__ import annotations
 
 import math
 from dataclasses import dataclass
+from typing import Any
 
 import numpy as np
 
@@ -288,7 +289,7 @@ class AsBuilt:
         -------
         AsBuilt
         """
-        kw = {}
+        kw: dict[str, Any] = {}
         w = getattr(scenario, "wheel", None)
         if w is not None:
             kw["scale"] = getattr(w, "scale", 1.0)

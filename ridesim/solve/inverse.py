@@ -147,7 +147,7 @@ def _closing_depth(track: Track, lobes: int) -> float:
         if root is not None and abs(new - root) <= 1e-13 * max(abs(new), span):
             return float(new)
         root = new
-    return float(root)
+    return float(new)
 
 
 def closure_depths(track: Track, max_lobes: int = 6) -> list[tuple[int, float]]:
@@ -218,6 +218,7 @@ def wheel_for(
         gap = n * theta_p - TWO_PI
     closed = abs(gap) <= 1e-9
     lowered = track.lowered(D)
+    rmap: SpiralMap | TableMap
     if track.line_nodes is not None:
         rmap = SpiralMap(track.line_nodes, D)
         corners_x = track.line_nodes[:-1, 0]

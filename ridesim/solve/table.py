@@ -170,15 +170,15 @@ def _cells_for(
     from ``initial_cells`` spread over the pieces between ``breaks``; they are only ever
     bisected, so no cell straddles a break.
     """
-    breaks = np.asarray(breaks, dtype=float)
+    breaks_a = np.asarray(breaks, dtype=float)
     pending = []
     if initial_edges is not None:
         e = np.asarray(initial_edges, dtype=float)
         pending = [(lo, hi, np.inf) for lo, hi in zip(e[:-1], e[1:], strict=True) if hi > lo]
-    for a, b in zip(breaks[:-1], breaks[1:], strict=True) if initial_edges is None else ():
+    for a, b in zip(breaks_a[:-1], breaks_a[1:], strict=True) if initial_edges is None else ():
         if b <= a:
             continue
-        k = max(1, initial_cells * (b - a) / (breaks[-1] - breaks[0]))
+        k = max(1, initial_cells * (b - a) / (breaks_a[-1] - breaks_a[0]))
         e = np.linspace(a, b, int(np.ceil(k)) + 1)
         pending.extend((lo, hi, np.inf) for lo, hi in zip(e[:-1], e[1:], strict=True))
     done: list[tuple[float, float, np.ndarray]] = []
@@ -210,7 +210,7 @@ def _cells_for(
         # the rounding noise of g itself (an ill-conditioned shape, e.g. an axle a hair from
         # the rim): more cells cannot help, so the cell is accepted at that noise level.
         noise = (tail <= 1e-9 * scale) & (tail > 0.25 * parent_tail)
-        ok = (tail <= tol * scale) | noise | (half <= 1e-9 * (breaks[-1] - breaks[0]))
+        ok = (tail <= tol * scale) | noise | (half <= 1e-9 * (breaks_a[-1] - breaks_a[0]))
         for i in np.flatnonzero(ok):
             done.append((lo[i], hi[i], vals[i]))
         pending = []
