@@ -389,16 +389,7 @@ def analyze_cycle(
     if not isinstance(surface, SurfaceSpec):
         raise InputError(f"surface must be a SurfaceSpec, got {type(surface).__name__}")
     L = float(pair.revolution_length)
-    if speed_m_s is None:
-        if drive is None:
-            raise InputError("give speed_m_s (m/s) or a drive to take it from")
-        if drive.mode == "shaft_speed" and drive.shaft_speed_rad_s is not None:
-            speed_m_s = drive.shaft_speed_rad_s * L / TWO_PI
-        else:
-            speed_m_s = drive.speed_m_s
-    v = float(speed_m_s)
-    if not (math.isfinite(v) and v >= 0):
-        raise InputError(f"speed_m_s must be >= 0 m/s, got {speed_m_s!r}")
+    v = _cycle_speed(L, speed_m_s, drive)
     a = float(accel_m_s2)
     if not math.isfinite(a):
         raise InputError(f"accel_m_s2 must be finite, got {accel_m_s2!r}")
@@ -410,61 +401,29 @@ def analyze_cycle(
     driven = tuple(range(n_ax)) if vehicle.coupled else tuple(vehicle.driven_axle_indices)
     x, w = cycle_nodes(pair, samples, offsets)
 
-    loads = _vehicle_loads(pair, x, offsets, driven, v=v, a=a, mp=wheel_mass, body_mass=body,
-                           crr=crr, g=g)
+    def loads_at(v_: float, a_: float):
+        return _vehicle_loads(pair, x, offsets, driven, v=v_, a=a_, mp=wheel_mass, body_mass=body,
+                              crr=crr, g=g)
+
+    loads = loads_at(v, a)
 
     def stack(name):
         return np.vstack([getattr(c, name) for c in loads])
 
     wd = stack("shaft_speed_rad_s")
-    wdd = stack("shaft_accel_rad_s2")
-    N = stack("normal_N")
-    Ft = stack("tangential_N")
     T = stack("torque_Nm")
     mu = stack("mu_required")
     P = T * wd
-    wsum = float(w.sum())
-    d = list(driven)
-    Td = T[d]
     # One motor per shaft: its torque is the sum over the axles it turns, its speed theirs.
     motors = drive_motors(n_ax, vehicle.coupled, driven)
-    MT = np.vstack([T[list(ax)].sum(axis=0) for ax in motors]) if motors else np.zeros((0, x.size))
-    MW = np.vstack([wd[ax[0]] for ax in motors]) if motors else np.zeros((0, x.size))
-    MP = np.vstack([P[list(ax)].sum(axis=0) for ax in motors]) if motors else np.zeros((0, x.size))
-    rms = np.sqrt((MT**2 @ w) / wsum)
-    mean = (MT @ w) / wsum
-    pmean = (MP @ w) / wsum
-    k_rms = int(np.argmax(rms)) if motors else 0
-    wheel_rms = np.sqrt((Td**2 @ w) / wsum)
-    chain_peak = chain_rms = None
-    if vehicle.coupled and motors:
-        chain_peak = float(np.max(np.abs(MT)))
-        chain_rms = float(rms[k_rms])
+    mf = _motor_figures(T, wd, P, w, motors, driven, coupled=bool(vehicle.coupled))
     # Friction peak over all wheels.
     mu_f = np.where(np.isfinite(mu), mu, np.inf)
     ia, ix = np.unravel_index(int(np.argmax(mu_f)), mu_f.shape)
-    mu_peak = float(mu_f[ia, ix])
-    mu_x = float(np.mod(x[ix] + offsets[ia], L))
-
-    # Lift-off: normal load linear in v^2 at steady speed.
-    l0 = _vehicle_loads(pair, x, offsets, driven, v=0.0, a=0.0, mp=wheel_mass, body_mass=body,
-                        crr=crr, g=g)
-    l1 = _vehicle_loads(pair, x, offsets, driven, v=1.0, a=0.0, mp=wheel_mass, body_mass=body,
-                        crr=crr, g=g)
-    N0 = np.vstack([c.normal_N for c in l0])
-    N2 = np.vstack([c.normal_N for c in l1]) - N0
-    scale = max(float(np.max(np.abs(N0))), 1e-300)
-    lift: float | None
-    if np.any(N0 <= 0):
-        lift = 0.0
-    else:
-        falling = N2 < -1e-12 * scale
-        lift = float(np.sqrt(np.min(N0[falling] / -N2[falling]))) if np.any(falling) else None
+    lift = _lift_off_speed(loads_at(0.0, 0.0), loads_at(1.0, 0.0))
 
     rmin, rmax, _ = pair.wheel.extremes()
-    r_mean = L / TWO_PI
-    steady = loads if a == 0.0 else _vehicle_loads(pair, x, offsets, driven, v=v, a=0.0,
-                                                    mp=wheel_mass, body_mass=body, crr=crr, g=g)
+    steady = loads if a == 0.0 else loads_at(v, 0.0)
     T_const, ripple_T = _constant_torque_ripple(pair, x, w, offsets, driven, wheel_mass, body, crr,
                                                 g, max(v, 1e-9), steady)
     with np.errstate(invalid="ignore", divide="ignore"):
@@ -472,23 +431,81 @@ def analyze_cycle(
     return AnalyticResult(
         speed_m_s=v, accel_m_s2=a, x_m=x, t_s=t, weight_m=w, offsets_m=offsets, driven=driven,
         wheel_x_m=np.vstack([x + o for o in offsets]),
-        shaft_speed_rad_s=wd, shaft_accel_rad_s2=wdd, normal_load_N=N, tangential_load_N=Ft,
+        shaft_speed_rad_s=wd, shaft_accel_rad_s2=stack("shaft_accel_rad_s2"),
+        normal_load_N=stack("normal_N"), tangential_load_N=stack("tangential_N"),
         torque_Nm=T, power_W=P, mu_required=mu,
-        torque_peak_Nm=float(np.max(np.abs(MT))) if motors else 0.0,
-        torque_rms_Nm=float(rms[k_rms]) if motors else 0.0,
-        torque_mean_Nm=float(mean[k_rms]) if motors else 0.0,
         shaft_speed_max_rad_s=float(v / rmin), shaft_speed_min_rad_s=float(v / rmax),
-        power_peak_W=float(np.max(np.abs(MP))) if motors else 0.0,
-        power_mean_W=float(np.max(pmean)) if motors else 0.0,
-        chain_torque_peak_Nm=chain_peak, chain_torque_rms_Nm=chain_rms,
-        mu_peak=mu_peak, mu_peak_x_m=mu_x, mu_peak_axle=int(ia), lift_off_speed_m_s=lift,
-        shaft_speed_drive_ripple=float((rmax - rmin) / r_mean),
+        mu_peak=float(mu_f[ia, ix]), mu_peak_x_m=float(np.mod(x[ix] + offsets[ia], L)),
+        mu_peak_axle=int(ia), lift_off_speed_m_s=lift,
+        shaft_speed_drive_ripple=float((rmax - rmin) / (L / TWO_PI)),
         shaft_speed_drive_surge=float(rmax / rmin),
         constant_torque_Nm=float(T_const) * (len(motors[0]) if motors else 1),
-        constant_torque_ripple=ripple_T, motors=motors, motor_torque_Nm=MT, motor_speed_rad_s=MW,
-        motor_power_W=MP, wheel_torque_peak_Nm=float(np.max(np.abs(Td))) if d else 0.0,
-        wheel_torque_rms_Nm=float(np.max(wheel_rms)) if d else 0.0,
+        constant_torque_ripple=ripple_T, motors=motors, **mf,
     )
+
+
+def _cycle_speed(L: float, speed_m_s: float | None, drive: DriveSpec | None) -> float:
+    """The speed [m/s] a cycle is analysed at: given, or the drive's (a shaft-speed drive's mean)."""
+    if speed_m_s is None:
+        if drive is None:
+            raise InputError("give speed_m_s (m/s) or a drive to take it from")
+        if drive.mode == "shaft_speed" and drive.shaft_speed_rad_s is not None:
+            speed_m_s = drive.shaft_speed_rad_s * L / TWO_PI
+        else:
+            speed_m_s = drive.speed_m_s
+    v = float(speed_m_s)
+    if not (math.isfinite(v) and v >= 0):
+        raise InputError(f"speed_m_s must be >= 0 m/s, got {speed_m_s!r}")
+    return v
+
+
+def _motor_figures(T: np.ndarray, wd: np.ndarray, P: np.ndarray, w: np.ndarray, motors,
+                   driven, *, coupled: bool) -> dict:
+    """Per-motor torque, speed and power along the cycle, and their peak, r.m.s. and mean.
+
+    A motor's torque and power are the sums over the axles it turns; its speed is theirs. The
+    headline figures are the most loaded motor's (largest r.m.s.).
+    """
+    wsum = float(w.sum())
+    d = list(driven)
+    Td = T[d]
+    n = T.shape[1]
+    MT = np.vstack([T[list(ax)].sum(axis=0) for ax in motors]) if motors else np.zeros((0, n))
+    MW = np.vstack([wd[ax[0]] for ax in motors]) if motors else np.zeros((0, n))
+    MP = np.vstack([P[list(ax)].sum(axis=0) for ax in motors]) if motors else np.zeros((0, n))
+    rms = np.sqrt((MT**2 @ w) / wsum)
+    mean = (MT @ w) / wsum
+    pmean = (MP @ w) / wsum
+    k_rms = int(np.argmax(rms)) if motors else 0
+    wheel_rms = np.sqrt((Td**2 @ w) / wsum)
+    chain = coupled and bool(motors)
+    return {
+        "torque_peak_Nm": float(np.max(np.abs(MT))) if motors else 0.0,
+        "torque_rms_Nm": float(rms[k_rms]) if motors else 0.0,
+        "torque_mean_Nm": float(mean[k_rms]) if motors else 0.0,
+        "power_peak_W": float(np.max(np.abs(MP))) if motors else 0.0,
+        "power_mean_W": float(np.max(pmean)) if motors else 0.0,
+        "chain_torque_peak_Nm": float(np.max(np.abs(MT))) if chain else None,
+        "chain_torque_rms_Nm": float(rms[k_rms]) if chain else None,
+        "motor_torque_Nm": MT, "motor_speed_rad_s": MW, "motor_power_W": MP,
+        "wheel_torque_peak_Nm": float(np.max(np.abs(Td))) if d else 0.0,
+        "wheel_torque_rms_Nm": float(np.max(wheel_rms)) if d else 0.0,
+    }
+
+
+def _lift_off_speed(at_rest, at_unit_speed) -> float | None:
+    """Speed [m/s] at which a normal load first reaches zero; None when none ever does.
+
+    At steady speed the normal load is linear in v^2 (``N = N0 + v^2 N2``), so the loads at
+    rest and at 1 m/s give it exactly.
+    """
+    N0 = np.vstack([c.normal_N for c in at_rest])
+    N2 = np.vstack([c.normal_N for c in at_unit_speed]) - N0
+    scale = max(float(np.max(np.abs(N0))), 1e-300)
+    if np.any(N0 <= 0):
+        return 0.0
+    falling = N2 < -1e-12 * scale
+    return float(np.sqrt(np.min(N0[falling] / -N2[falling]))) if np.any(falling) else None
 
 
 def _profiles(pair, sc, mp, v_top: float, a_ref: float):
