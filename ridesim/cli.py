@@ -152,24 +152,8 @@ def _cmd_report(sc, args) -> tuple[dict, str]:
 
 
 def _text_of(res) -> str:
-    """A result's own text, or a plain listing of its figures."""
-    if hasattr(res, "to_text"):
-        return res.to_text()
-    lines = []
-
-    def walk(d, indent=""):
-        for k, v in d.items():
-            if isinstance(v, dict):
-                lines.append(f"{indent}{k}:")
-                walk(v, indent + "  ")
-            elif isinstance(v, list) and v and isinstance(v[0], str):
-                lines.append(f"{indent}{k}:")
-                lines.extend(f"{indent}  - {x}" for x in v)
-            else:
-                lines.append(f"{indent}{k}: {v}")
-
-    walk(res.to_dict())
-    return "\n".join(lines)
+    """A result's own words (every job result has ``to_text``)."""
+    return res.to_text()
 
 
 def _cmd_sweep(args) -> int:

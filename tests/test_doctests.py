@@ -17,6 +17,9 @@ MODULES = [
     "ridesim.metrics.comfort",
     "ridesim.model.expr",
     "ridesim.model.tolerance",
+    "ridesim.export.results",
+    "ridesim.assess.findings",
+    "ridesim.render.wording",
     "ridesim.roots",
 ]
 

@@ -15,7 +15,9 @@ from typing import Any
 
 import numpy as np
 
-__all__ = ["write_text_atomic", "write_bytes_atomic", "write_json_atomic", "json_ready"]
+from ridesim.errors import InputError
+
+__all__ = ["write_text_atomic", "write_bytes_atomic", "write_json_atomic", "json_ready", "flatten"]
 
 
 def _umask() -> int:
@@ -121,3 +123,45 @@ def write_json_atomic(path: str | Path, obj: Any) -> Path:
         The destination.
     """
     return write_text_atomic(path, json.dumps(json_ready(obj), indent=2) + "\n")
+
+
+def flatten(d: dict, *, lists: str = "skip", prefix: str = "") -> dict[str, Any]:
+    """Leaf figures of a JSON dict as ``{"dotted.key": value}``: one flattener for every table.
+
+    Parameters
+    ----------
+    d : dict
+        JSON-ready data.
+    lists : {"skip", "index"}
+        ``"skip"``: lists are left out (a sweep table's cell holds one value); ``"index"``:
+        lists of dicts are indexed (``motors[0].peak_Nm``) and other lists kept whole.
+    prefix : str
+        Key prefix.
+
+    Returns
+    -------
+    dict
+
+    Examples
+    --------
+    >>> flatten({"torque": {"peak_Nm": 2.0}, "motors": [{"peak_Nm": 1.0}]}, lists="index")
+    {'torque.peak_Nm': 2.0, 'motors[0].peak_Nm': 1.0}
+    """
+    if lists not in ("skip", "index"):
+        raise InputError(f"lists must be 'skip' or 'index', got {lists!r}")
+    out: dict[str, Any] = {}
+    for k, v in d.items():
+        key = f"{prefix}{k}"
+        if isinstance(v, dict):
+            out.update(flatten(v, lists=lists, prefix=key + "."))
+        elif isinstance(v, (list, tuple)):
+            if lists == "skip":
+                continue
+            if v and all(isinstance(x, dict) for x in v):
+                for i, x in enumerate(v):
+                    out.update(flatten(x, lists=lists, prefix=f"{key}[{i}]."))
+            else:
+                out[key] = v
+        else:
+            out[key] = v
+    return out

@@ -23,7 +23,7 @@ from pathlib import Path
 from typing import Any
 
 from ridesim.errors import RidesimError, ScenarioError
-from ridesim.export.results import write_bytes_atomic, write_text_atomic
+from ridesim.export.results import flatten, write_bytes_atomic, write_text_atomic
 from ridesim.jobs.sweep.plan import SweepPlan
 
 __all__ = ["run_sweep", "run_case", "SweepOutcome", "read_journal"]
@@ -61,19 +61,6 @@ class SweepOutcome:
     interrupted: bool
 
 
-def _flatten(d: dict, prefix: str = "") -> dict:
-    out = {}
-    for k, v in d.items():
-        name = f"{prefix}{k}"
-        if isinstance(v, dict):
-            out.update(_flatten(v, name + "."))
-        elif isinstance(v, (list, tuple)):
-            continue  # lists (cusps, reasons, cautions) do not fit a table cell
-        else:
-            out[name] = v
-    return out
-
-
 def run_case(payload: dict) -> dict:
     """Run one case in a worker; never raises for a bad case.
 
@@ -99,7 +86,7 @@ def run_case(payload: dict) -> dict:
         sc = scenario_from_dict(payload["base"], base_dir=payload["base_dir"],
                                 source=payload["source"])
         sc = sc.replace_many(payload["values"]) if payload["values"] else sc
-        row["metrics"] = _flatten(run_job(payload["run"], sc))
+        row["metrics"] = flatten(run_job(payload["run"], sc), lists="skip")
     except RidesimError as exc:
         row["error"] = " ".join(str(exc).split())
     except Exception as exc:  # a failing case never stops the sweep
