@@ -18,6 +18,7 @@ MODULES = [
     "ridesim.model.expr",
     "ridesim.model.tolerance",
     "ridesim.export.results",
+    "ridesim.validate",
     "ridesim.assess.findings",
     "ridesim.render.wording",
     "ridesim.roots",

@@ -80,6 +80,7 @@ from ridesim.errors import InputError
 from ridesim.model.checks import finite as _finite
 from ridesim.model.wheel import MassProperties
 from ridesim.solve.pair import RollingPair
+from ridesim.validate import is_integer
 
 __all__ = [
     "G_STANDARD_M_S2",
@@ -283,7 +284,7 @@ def cycle_nodes(pair: RollingPair, n: int = 2048, offsets_m=(0.0,)) -> tuple[np.
         Quadrature weights [m]; they sum to ``L``.
     """
     _check_pair(pair)
-    if isinstance(n, bool) or not isinstance(n, (int, np.integer)) or n < 16:
+    if not is_integer(n) or n < 16:
         raise InputError(f"n must be an integer >= 16, got {n!r}")
     L = float(pair.revolution_length)
     cusps = np.array([c.x_m for c in pair.cusps], dtype=float)

@@ -75,6 +75,7 @@ import numpy as np
 
 from ridesim.errors import InputError
 from ridesim.safety import with_safety
+from ridesim.validate import is_number
 
 __all__ = [
     "COMFORT_REACTIONS",
@@ -178,9 +179,7 @@ def _spec(weighting: str) -> WeightingSpec:
 
 
 def _sample_rate(sample_rate_hz: Any) -> float:
-    if isinstance(sample_rate_hz, bool) or not isinstance(
-        sample_rate_hz, (int, float, np.integer, np.floating)
-    ):
+    if not is_number(sample_rate_hz):
         raise InputError(f"sample_rate_hz must be a number in Hz, got {sample_rate_hz!r}")
     fs = float(sample_rate_hz)
     if not math.isfinite(fs) or fs < MIN_SAMPLE_RATE_HZ:
@@ -211,7 +210,7 @@ def _signal(name: str, accel_m_s2: Any) -> np.ndarray:
 
 
 def _settle(settle_s: Any) -> float:
-    if isinstance(settle_s, bool) or not isinstance(settle_s, (int, float, np.integer, np.floating)):
+    if not is_number(settle_s):
         raise InputError(f"settle_s must be a number of seconds >= 0, got {settle_s!r}")
     v = float(settle_s)
     if not math.isfinite(v) or v < 0:
@@ -464,7 +463,7 @@ def comfort_band(a_w_rms: float) -> str:
     >>> comfort_band(0.9)
     'fairly uncomfortable to uncomfortable'
     """
-    if isinstance(a_w_rms, bool) or not isinstance(a_w_rms, (int, float, np.integer, np.floating)):
+    if not is_number(a_w_rms):
         raise InputError(f"a_w_rms must be a number in m/s^2, got {a_w_rms!r}")
     a = float(a_w_rms)
     if not math.isfinite(a) or a < 0:
@@ -777,11 +776,7 @@ def spectrum(
     x = _signal("accel_m_s2", accel_m_s2)
     i0 = _first_sample(x.size, fs, _settle(settle_s), "accel_m_s2")
     for name, v in (("low_hz", low_hz), ("high_hz", high_hz)):
-        if (
-            isinstance(v, bool)
-            or not isinstance(v, (int, float, np.integer, np.floating))
-            or not (_NOMINAL_HZ[0] <= float(v) <= _NOMINAL_HZ[-1])
-        ):
+        if not is_number(v) or not (_NOMINAL_HZ[0] <= float(v) <= _NOMINAL_HZ[-1]):
             raise InputError(f"{name} must be a frequency in Hz within 0.1-400, got {v!r}")
     if float(low_hz) > float(high_hz):
         raise InputError(f"low_hz must be <= high_hz, got low_hz = {low_hz!r} and high_hz = {high_hz!r}")

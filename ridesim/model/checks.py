@@ -8,6 +8,7 @@ from collections.abc import Sequence
 import numpy as np
 
 from ridesim.errors import InputError
+from ridesim.validate import is_number
 
 __all__ = ["positive", "point", "finite"]
 
@@ -26,7 +27,7 @@ def positive(name: str, value: float) -> float:
     -------
     float
     """
-    if isinstance(value, bool) or not isinstance(value, (int, float, np.floating, np.integer)):
+    if not is_number(value):
         raise InputError(f"{name} must be a number in metres, got {value!r}")
     v = float(value)
     if not math.isfinite(v) or v <= 0:
@@ -73,7 +74,7 @@ def finite(name: str, value, *, ge: float | None = None, gt: float | None = None
     -------
     float
     """
-    if isinstance(value, bool) or not isinstance(value, (int, float, np.integer, np.floating)):
+    if not is_number(value):
         raise InputError(f"{name} must be a number, got {value!r}")
     v = float(value)
     if not math.isfinite(v):

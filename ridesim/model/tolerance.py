@@ -37,6 +37,7 @@ from ridesim.errors import InputError
 from ridesim.model.checks import finite as _finite
 from ridesim.model.checks import point
 from ridesim.model.wheel import MassProperties
+from ridesim.validate import is_integer
 
 __all__ = [
     "SECTION_SEED_OFFSET",
@@ -54,7 +55,7 @@ SECTION_SEED_OFFSET = 2**20
 
 
 def _seed(value) -> int:
-    if isinstance(value, bool) or not isinstance(value, (int, np.integer)) or int(value) < 0:
+    if not is_integer(value) or int(value) < 0:
         raise InputError(f"error_seed must be an integer >= 0, got {value!r}")
     return int(value)
 

@@ -23,6 +23,7 @@ from ridesim.model.wheel import Wheel
 from ridesim.solve.forward import _check_path
 from ridesim.solve.pair import Cusp, RollingPair, SpiralMap, TableMap, _log1p_over, classify_corners
 from ridesim.solve.table import build_map
+from ridesim.validate import is_integer, is_number
 
 __all__ = ["wheel_for", "closure_depths", "closure_angle"]
 
@@ -166,7 +167,7 @@ def closure_depths(track: Track, max_lobes: int = 6) -> list[tuple[int, float]]:
         ``(lobes, depth_m)`` pairs; depth [m] is the amount ``f`` is lowered.
     """
     _check_track(track)
-    if isinstance(max_lobes, bool) or not isinstance(max_lobes, (int, np.integer)) or max_lobes < 1:
+    if not is_integer(max_lobes) or max_lobes < 1:
         raise InputError(f"max_lobes must be an integer >= 1, got {max_lobes!r}")
     return [(n, _closing_depth(track, n)) for n in range(1, int(max_lobes) + 1)]
 
@@ -203,14 +204,14 @@ def wheel_for(
         raise InputError("give lobes or depth, not both")
     if depth is None:
         n = 1 if lobes is None else lobes
-        if isinstance(n, bool) or not isinstance(n, (int, np.integer)) or n < 1:
+        if not is_integer(n) or n < 1:
             raise InputError(f"lobes must be an integer >= 1, got {lobes!r}")
         n = int(n)
         D = _closing_depth(track, n)
         theta_p = TWO_PI / n
         gap = 0.0
     else:
-        if isinstance(depth, bool) or not isinstance(depth, (int, float, np.floating)):
+        if not is_number(depth):
             raise InputError(f"depth must be a number in metres, got {depth!r}")
         D = float(depth)
         theta_p = closure_angle(track, D)

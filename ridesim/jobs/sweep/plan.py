@@ -35,6 +35,7 @@ import numpy as np
 from ridesim._version import __version__
 from ridesim.errors import ScenarioError
 from ridesim.scenario.load import Scenario, load_scenario, scenario_keys
+from ridesim.validate import is_integer, is_number
 
 __all__ = ["SweepPlan", "Case", "load_sweep", "RUNS"]
 
@@ -102,10 +103,10 @@ def _values_for(key: str, spec: Any) -> list:
             raise _fail(f'vary."{key}" must be a list or {{ from = a, to = b, count = n }},'
                         f" got keys {sorted(spec)}")
         n = spec["count"]
-        if isinstance(n, bool) or not isinstance(n, int) or n < 1:
+        if not is_integer(n) or n < 1:
             raise _fail(f'vary."{key}".count must be an integer >= 1, got {n!r}')
         a, b = spec["from"], spec["to"]
-        if not all(isinstance(v, (int, float)) and not isinstance(v, bool) for v in (a, b)):
+        if not all(is_number(v) for v in (a, b)):
             raise _fail(f'vary."{key}" from/to must be numbers, got {a!r} and {b!r}')
         if n == 1:
             return [float(a)]
@@ -201,9 +202,9 @@ def load_sweep(path: str | Path) -> SweepPlan:
             raise _fail(f'"{k}" is both varied and drawn; keep it in one of [vary], [random]')
         draws[k] = _draw_spec(k, spec)
     if draws:
-        if seed is None or isinstance(seed, bool) or not isinstance(seed, int):
+        if not is_integer(seed):
             raise _fail("random draws need an integer random.seed (so the study can be repeated)")
-        if n_rand is None or isinstance(n_rand, bool) or not isinstance(n_rand, int) or n_rand < 1:
+        if not is_integer(n_rand) or n_rand < 1:
             raise _fail("random draws need random.cases = N (an integer >= 1)")
     elif n_rand is not None:
         raise _fail("random.cases is given but no key is drawn; add e.g."

@@ -25,6 +25,7 @@ from typing import Any
 from ridesim.errors import RidesimError, ScenarioError
 from ridesim.export.results import flatten, write_bytes_atomic, write_text_atomic
 from ridesim.jobs.sweep.plan import SweepPlan
+from ridesim.validate import is_integer
 
 __all__ = ["run_sweep", "run_case", "SweepOutcome", "read_journal"]
 
@@ -208,7 +209,7 @@ def run_sweep(
                 " differs); use a new --out folder or delete the old one"
             )
     todo = [c for c in plan.cases if c.index not in rows]
-    if workers is not None and (isinstance(workers, bool) or workers < 1):
+    if workers is not None and (not is_integer(workers) or workers < 1):
         raise ScenarioError(f"--workers must be >= 1, got {workers}")
     n_workers = workers or os.cpu_count() or 1
     computed = 0
