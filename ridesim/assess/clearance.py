@@ -449,22 +449,31 @@ class _BoxTree:
         return np.where(wide, env.global_max - ylo, res)
 
     def candidates(self, x: np.ndarray, c: np.ndarray, s: np.ndarray, env: _LineEnvelope,
-                   thr: float, lower: bool = True) -> tuple[np.ndarray, np.ndarray]:
+                   thr: float, lower: bool = True, probe=None) -> tuple[np.ndarray, np.ndarray]:
         """(pose, element) pairs that no enclosing box rules out, sorted by pose then element.
 
         With ``lower``, a box goes when its bound on the least gap ``Y - track(X)`` is
         ``>= thr``; otherwise when its bound on the greatest ``track(X) - Y`` is ``< thr``.
-        ``thr`` is a scalar or one value per pose.
+        ``thr`` is a scalar or one value per pose. ``probe(pi, ki)``, with ``lower`` False,
+        gives the exact value at element ``ki`` for pose ``pi``; each level then raises a
+        pose's ``thr`` to the best value at the first element of its remaining runs (a value
+        some element attains, so the best element is never dropped).
         """
         top = len(self.levels) - 1
         runs = self.levels[top][0].shape[1]
         pi = np.repeat(np.arange(len(x)), runs)
         ni = np.tile(np.arange(runs), len(x))
-        thr = np.broadcast_to(np.asarray(thr, dtype=float), np.shape(x))
+        thr = np.array(np.broadcast_to(np.asarray(thr, dtype=float), np.shape(x)))
         for lev in range(top, -1, -1):
             bd = self.bounds(lev, ni, x[pi], c[pi], s[pi], env, lower)
             keep = bd < thr[pi] if lower else bd >= thr[pi]
-            pi, ni = pi[keep], ni[keep]
+            pi, ni, bd = pi[keep], ni[keep], bd[keep]
+            if probe is not None and not lower and pi.size:
+                val = probe(pi, ni << lev)
+                heads = np.flatnonzero(np.concatenate(([True], pi[1:] != pi[:-1])))
+                thr[pi[heads]] = np.maximum(thr[pi[heads]], np.maximum.reduceat(val, heads))
+                keep = bd >= thr[pi]
+                pi, ni = pi[keep], ni[keep]
             if lev == 0:
                 break
             # Children, in order: 2j, 2j + 1 (the last run may have one child only).
