@@ -343,6 +343,8 @@ class _LineEnvelope:
             yc.append(y0)
             mc.append(m0)
             pad.append(np.max(dev, axis=1) + lip + scale)
+        self._first = (1 << np.arange(top + 1)) - 1  # index of each level's first bin
+        self._inv_w = (1 << np.arange(top + 1)) / self.period  # bins per metre
         self.yc = np.concatenate(yc)
         self.mc = np.concatenate(mc)
         self.pad = np.concatenate(pad)
@@ -355,16 +357,17 @@ class _LineEnvelope:
         """
         width = xr - xl
         wide = width >= self.period
-        with np.errstate(divide="ignore"):
-            lev = np.floor(np.log2(self.period / np.maximum(width, 1e-300 * self.period)))
-        lev = np.clip(lev, 0, self.top).astype(np.int64)
-        nb = np.left_shift(1, lev)
-        w = self.period / nb
-        i1 = np.floor((xl - self.x0) / w).astype(np.int64)
+        # Level floor(log2(period / width)), read off the float exponent; clipped to the levels.
+        lev = np.frexp(self.period / np.maximum(width, 1e-300 * self.period))[1] - 1
+        lev = np.clip(lev, 0, self.top)
+        inv_w = self._inv_w[lev]
+        i1 = np.floor((xl - self.x0) * inv_w).astype(np.int64)
+        first = self._first[lev]
+        mask = first  # bins in a level: first + 1, a power of two
         out = []
         for ib in (i1, i1 + 1):
-            k = (nb - 1) + np.mod(ib, nb)
-            out.append((self.x0 + (ib + 0.5) * w, self.yc[k], self.mc[k], self.pad[k]))
+            k = first + np.bitwise_and(ib, mask)
+            out.append((self.x0 + (ib + 0.5) / inv_w, self.yc[k], self.mc[k], self.pad[k]))
         return out, wide
 
 
