@@ -50,11 +50,15 @@ envelope of the track (a sparse table answers range maxima for whole edges);
 only candidates that could beat the running minimum (or interfere) are
 evaluated exactly. Poses are processed in chunks so memory stays bounded.
 Runs of consecutive rim points (or edges) are held in a binary hierarchy of
-bounding discs; each pose descends it and drops a whole run when the disc's
-lowest point minus the envelope over the disc's width cannot beat the running
-minimum, so a pose costs about the logarithm of the rim size plus the few
-points near the track, not the whole rim. The points that reach the bottom
-are tested and evaluated exactly as above, so the figures are the same.
+boxes, each aligned with its run's chord (a run of a smooth rim fits in a box
+as thin as its sagitta). Each pose descends it and drops a whole run when the
+least gap between the posed box and straight upper bounds of the track (the
+tangent at the centre of a bin as wide as the box, raised to cover the track
+in the bin) cannot beat the running minimum. Near the contact the rim runs
+nearly parallel to the track, and these bounds are close to second order
+there, so a pose costs about the logarithm of the rim size plus a few rim
+elements, not the whole rim. The elements that reach the bottom are tested and
+evaluated exactly as above, so the figures are those of testing every point.
 
 Corner seating
 --------------

@@ -132,7 +132,7 @@ def _golden(f, lo: np.ndarray, hi: np.ndarray, steps: int) -> np.ndarray:
     return np.maximum(np.maximum(fc, fd), np.maximum(f(lo), f(hi)))
 
 
-def resting_height(pair: RollingPair, x_m, theta_rad, *, chunk: int = 256,
+def resting_height(pair: RollingPair, x_m, theta_rad, *, chunk: int = 2048,
                    refine: int = 40) -> np.ndarray:
     """Lowest axle height [m] at which the wheel, turned ``theta``, sits on the track at ``x``.
 
@@ -145,7 +145,7 @@ def resting_height(pair: RollingPair, x_m, theta_rad, *, chunk: int = 256,
     theta_rad : array_like
         Clockwise wheel angles [rad] (same shape as ``x_m``).
     chunk : int
-        Poses evaluated at once (bounds memory).
+        Poses evaluated at once (bounds memory; each pose keeps only a few rim runs).
     refine : int
         Golden-section steps that refine the touching rim point between samples.
 
@@ -153,6 +153,13 @@ def resting_height(pair: RollingPair, x_m, theta_rad, *, chunk: int = 256,
     -------
     ndarray
         ``max over the rim (y_track(x + p_x) - p_y)`` for each pose; 0 for the ideal pose.
+
+    Notes
+    -----
+    The best rim sample is found by branch and bound over the rim's hierarchy of boxes
+    (see :mod:`ridesim.assess.clearance`): a run of samples is dropped only when a bound
+    shows it cannot beat a gap some sample attains, so the result is that of trying every
+    sample, at a cost that grows about as the logarithm of the rim size per pose.
     """
     x = np.atleast_1d(np.asarray(x_m, dtype=float))
     th = np.broadcast_to(np.asarray(theta_rad, dtype=float), x.shape)
@@ -181,7 +188,7 @@ def resting_height(pair: RollingPair, x_m, theta_rad, *, chunk: int = 256,
         Y = -s[pi] * px0[ki] + c[pi] * py0[ki]
         return np.asarray(pair.track.y(xs[pi] + X), dtype=float) - Y
 
-    step = max(int(chunk), 2048)
+    step = max(1, int(chunk))
     for a in range(0, x.size, step):
         xs, ts = x[a:a + step], th[a:a + step]
         nq = len(xs)
