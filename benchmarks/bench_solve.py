@@ -46,6 +46,24 @@ def median_time(fn, repeat=REPEAT) -> float:
     return statistics.median(ts)
 
 
+def paired(base, ours, repeat=REPEAT) -> tuple[float, float, float]:
+    """Medians of ``base`` and ``ours`` timed alternately, and the median of the per-pair
+    ratios base/ours (a load that changes during the run affects both sides of a pair)."""
+    base()
+    ours()
+    tb, to, ratio = [], [], []
+    for _ in range(repeat):
+        t0 = time.perf_counter()
+        base()
+        t1 = time.perf_counter()
+        ours()
+        t2 = time.perf_counter()
+        tb.append(t1 - t0)
+        to.append(t2 - t1)
+        ratio.append((t1 - t0) / (t2 - t1))
+    return statistics.median(tb), statistics.median(to), statistics.median(ratio)
+
+
 def main() -> None:
     wheel = rs.Wheel.ellipse(semi_axes=(0.30, 0.20), axle=(0.05, 0.03))
     pair = rs.track_for(wheel)
@@ -83,18 +101,18 @@ def main() -> None:
     _, _, y = ours_xy()
     err_y = float(np.max(np.abs(y[pick] + r(theta[pick]))) / wheel.extremes()[1])
 
-    t_base = median_time(baseline)
-    t_ode = median_time(ode_baseline)
-    t_x = median_time(ours_x)
-    t_xy = median_time(ours_xy)
-    print(f"forward solve, ellipse with off-centre axle, {N:.0e} samples")
+    t_base, t_x, r_x = paired(baseline, ours_x)
+    _, t_xy, r_xy = paired(baseline, ours_xy)
+    t_ode, _, r_ode = paired(ode_baseline, ours_x)
+    print(f"forward solve, ellipse with off-centre axle, {N:.0e} samples"
+          " (speed-ups: medians of paired runs)")
     print(f"  baseline cumulative_simpson     : {t_base * 1e3:8.2f} ms   rel. error {err_base:.1e}")
     print(f"  ridesim x(theta)                : {t_x * 1e3:8.2f} ms   rel. error {err_ours:.1e}"
-          f"   speed-up {t_base / t_x:5.2f}x")
+          f"   speed-up {r_x:5.2f}x")
     print(f"  ridesim x and y (dense)         : {t_xy * 1e3:8.2f} ms   rel. error y {err_y:.1e}"
-          f"   speed-up {t_base / t_xy:5.2f}x")
+          f"   speed-up {r_xy:5.2f}x")
     print(f"  (reference only) ODE solver solve_ivp DOP853 dense: {t_ode * 1e3:8.2f} ms"
-          f"   rel. error {err_ode:.1e}   ridesim x(theta) {t_ode / t_x:5.1f}x faster"
+          f"   rel. error {err_ode:.1e}   ridesim x(theta) {r_ode:5.1f}x faster"
           " (this baseline flatters the solver)")
 
     # Closure-depth root find on a fresh track each time (includes its setup).
