@@ -298,12 +298,17 @@ def test_pruned_search_agrees_with_every_rim_point(wheel):
     chk = _Checker(pair, 2048, 1e-5)
     x = _pose_grid(pair, 0.0, 512)
     th = np.asarray(pair.wheel_angle(x), dtype=float)
-    g_all, _, _ = chk.evaluate(x, th, math.inf)  # every rim point, no pruning
+    g_all, j_all, t_all = chk.evaluate(x, th, math.inf, prune=False)  # every rim point
     for thr in (1e-4 * chk.rmax, 1e-7 * chk.rmax, -chk.tol):
         g_fast, _, _ = chk.evaluate(x, th, thr)
         below = g_all < thr
         np.testing.assert_allclose(g_fast[below], g_all[below], rtol=0, atol=1e-15 * chk.rmax)
         assert np.all(g_fast[~below] >= thr)
+    # With no threshold every pose's least gap, and the rim point that has it.
+    g_fast, j_fast, t_fast = chk.evaluate(x, th, math.inf)
+    np.testing.assert_allclose(g_fast, g_all, rtol=0, atol=1e-15 * chk.rmax)
+    np.testing.assert_array_equal(j_fast, j_all)
+    np.testing.assert_allclose(t_fast, t_all, rtol=0, atol=1e-12)
 
 
 def test_many_vertex_outline_clearance_matches_brute_force():

@@ -461,10 +461,11 @@ class _BoxTree:
 
         With ``lower``, a box goes when its bound on the least gap ``Y - track(X)`` is
         ``>= thr``; otherwise when its bound on the greatest ``track(X) - Y`` is ``< thr``.
-        ``thr`` is a scalar or one value per pose. ``probe(pi, ki)``, with ``lower`` False,
-        gives the exact value at element ``ki`` for pose ``pi``; each level then raises a
-        pose's ``thr`` to the best value at the first element of its remaining runs (a value
-        some element attains, so the best element is never dropped).
+        ``thr`` is a scalar or one value per pose. ``probe(pi, ki)`` gives a value that the
+        best element of pose ``pi`` is sure to reach (at least as low with ``lower``, at least
+        as high otherwise), read at element ``ki``; each level then moves a pose's ``thr`` to
+        the best such value over the first elements of its remaining runs, so the best
+        element is never dropped.
         """
         top = len(self.levels) - 1
         runs = self.levels[top][0].shape[1]
@@ -475,11 +476,15 @@ class _BoxTree:
             bd = self.bounds(lev, ni, x[pi], c[pi], s[pi], env, lower)
             keep = bd < thr[pi] if lower else bd >= thr[pi]
             pi, ni, bd = pi[keep], ni[keep], bd[keep]
-            if probe is not None and not lower and pi.size:
+            if probe is not None and pi.size:
                 val = probe(pi, ni << lev)
                 heads = np.flatnonzero(np.concatenate(([True], pi[1:] != pi[:-1])))
-                thr[pi[heads]] = np.maximum(thr[pi[heads]], np.maximum.reduceat(val, heads))
-                keep = bd >= thr[pi]
+                if lower:
+                    thr[pi[heads]] = np.minimum(thr[pi[heads]], np.minimum.reduceat(val, heads))
+                    keep = bd < thr[pi]
+                else:
+                    thr[pi[heads]] = np.maximum(thr[pi[heads]], np.maximum.reduceat(val, heads))
+                    keep = bd >= thr[pi]
                 pi, ni = pi[keep], ni[keep]
             if lev == 0:
                 break
@@ -639,19 +644,24 @@ class _Checker:
         self.n_points = len(self.poly.V) if self.poly is not None else len(self.smooth.P)
         if self.poly is not None:
             self.tree = _BoxTree(self.poly.V, edges=True)
+            self._probe_phi = np.arctan2(self.poly.V[:, 1], self.poly.V[:, 0])
         else:
             self.tree = _BoxTree(self.smooth.P, edges=False)
+            self._probe_phi = self.smooth.phi
         # Finest line bins about as wide as a rim element's reach along the track.
         per_rev = max(1, int(round(pair.revolution_length / pair.track.period)))
         self.lines = _LineEnvelope(pair.track, min(1 << 17, 2 * self.n_points // per_rev + 1))
 
     # -- one chunk of poses: per-pose least gap below ``thr`` (inf where none)
-    def evaluate(self, x: np.ndarray, theta: np.ndarray, thr: float):
-        if math.isfinite(thr):
-            # Through the disc hierarchy: the same candidates' figures, far fewer tried.
+    def evaluate(self, x: np.ndarray, theta: np.ndarray, thr: float, prune: bool = True):
+        if prune:
+            # Through the box hierarchy: the same candidates' figures, far fewer tried. With
+            # no threshold (inf) the probes set one per pose; every least gap is below 1e300.
+            thr = min(float(thr), 1e300)
             c = np.cos(theta)
             s = np.sin(theta)
-            pi, ki = self.tree.candidates(x, c, s, self.lines, thr)
+            pi, ki = self.tree.candidates(x, c, s, self.lines, thr,
+                                          probe=lambda pi, ki: self._probe(x, theta, c, s, pi, ki))
             if self.poly is not None:
                 return self._eval_poly_pairs(x, theta, c, s, thr, pi, ki)
             return self._eval_smooth_pairs(x, theta, c, s, thr, pi, ki)
@@ -660,6 +670,20 @@ class _Checker:
         if self.poly is not None:
             return self._eval_poly(x, theta, c, s, thr)
         return self._eval_smooth(x, theta, c, s, thr)
+
+    def _probe(self, x, theta, c, s, pi, ki):
+        # The gap at rim point ki (a polygon's vertex ki) for pose pi: the pose's least gap is
+        # at most this (inf inside the contact exclusion), so runs whose lower bound is above
+        # it cannot hold the least gap. The margin covers the rounding by which the exact edge
+        # evaluation (edge_min's catenary form) may differ from track.y here.
+        P = self.poly.V if self.poly is not None else self.smooth.P
+        phi = self._probe_phi[ki]
+        cp, sp = c[pi], s[pi]
+        X = x[pi] + P[ki, 0] * cp + P[ki, 1] * sp
+        Y = -P[ki, 0] * sp + P[ki, 1] * cp
+        gap = Y - np.asarray(self.track.y(X), dtype=float) + 1e-12 * self.rmax
+        near = np.abs(_wrap_pi(phi - (theta[pi] - HALF_PI))) < self.delta * (1.0 + 1e-6)
+        return np.where(near, np.inf, gap)
 
     def _eval_poly_pairs(self, x, theta, c, s, thr, pi, ei):
         # The all-points path below, restricted to the (pose, edge) pairs ``pi, ei``:
@@ -949,16 +973,14 @@ def clearance(
     intervals: list[tuple[float, float]] = []
     first = None
     if np.any(bad):
-        def is_bad(q: float) -> bool:
-            return chk.pose_min(q)[0] < -chk.tol
-
-        def sharpen(a: float, b: float, bad_at_b: bool) -> float:
+        def sharpen(a: np.ndarray, b: np.ndarray) -> np.ndarray:
+            # Bisect every (clear a, overlapping b) pair at once; the result overlaps.
             for _ in range(32):
                 mid = 0.5 * (a + b)
-                if is_bad(mid) == bad_at_b:
-                    b = mid
-                else:
-                    a = mid
+                th_mid = np.asarray(pair.wheel_angle(mid), dtype=float)
+                is_bad = chk.evaluate(mid, th_mid, -chk.tol)[0] < -chk.tol
+                b = np.where(is_bad, mid, b)
+                a = np.where(is_bad, a, mid)
             return b
 
         idx = np.flatnonzero(bad)
@@ -972,9 +994,19 @@ def clearance(
                 joined[-1][1] = i1
             else:
                 joined.append([i0, i1])
-        for i0, i1 in joined[:64]:
-            a = float(x[i0]) if i0 == 0 else sharpen(float(x[i0 - 1]), float(x[i0]), True)
-            b = float(x[i1]) if i1 == P - 1 else sharpen(float(x[i1 + 1]), float(x[i1]), True)
+        joined = joined[:64]
+        clear_x, bad_x = [], []
+        for i0, i1 in joined:
+            if i0 != 0:
+                clear_x.append(float(x[i0 - 1]))
+                bad_x.append(float(x[i0]))
+            if i1 != P - 1:
+                clear_x.append(float(x[i1 + 1]))
+                bad_x.append(float(x[i1]))
+        ends = iter(sharpen(np.array(clear_x), np.array(bad_x)).tolist() if clear_x else [])
+        for i0, i1 in joined:
+            a = float(x[i0]) if i0 == 0 else next(ends)
+            b = float(x[i1]) if i1 == P - 1 else next(ends)
             intervals.append((a, b))
         first = intervals[0][0]
     return ClearanceResult(
