@@ -655,13 +655,19 @@ class _Checker:
     # -- one chunk of poses: per-pose least gap below ``thr`` (inf where none)
     def evaluate(self, x: np.ndarray, theta: np.ndarray, thr: float, prune: bool = True):
         if prune:
-            # Through the box hierarchy: the same candidates' figures, far fewer tried. With
-            # no threshold (inf) the probes set one per pose; every least gap is below 1e300.
+            # Through the box hierarchy: the same candidates' figures, far fewer tried. Where
+            # the threshold is far above the poses' least gaps (none given, or overlapping
+            # poses below the interference tolerance) rim-point probes set one per pose;
+            # elsewhere they would cost more than they save. Every least gap is below 1e300.
+            probing = not thr < 1e300 or thr <= -self.tol
             thr = min(float(thr), 1e300)
             c = np.cos(theta)
             s = np.sin(theta)
-            pi, ki = self.tree.candidates(x, c, s, self.lines, thr,
-                                          probe=lambda pi, ki: self._probe(x, theta, c, s, pi, ki))
+            probe = None
+            if probing:
+                def probe(pi, ki):
+                    return self._probe(x, theta, c, s, pi, ki)
+            pi, ki = self.tree.candidates(x, c, s, self.lines, thr, probe=probe)
             if self.poly is not None:
                 return self._eval_poly_pairs(x, theta, c, s, thr, pi, ki)
             return self._eval_smooth_pairs(x, theta, c, s, thr, pi, ki)
