@@ -270,3 +270,58 @@ def test_bad_inputs():
         clearance(pair, poses=[])
     with pytest.raises(InputError, match="RollingPair"):
         clearance("square")
+
+
+def _wobbly_outline(n, axle=(0.05, 0.03)):
+    t = np.linspace(0.0, 2.0 * math.pi, n, endpoint=False)
+    pts = np.column_stack([0.3 * np.cos(t), 0.2 * np.sin(t) * (1.0 + 0.1 * np.cos(3.0 * t))])
+    return rs.Wheel.outline(pts, axle=axle)
+
+
+@pytest.mark.parametrize("wheel", [
+    rs.Wheel.polygon(sides=3, apothem=0.3),  # interferes (Hall & Wagon 1992)
+    rs.Wheel.polygon(sides=7, apothem=0.2, axle=(0.02, -0.01)),
+    rs.Wheel.ellipse(semi_axes=(0.3, 0.2), axle=(0.05, 0.03)),
+    rs.Wheel.polygon(sides=5, apothem=0.2, corner_radius=0.03),
+], ids=["triangle", "off-centre heptagon", "ellipse", "rounded pentagon"])
+def test_pruned_search_agrees_with_every_rim_point(wheel):
+    """The box-hierarchy search against the all-points evaluation it prunes.
+
+    Every pose's least gap below the threshold must be the same figure (the pruned search
+    evaluates the same candidates exactly; a dropped run is one whose exact lower bound is
+    above the threshold), and poses it reports nothing below the threshold for must have
+    nothing below it.
+    """
+    from ridesim.assess.clearance import _Checker, _pose_grid
+
+    pair = rs.track_for(wheel)
+    chk = _Checker(pair, 2048, 1e-5)
+    x = _pose_grid(pair, 0.0, 512)
+    th = np.asarray(pair.wheel_angle(x), dtype=float)
+    g_all, j_all, t_all = chk.evaluate(x, th, math.inf, prune=False)  # every rim point
+    for thr in (1e-4 * chk.rmax, 1e-7 * chk.rmax, -chk.tol):
+        g_fast, _, _ = chk.evaluate(x, th, thr)
+        below = g_all < thr
+        np.testing.assert_allclose(g_fast[below], g_all[below], rtol=0, atol=1e-15 * chk.rmax)
+        assert np.all(g_fast[~below] >= thr)
+    # With no threshold every pose's least gap, and the rim point that has it.
+    g_fast, j_fast, t_fast = chk.evaluate(x, th, math.inf)
+    np.testing.assert_allclose(g_fast, g_all, rtol=0, atol=1e-15 * chk.rmax)
+    np.testing.assert_array_equal(j_fast, j_all)
+    np.testing.assert_allclose(t_fast, t_all, rtol=0, atol=1e-12)
+
+
+def test_many_vertex_outline_clearance_matches_brute_force():
+    # A 400-vertex outline: the exact result at the worst pose against dense sampling of
+    # every edge (dense_pose_min above), and its gap at 40 poses against the same.
+    pair = rs.track_for(_wobbly_outline(400))
+    res = clearance(pair)
+    assert not res.interferes
+    ref = dense_pose_min(pair, res.at_x_m, per_edge=200)
+    # Dense samples include points the exact edge minimum lies between: ref >= exact.
+    assert ref >= res.min_m - 1e-12
+    assert ref - res.min_m <= 1e-9
+    for xq in np.linspace(0.0, pair.revolution_length, 40, endpoint=False):
+        exact = clearance(pair, poses=np.array([xq])).min_m
+        dense = dense_pose_min(pair, float(xq), per_edge=50)
+        assert exact <= dense + 1e-12

@@ -89,6 +89,48 @@ def test_cusp_is_where_a_vertex_seats(n):
             assert abs(d) < 1e-10
 
 
+def test_many_vertex_outline_cusps_and_kinks_match_a_brute_force_reference():
+    """A 2000-vertex outline: every vertex seats in its own cusp (Hall & Wagon 1992: an edge
+    rolls on one arch, a vertex at each arch's end), matched here by a brute-force search
+    over all vertices per cusp; the arches' lengths sum to the revolution; and the track's
+    kinks are the cusps' positions, each once (an all-pairs scan)."""
+    n = 2000
+    t = np.linspace(0.0, TWO_PI, n, endpoint=False)
+    pts = np.column_stack([0.3 * np.cos(t), 0.2 * np.sin(t) * (1.0 + 0.1 * np.cos(3.0 * t))])
+    w = rs.Wheel.outline(pts, axle=(0.05, 0.03))
+    pair = rs.track_for(w)
+    V = np.asarray(w.vertices)
+    ang = np.arctan2(V[:, 1], V[:, 0])
+    assert len(pair.cusps) == n
+    seen = set()
+    for c in pair.cusps:
+        j = int(np.argmin(np.abs(np.angle(np.exp(1j * (ang - c.phi_rad))))))  # brute force
+        assert c.vertex == j
+        seen.add(j)
+        assert c.depth_m == pytest.approx(float(np.hypot(*V[j])), rel=1e-12)
+        contact = pair.wheel_angle(np.array([c.x_m]))[0] - HALF_PI
+        assert abs(np.angle(np.exp(1j * (ang[j] - contact)))) < 1e-9
+    assert seen == set(range(n))
+    # Arch lengths: an edge at distance d whose ends lie at u0, u1 from its foot rolls
+    # d (asinh(tan u1) - asinh(tan u0)) of track (Hall & Wagon 1992).
+    W = np.roll(V, -1, axis=0)
+    e = W - V
+    d = np.abs(V[:, 0] * e[:, 1] - V[:, 1] * e[:, 0]) / np.hypot(e[:, 0], e[:, 1])
+    foot = np.arctan2(e[:, 1], e[:, 0]) - HALF_PI
+    u0 = np.angle(np.exp(1j * (ang - foot)))
+    u1 = np.angle(np.exp(1j * (np.arctan2(W[:, 1], W[:, 0]) - foot)))
+    total = float(np.sum(d * (np.arcsinh(np.tan(u1)) - np.arcsinh(np.tan(u0)))))
+    assert pair.revolution_length == pytest.approx(total, rel=1e-12)
+    # Kinks: brute-force all-pairs deduplication of the cusp positions.
+    period = pair.track.period
+    ref: list[float] = []
+    for xc in sorted(c.x_m % period for c in pair.cusps):
+        xc = 0.0 if xc > period * (1 - 1e-9) else xc
+        if not any(abs(xc - k) <= 1e-9 * period for k in ref):
+            ref.append(xc)
+    assert list(pair.track.kinks) == sorted(ref)
+
+
 def test_off_centre_polygon_arch_lengths():
     """Each edge of a polygon rolls on its own catenary arch.
 

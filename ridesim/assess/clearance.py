@@ -49,6 +49,16 @@ Rim points far above the track are pruned with a lower bound
 envelope of the track (a sparse table answers range maxima for whole edges);
 only candidates that could beat the running minimum (or interfere) are
 evaluated exactly. Poses are processed in chunks so memory stays bounded.
+Runs of consecutive rim points (or edges) are held in a binary hierarchy of
+boxes, each aligned with its run's chord (a run of a smooth rim fits in a box
+as thin as its sagitta). Each pose descends it and drops a whole run when the
+least gap between the posed box and straight upper bounds of the track (the
+tangent at the centre of a bin as wide as the box, raised to cover the track
+in the bin) cannot beat the running minimum. Near the contact the rim runs
+nearly parallel to the track, and these bounds are close to second order
+there, so a pose costs about the logarithm of the rim size plus a few rim
+elements, not the whole rim. The elements that reach the bottom are tested and
+evaluated exactly as above, so the figures are those of testing every point.
 
 Corner seating
 --------------
@@ -98,9 +108,10 @@ CONTACT_EXCLUSION_RAD = 1e-5
 #: and still far below anything a builder can make or measure (0.3 nm on a 0.3 m wheel).
 INTERFERENCE_TOL_REL = 1e-9
 
-_CHUNK_ELEMENTS = 1 << 20  # poses x rim points per chunk
 _REFINE_POINTS = 33  # samples per round of the rim-angle refinement (brackets shrink 16-fold)
 _REFINE_ROUNDS = 3
+_TREE_CHUNK_POSES = 2048  # poses per chunk through the disc hierarchy
+_TREE_FIRST_POSES = 16  # a small first chunk sets the running minimum early
 
 
 def _wrap_pi(a: np.ndarray) -> np.ndarray:
@@ -299,6 +310,194 @@ class _Envelope:
         return self.env[i]
 
 
+# ---------------------------------------------------------------------------- box hierarchy
+class _LineEnvelope:
+    """Straight upper bounds of the track over bins of every width ``period / 2**level``.
+
+    Bin ``b`` of a level holds the tangent at its centre, ``yc + m (x - centre)``, raised by
+    the most the track rises above it in the bin (sampled, plus a Lipschitz allowance between
+    samples, as :class:`_Envelope`): ``track(x) <= yc + m (x - centre) + pad`` there. Where
+    the track is smooth the allowance shrinks with the square of the bin width, so a run of
+    rim nearly parallel to the track (the neighbourhood of the contact) is bounded closely.
+    """
+
+    def __init__(self, track, finest_bins: int, sub: int = 8) -> None:
+        self.x0 = float(track.start)
+        self.period = float(track.period)
+        top = max(0, int(math.ceil(math.log2(max(int(finest_bins), 1)))))
+        self.top = top
+        m = (1 << top) * sub
+        xs = self.x0 + self.period * np.linspace(0.0, 1.0, m + 1)
+        ys = np.asarray(track.y(xs), dtype=float)
+        sl = np.asarray(track.slope(xs), dtype=float)
+        scale = 1e-12 * max(1.0, float(np.max(np.abs(ys))))
+        self.global_max = float(np.max(ys)) + 1.1 * float(np.max(np.abs(sl))) * (self.period / m)
+        self.global_max += scale
+        yc, mc, pad = [], [], []
+        for lev in range(top + 1):
+            nb = 1 << lev
+            stride = 1 << (top - lev)
+            w = self.period / nb
+            xw = np.lib.stride_tricks.sliding_window_view(xs[::stride], sub + 1)[::sub]
+            yw = np.lib.stride_tricks.sliding_window_view(ys[::stride], sub + 1)[::sub]
+            sw = np.lib.stride_tricks.sliding_window_view(sl[::stride], sub + 1)[::sub]
+            centre = self.x0 + (np.arange(nb) + 0.5) * w
+            y0 = np.asarray(track.y(centre), dtype=float)
+            m0 = np.asarray(track.slope(centre), dtype=float)
+            dev = yw - (y0[:, None] + m0[:, None] * (xw - centre[:, None]))
+            lip = 1.1 * np.max(np.abs(sw - m0[:, None]), axis=1) * (w / sub)
+            yc.append(y0)
+            mc.append(m0)
+            pad.append(np.max(dev, axis=1) + lip + scale)
+        self._first = (1 << np.arange(top + 1)) - 1  # index of each level's first bin
+        self._inv_w = (1 << np.arange(top + 1)) / self.period  # bins per metre
+        self.yc = np.concatenate(yc)
+        self.mc = np.concatenate(mc)
+        self.pad = np.concatenate(pad)
+
+    def lines(self, xl: np.ndarray, xr: np.ndarray):
+        """The (at most two) bins' lines covering each ``[xl, xr]`` [m].
+
+        For each: the absolute bin centre [m], height [m], slope and pad [m]; plus a mask of
+        ranges a period wide or wider (no line bound there: use :attr:`global_max`).
+        """
+        width = xr - xl
+        wide = width >= self.period
+        # Level floor(log2(period / width)), read off the float exponent; clipped to the levels.
+        lev = np.frexp(self.period / np.maximum(width, 1e-300 * self.period))[1] - 1
+        lev = np.clip(lev, 0, self.top)
+        inv_w = self._inv_w[lev]
+        i1 = np.floor((xl - self.x0) * inv_w).astype(np.int64)
+        first = self._first[lev]
+        mask = first  # bins in a level: first + 1, a power of two
+        out = []
+        for ib in (i1, i1 + 1):
+            k = first + np.bitwise_and(ib, mask)
+            out.append((self.x0 + (ib + 0.5) / inv_w, self.yc[k], self.mc[k], self.pad[k]))
+        return out, wide
+
+
+class _BoxTree:
+    """Oriented bounding boxes over runs of consecutive rim elements, halving level by level.
+
+    Level ``l`` holds one box per run of ``2**l`` elements (the last run may be shorter); the
+    children of run ``j`` are runs ``2j`` and ``2j + 1`` one level down. An element is a
+    point, or with ``edges`` the straight edge from point ``i`` to point ``i + 1`` (cyclic),
+    whose box then holds both ends (so the whole edge, their convex hull). Each box is
+    aligned with its run's chord, so a run of a smooth rim fits in a thin box (its sagitta).
+    """
+
+    def __init__(self, pts: np.ndarray, edges: bool, top_runs: int = 16) -> None:
+        pts = np.asarray(pts, dtype=float)
+        n = len(pts)
+        self.n = n
+        xs, ys = pts[:, 0], pts[:, 1]
+        scale = float(np.max(np.abs(pts))) if n else 1.0
+        grow = 1e-13 * scale  # rounding allowance for the posing arithmetic
+        self.levels: list[tuple[np.ndarray, np.ndarray]] = []  # corners x, y: (4, runs)
+        width = 1
+        while True:
+            starts = np.arange(0, n, width)
+            owner = np.arange(n) // width
+            if edges:
+                last = np.minimum(starts + width, n) % n  # far end of the run's last edge
+            else:
+                last = np.minimum(starts + width, n) - 1
+            ax, ay = xs[starts], ys[starts]
+            ux, uy = xs[last] - ax, ys[last] - ay
+            ln = np.hypot(ux, uy)
+            short = ln <= 1e-9 * scale
+            ux = np.where(short, 1.0, ux / np.where(short, 1.0, ln))
+            uy = np.where(short, 0.0, uy / np.where(short, 1.0, ln))
+            rx, ry = xs - ax[owner], ys - ay[owner]
+            t = rx * ux[owner] + ry * uy[owner]
+            h = -rx * uy[owner] + ry * ux[owner]
+            t_lo, t_hi = np.minimum.reduceat(t, starts), np.maximum.reduceat(t, starts)
+            h_lo, h_hi = np.minimum.reduceat(h, starts), np.maximum.reduceat(h, starts)
+            if edges:
+                ex, ey = xs[last] - ax, ys[last] - ay
+                te, he = ex * ux + ey * uy, -ex * uy + ey * ux
+                t_lo, t_hi = np.minimum(t_lo, te), np.maximum(t_hi, te)
+                h_lo, h_hi = np.minimum(h_lo, he), np.maximum(h_hi, he)
+            t_lo, t_hi, h_lo, h_hi = t_lo - grow, t_hi + grow, h_lo - grow, h_hi + grow
+            tt = np.stack([t_lo, t_hi, t_hi, t_lo], axis=1)
+            hh = np.stack([h_lo, h_lo, h_hi, h_hi], axis=1)
+            cx = ax[:, None] + tt * ux[:, None] - hh * uy[:, None]
+            cy = ay[:, None] + tt * uy[:, None] + hh * ux[:, None]
+            self.levels.append((np.ascontiguousarray(cx.T), np.ascontiguousarray(cy.T)))
+            if len(starts) <= top_runs:
+                break
+            width *= 2
+
+    def bounds(self, lev: int, ni: np.ndarray, x: np.ndarray, c: np.ndarray, s: np.ndarray,
+               env: _LineEnvelope, lower: bool) -> np.ndarray:
+        """Bound on ``Y - track(X)`` (``lower``) or ``track(X) - Y`` over each posed box.
+
+        Box ``ni`` of level ``lev`` posed at axle ``x`` turned by ``(c, s) = (cos, sin)`` of
+        the wheel angle (one row per pair). Below a bin's line the gap is linear in the point,
+        so its extremes over a box are at the corners.
+        """
+        kx, ky = self.levels[lev]
+        X = [x + kx[j][ni] * c + ky[j][ni] * s for j in range(4)]
+        Y = [-kx[j][ni] * s + ky[j][ni] * c for j in range(4)]
+        xl = np.minimum(np.minimum(X[0], X[1]), np.minimum(X[2], X[3]))
+        xr = np.maximum(np.maximum(X[0], X[1]), np.maximum(X[2], X[3]))
+        lines, wide = env.lines(xl, xr)
+        res = None
+        for centre, yc, mc, pad in lines:
+            u = [Y[j] - (yc + mc * (X[j] - centre)) for j in range(4)]
+            v = np.minimum(np.minimum(u[0], u[1]), np.minimum(u[2], u[3]))
+            v = v - pad if lower else pad - v
+            if res is None:
+                res = v
+            else:
+                res = np.minimum(res, v) if lower else np.maximum(res, v)
+        ylo = np.minimum(np.minimum(Y[0], Y[1]), np.minimum(Y[2], Y[3]))
+        if lower:
+            return np.where(wide, ylo - env.global_max, res)
+        return np.where(wide, env.global_max - ylo, res)
+
+    def candidates(self, x: np.ndarray, c: np.ndarray, s: np.ndarray, env: _LineEnvelope,
+                   thr: float, lower: bool = True, probe=None) -> tuple[np.ndarray, np.ndarray]:
+        """(pose, element) pairs that no enclosing box rules out, sorted by pose then element.
+
+        With ``lower``, a box goes when its bound on the least gap ``Y - track(X)`` is
+        ``>= thr``; otherwise when its bound on the greatest ``track(X) - Y`` is ``< thr``.
+        ``thr`` is a scalar or one value per pose. ``probe(pi, ki)`` gives a value that the
+        best element of pose ``pi`` is sure to reach (at least as low with ``lower``, at least
+        as high otherwise), read at element ``ki``; each level then moves a pose's ``thr`` to
+        the best such value over the first elements of its remaining runs, so the best
+        element is never dropped.
+        """
+        top = len(self.levels) - 1
+        runs = self.levels[top][0].shape[1]
+        pi = np.repeat(np.arange(len(x)), runs)
+        ni = np.tile(np.arange(runs), len(x))
+        thr = np.array(np.broadcast_to(np.asarray(thr, dtype=float), np.shape(x)))
+        for lev in range(top, -1, -1):
+            bd = self.bounds(lev, ni, x[pi], c[pi], s[pi], env, lower)
+            keep = bd < thr[pi] if lower else bd >= thr[pi]
+            pi, ni, bd = pi[keep], ni[keep], bd[keep]
+            if probe is not None and pi.size:
+                val = probe(pi, ni << lev)
+                heads = np.flatnonzero(np.concatenate(([True], pi[1:] != pi[:-1])))
+                if lower:
+                    thr[pi[heads]] = np.minimum(thr[pi[heads]], np.minimum.reduceat(val, heads))
+                    keep = bd < thr[pi]
+                else:
+                    thr[pi[heads]] = np.maximum(thr[pi[heads]], np.maximum.reduceat(val, heads))
+                    keep = bd >= thr[pi]
+                pi, ni = pi[keep], ni[keep]
+            if lev == 0:
+                break
+            # Children, in order: 2j, 2j + 1 (the last run may have one child only).
+            pi = np.repeat(pi, 2)
+            ni = (2 * ni[:, None] + np.array([0, 1])).ravel()
+            ok = ni < self.levels[lev - 1][0].shape[1]
+            pi, ni = pi[ok], ni[ok]
+        return pi, ni
+
+
 # ---------------------------------------------------------------------------- rims
 class _PolygonRim:
     """Polygon outline checked edge by edge against its exact catenary arches."""
@@ -445,14 +644,88 @@ class _Checker:
         else:
             self.smooth = _SmoothRim(pair, n_rim)
         self.n_points = len(self.poly.V) if self.poly is not None else len(self.smooth.P)
+        if self.poly is not None:
+            self.tree = _BoxTree(self.poly.V, edges=True)
+            self._probe_phi = np.arctan2(self.poly.V[:, 1], self.poly.V[:, 0])
+        else:
+            self.tree = _BoxTree(self.smooth.P, edges=False)
+            self._probe_phi = self.smooth.phi
+        # Finest line bins about as wide as a rim element's reach along the track.
+        per_rev = max(1, int(round(pair.revolution_length / pair.track.period)))
+        self.lines = _LineEnvelope(pair.track, min(1 << 17, 2 * self.n_points // per_rev + 1))
 
     # -- one chunk of poses: per-pose least gap below ``thr`` (inf where none)
-    def evaluate(self, x: np.ndarray, theta: np.ndarray, thr: float):
+    def evaluate(self, x: np.ndarray, theta: np.ndarray, thr: float, prune: bool = True):
+        if prune:
+            # Through the box hierarchy: the same candidates' figures, far fewer tried. Where
+            # the threshold is far above the poses' least gaps (none given, or overlapping
+            # poses below the interference tolerance) rim-point probes set one per pose;
+            # elsewhere they would cost more than they save. Every least gap is below 1e300.
+            probing = not thr < 1e300 or thr <= -self.tol
+            thr = min(float(thr), 1e300)
+            c = np.cos(theta)
+            s = np.sin(theta)
+            probe = None
+            if probing:
+                def probe(pi, ki):
+                    return self._probe(x, theta, c, s, pi, ki)
+            pi, ki = self.tree.candidates(x, c, s, self.lines, thr, probe=probe)
+            if self.poly is not None:
+                return self._eval_poly_pairs(x, theta, c, s, thr, pi, ki)
+            return self._eval_smooth_pairs(x, theta, c, s, thr, pi, ki)
         c = np.cos(theta)[:, None]
         s = np.sin(theta)[:, None]
         if self.poly is not None:
             return self._eval_poly(x, theta, c, s, thr)
         return self._eval_smooth(x, theta, c, s, thr)
+
+    def _probe(self, x, theta, c, s, pi, ki):
+        # The gap at rim point ki (a polygon's vertex ki) for pose pi: the pose's least gap is
+        # at most this (inf inside the contact exclusion), so runs whose lower bound is above
+        # it cannot hold the least gap. The margin covers the rounding by which the exact edge
+        # evaluation (edge_min's catenary form) may differ from track.y here.
+        P = self.poly.V if self.poly is not None else self.smooth.P
+        phi = self._probe_phi[ki]
+        cp, sp = c[pi], s[pi]
+        X = x[pi] + P[ki, 0] * cp + P[ki, 1] * sp
+        Y = -P[ki, 0] * sp + P[ki, 1] * cp
+        gap = Y - np.asarray(self.track.y(X), dtype=float) + 1e-12 * self.rmax
+        near = np.abs(_wrap_pi(phi - (theta[pi] - HALF_PI))) < self.delta * (1.0 + 1e-6)
+        return np.where(near, np.inf, gap)
+
+    def _eval_poly_pairs(self, x, theta, c, s, thr, pi, ei):
+        # The all-points path below, restricted to the (pose, edge) pairs ``pi, ei``:
+        # the same arithmetic, element by element.
+        p = self.poly
+        V = p.V
+        en = (ei + 1) % p.n
+        cp, sp, xp = c[pi], s[pi], x[pi]
+        Px = xp + V[ei, 0] * cp + V[ei, 1] * sp
+        Py = -V[ei, 0] * sp + V[ei, 1] * cp
+        Qx = xp + V[en, 0] * cp + V[en, 1] * sp
+        Qy = -V[en, 0] * sp + V[en, 1] * cp
+        ylow = np.minimum(Py, Qy)
+        keep = ylow < thr + self.env.global_max
+        pi, ei = pi[keep], ei[keep]
+        Px, Py, Qx, Qy, ylow = Px[keep], Py[keep], Qx[keep], Qy[keep], ylow[keep]
+        keep = ylow - self.env.range_max(np.minimum(Px, Qx), np.maximum(Px, Qx)) < thr
+        pi, ei = pi[keep], ei[keep]
+        gap, t = p.edge_min(Px[keep], Py[keep], Qx[keep], Qy[keep], theta[pi], self.delta, ei)
+        return _per_pose_min(len(x), pi, ei, gap, t)
+
+    def _eval_smooth_pairs(self, x, theta, c, s, thr, pi, ki):
+        P = self.smooth.P
+        cp, sp = c[pi], s[pi]
+        Xc = x[pi] + P[ki, 0] * cp + P[ki, 1] * sp
+        Yc = -P[ki, 0] * sp + P[ki, 1] * cp
+        keep = Yc < thr + self.env.global_max
+        pi, ki, Xc, Yc = pi[keep], ki[keep], Xc[keep], Yc[keep]
+        keep = Yc - self.env.point_max(Xc) < thr
+        pi, ki, Xc, Yc = pi[keep], ki[keep], Xc[keep], Yc[keep]
+        gap = Yc - np.asarray(self.track.y(Xc), dtype=float)
+        near = np.abs(_wrap_pi(self.smooth.phi[ki] - (theta[pi] - HALF_PI))) < self.delta
+        gap = np.where(near, np.inf, gap)
+        return _per_pose_min(len(x), pi, ki, gap, np.zeros(gap.shape))
 
     def _eval_poly(self, x, theta, c, s, thr):
         p = self.poly
@@ -659,7 +932,11 @@ def clearance(
         x_start = float(x[0])
     theta = np.asarray(pair.wheel_angle(x), dtype=float)
     P = len(x)
-    chunk = max(1, _CHUNK_ELEMENTS // max(chk.n_points, 1))
+    # Chunks of poses: a small first one sets the running minimum, then large ones (each
+    # pose's work through the disc hierarchy is small).
+    bounds = [0, min(P, _TREE_FIRST_POSES)]
+    while bounds[-1] < P:
+        bounds.append(min(P, bounds[-1] + _TREE_CHUNK_POSES))
 
     t0 = 1e-4 * chk.rmax
     while True:
@@ -667,8 +944,7 @@ def clearance(
         pmin = np.full(P, np.inf)
         pidx = np.zeros(P, dtype=np.int64)
         pt = np.zeros(P)
-        for a in range(0, P, chunk):
-            b = min(P, a + chunk)
+        for a, b in zip(bounds[:-1], bounds[1:], strict=True):
             g, j, t = chk.evaluate(x[a:b], theta[a:b], max(run, -chk.tol))
             pmin[a:b], pidx[a:b], pt[a:b] = g, j, t
             m = float(np.min(g))
@@ -737,16 +1013,14 @@ def clearance(
     intervals: list[tuple[float, float]] = []
     first = None
     if np.any(bad):
-        def is_bad(q: float) -> bool:
-            return chk.pose_min(q)[0] < -chk.tol
-
-        def sharpen(a: float, b: float, bad_at_b: bool) -> float:
+        def sharpen(a: np.ndarray, b: np.ndarray) -> np.ndarray:
+            # Bisect every (clear a, overlapping b) pair at once; the result overlaps.
             for _ in range(32):
                 mid = 0.5 * (a + b)
-                if is_bad(mid) == bad_at_b:
-                    b = mid
-                else:
-                    a = mid
+                th_mid = np.asarray(pair.wheel_angle(mid), dtype=float)
+                is_bad = chk.evaluate(mid, th_mid, -chk.tol)[0] < -chk.tol
+                b = np.where(is_bad, mid, b)
+                a = np.where(is_bad, a, mid)
             return b
 
         idx = np.flatnonzero(bad)
@@ -760,9 +1034,19 @@ def clearance(
                 joined[-1][1] = i1
             else:
                 joined.append([i0, i1])
-        for i0, i1 in joined[:64]:
-            a = float(x[i0]) if i0 == 0 else sharpen(float(x[i0 - 1]), float(x[i0]), True)
-            b = float(x[i1]) if i1 == P - 1 else sharpen(float(x[i1 + 1]), float(x[i1]), True)
+        joined = joined[:64]
+        clear_x, bad_x = [], []
+        for i0, i1 in joined:
+            if i0 != 0:
+                clear_x.append(float(x[i0 - 1]))
+                bad_x.append(float(x[i0]))
+            if i1 != P - 1:
+                clear_x.append(float(x[i1 + 1]))
+                bad_x.append(float(x[i1]))
+        ends = iter(sharpen(np.array(clear_x), np.array(bad_x)).tolist() if clear_x else [])
+        for i0, i1 in joined:
+            a = float(x[i0]) if i0 == 0 else next(ends)
+            b = float(x[i1]) if i1 == P - 1 else next(ends)
             intervals.append((a, b))
         first = intervals[0][0]
     return ClearanceResult(

@@ -30,6 +30,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
+from ridesim.assess.clearance import _BoxTree, _LineEnvelope
 from ridesim.assess.findings import Finding
 from ridesim.errors import InputError
 from ridesim.model.vehicle import axle_offsets_m
@@ -138,7 +139,7 @@ def _golden(f, lo: np.ndarray, hi: np.ndarray, steps: int) -> np.ndarray:
     return np.maximum(np.maximum(fc, fd), np.maximum(f(lo), f(hi)))
 
 
-def resting_height(pair: RollingPair, x_m, theta_rad, *, chunk: int = 256,
+def resting_height(pair: RollingPair, x_m, theta_rad, *, chunk: int = 2048,
                    refine: int = 40) -> np.ndarray:
     """Lowest axle height [m] at which the wheel, turned ``theta``, sits on the track at ``x``.
 
@@ -151,7 +152,7 @@ def resting_height(pair: RollingPair, x_m, theta_rad, *, chunk: int = 256,
     theta_rad : array_like
         Clockwise wheel angles [rad] (same shape as ``x_m``).
     chunk : int
-        Poses evaluated at once (bounds memory).
+        Poses evaluated at once (bounds memory; each pose keeps only a few rim runs).
     refine : int
         Golden-section steps that refine the touching rim point between samples.
 
@@ -159,12 +160,27 @@ def resting_height(pair: RollingPair, x_m, theta_rad, *, chunk: int = 256,
     -------
     ndarray
         ``max over the rim (y_track(x + p_x) - p_y)`` for each pose; 0 for the ideal pose.
+
+    Notes
+    -----
+    The best rim sample is found by branch and bound over the rim's hierarchy of boxes
+    (see :mod:`ridesim.assess.clearance`): a run of samples is dropped only when a bound
+    shows it cannot beat a gap some sample attains, so the result is that of trying every
+    sample, at a cost that grows about as the logarithm of the rim size per pose.
     """
     x = np.atleast_1d(np.asarray(x_m, dtype=float))
     th = np.broadcast_to(np.asarray(theta_rad, dtype=float), x.shape)
     rim = _Rim(pair)
     px0, py0 = rim.points(rim.u)
     out = np.empty(x.shape)
+    m = px0.size
+    # Rim samples in order of polar angle (a star-shaped rim's order, up to where it wraps).
+    phi0 = np.mod(np.arctan2(py0, px0), TWO_PI)
+    by_angle = np.argsort(phi0, kind="stable")
+    phi_sorted = phi0[by_angle]
+    tree = _BoxTree(np.column_stack([px0, py0]), edges=False)
+    per_rev = max(1, int(round(pair.revolution_length / pair.track.period)))
+    lines = _LineEnvelope(pair.track, min(1 << 17, 2 * rim.n // per_rev + 1))
 
     def gap(xs, c, s, u):
         px, py = rim.points(u)
@@ -173,18 +189,45 @@ def resting_height(pair: RollingPair, x_m, theta_rad, *, chunk: int = 256,
         Y = -s * px + c * py
         return pair.track.y(xs + X) - Y
 
-    for a in range(0, x.size, chunk):
-        xs, ts = x[a:a + chunk], th[a:a + chunk]
-        c, s = np.cos(ts)[:, None], np.sin(ts)[:, None]
-        X = c * px0[None, :] + s * py0[None, :]
-        Y = -s * px0[None, :] + c * py0[None, :]
-        g = pair.track.y(xs[:, None] + X) - Y
-        k = np.argmax(g, axis=1)
-        best = g[np.arange(len(xs)), k]
+    def sample_gap(pi, ki, xs, c, s):
+        # gap() at rim samples ki for poses pi, element by element.
+        X = c[pi] * px0[ki] + s[pi] * py0[ki]
+        Y = -s[pi] * px0[ki] + c[pi] * py0[ki]
+        return np.asarray(pair.track.y(xs[pi] + X), dtype=float) - Y
+
+    step = max(1, int(chunk))
+    for a in range(0, x.size, step):
+        xs, ts = x[a:a + step], th[a:a + step]
+        nq = len(xs)
+        c, s = np.cos(ts), np.sin(ts)
+        # The samples either side of the ray straight down touch in the ideal pose: the larger
+        # of their gaps is a floor for the best sample, and rim runs whose bound on the gap
+        # (see _BoxTree) falls below that floor cannot hold the best sample.
+        j = np.searchsorted(phi_sorted, np.mod(ts - 0.5 * math.pi, TWO_PI))
+        near = np.stack([by_angle[j % m], by_angle[j - 1]], axis=1)
+        q = np.repeat(np.arange(nq), 2)
+        floor = sample_gap(q, near.ravel(), xs, c, s).reshape(nq, 2).max(axis=1)
+        pi, ki = tree.candidates(xs, c, s, lines, floor, lower=False,
+                                 probe=lambda pi, ki, xs=xs, c=c, s=s: sample_gap(pi, ki, xs, c, s))
+        # Keep the floor's own samples whatever the bounds say, then order by pose and sample.
+        pi = np.concatenate([pi, q])
+        ki = np.concatenate([ki, near.ravel()])
+        order = np.lexsort((ki, pi))
+        pi, ki = pi[order], ki[order]
+        dup = np.concatenate(([False], (pi[1:] == pi[:-1]) & (ki[1:] == ki[:-1])))
+        pi, ki = pi[~dup], ki[~dup]
+        g = sample_gap(pi, ki, xs, c, s)
+        # Per pose, the largest gap and (among equal ones) the first sample, as argmax gives.
+        order = np.lexsort((ki, -g, pi))
+        first = order[np.concatenate(([True], pi[order][1:] != pi[order][:-1]))]
+        k = np.empty(nq, dtype=np.int64)
+        best = np.empty(nq)
+        k[pi[first]] = ki[first]
+        best[pi[first]] = g[first]
         # Refine on each side of the best sample (golden section on the rim parameter; each
         # side is smooth, a vertex sits at most at its end), and try the rim point on the
         # ray straight down, which touches exactly in the ideal pose.
-        def along(u, xs=xs, cc=c[:, 0], ss=s[:, 0]):
+        def along(u, xs=xs, cc=c, ss=s):
             return gap(xs, cc, ss, u)
 
         f1 = _golden(along, rim.u[k] - 1.0 / rim.per, rim.u[k], refine)
@@ -192,7 +235,7 @@ def resting_height(pair: RollingPair, x_m, theta_rad, *, chunk: int = 256,
         r_down = pair.wheel.radius(ts - 0.5 * math.pi)
         f_down = pair.track.y(xs) + r_down
         best = np.maximum(best, f_down)
-        out[a:a + chunk] = np.maximum(best, np.maximum(f1, f2))
+        out[a:a + step] = np.maximum(best, np.maximum(f1, f2))
     return out
 
 

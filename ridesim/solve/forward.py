@@ -16,7 +16,7 @@ import numpy as np
 from ridesim.errors import InputError
 from ridesim.model.track import Track
 from ridesim.model.wheel import Wheel
-from ridesim.solve.pair import CatenaryMap, Cusp, RollingPair, TableMap
+from ridesim.solve.pair import CatenaryMap, Cusp, RollingPair, TableMap, make_cusps
 from ridesim.solve.table import build_map
 
 __all__ = ["track_for", "AXLE_PATHS"]
@@ -38,8 +38,47 @@ def _wrap_pi(a: float) -> float:
     return (a + math.pi) % TWO_PI - math.pi
 
 
-def _wrap_pi_array(a: np.ndarray) -> np.ndarray:
-    return np.mod(a + math.pi, TWO_PI) - math.pi
+def _nearest_angle(ref: np.ndarray, targets: np.ndarray) -> np.ndarray:
+    """Index into ``ref`` of the angle nearest (modulo 2π) to each of ``targets`` [rad]."""
+    ref_w = np.mod(ref, TWO_PI)
+    order = np.argsort(ref_w, kind="stable")
+    srt = ref_w[order]
+    t = np.mod(targets, TWO_PI)
+    hi = np.searchsorted(srt, t) % len(srt)
+    lo = (hi - 1) % len(srt)
+    d_hi = np.abs(np.angle(np.exp(1j * (srt[hi] - t))))
+    d_lo = np.abs(np.angle(np.exp(1j * (srt[lo] - t))))
+    # Ties go to the lower index in ``ref``, as a first-match argmin would.
+    pick_lo = (d_lo < d_hi) | ((d_lo == d_hi) & (order[lo] < order[hi]))
+    return np.where(pick_lo, order[lo], order[hi])
+
+
+def _distinct_kinks(xs: list[float], period: float) -> list[float]:
+    """Sorted corner positions [m] in ``[0, period)``, one per group closer than 1e-9 period.
+
+    Values are taken in increasing order and kept unless within the tolerance of one already
+    kept; one just short of the period's end is the corner at its start (x = 0).
+    """
+    tol = 1e-9 * period
+    kept: list[float] = []
+    has_zero_near = False  # a kept value within tol of 0
+    last = -math.inf
+    for xc in sorted(xs):
+        if xc > period * (1 - 1e-9):
+            # A cusp at the period's end is the one at its start. Kept values are >= 0 and
+            # sorted, so only those within tol of 0 can match it.
+            if not has_zero_near:
+                kept.append(0.0)
+                has_zero_near = True
+            continue
+        # Values come sorted, so the nearest kept one is the last.
+        if xc - last > tol:
+            kept.append(xc)
+            last = xc
+            if abs(xc) <= tol:
+                has_zero_near = True
+    kept.sort()
+    return kept
 
 
 def track_for(wheel: Wheel, *, path: str = "line") -> RollingPair:
@@ -88,23 +127,14 @@ def track_for(wheel: Wheel, *, path: str = "line") -> RollingPair:
         th_v = rmap.theta_breaks[:-1]
         x_v = rmap.x_breaks[:-1]
         starts, _, _ = wheel.edge_lines()
-        cusps = []
         verts = wheel.vertices
-        # Match each vertex by angle (the map list may be rotated): the nearest start angle
-        # on the circle, found by bisection among the sorted angles (and the wrap-around).
-        start_mod = np.mod(starts[:-1], TWO_PI)
-        order = np.argsort(start_mod)
-        sorted_a = start_mod[order]
-        want = np.mod(np.asarray(th_v) - HALF_PI, TWO_PI)
-        pos = np.searchsorted(sorted_a, want)
-        cand = np.stack([(pos - 1) % len(order), pos % len(order)])
-        dist = np.abs(_wrap_pi_array(sorted_a[cand] - want[None, :]))
-        match = order[cand[np.argmin(dist, axis=0), np.arange(len(want))]]
-        for i in range(len(th_v)):
-            phi = float((th_v[i] - HALF_PI) % TWO_PI)
-            j = int(match[i])
-            cusps.append(Cusp(x_m=float(x_v[i] % rev), vertex=j, phi_rad=phi,
-                              depth_m=float(np.hypot(*verts[j]))))
+        phis = np.mod(th_v - HALF_PI, TWO_PI)
+        # Match each vertex by angle (the map list may be rotated).
+        js = _nearest_angle(starts[:-1], th_v - HALF_PI)
+        xs = np.mod(x_v, rev)
+        depths = np.hypot(verts[js, 0], verts[js, 1])
+        o = np.argsort(xs, kind="stable")  # the order of the sort below, done here in bulk
+        cusps = make_cusps(xs[o].tolist(), js[o].tolist(), phis[o].tolist(), depths[o].tolist())
     else:
         def unwrap(angles):
             ts = [_wrap_pi(kk + HALF_PI - theta0) + theta0 for kk in angles]
@@ -146,13 +176,7 @@ def track_for(wheel: Wheel, *, path: str = "line") -> RollingPair:
                               depth_m=float(wheel.radius(np.array(t - HALF_PI)))))
     cusps.sort(key=lambda c: c.x_m)
     period = rev / k
-    kinks_x: list[float] = []
-    # A cusp at the period's end is the one at its start; cusps within 1e-9 of the period of
-    # one already kept are the same (sorted, so a repeat is next to the one it repeats).
-    for xc in sorted(0.0 if xc > period * (1 - 1e-9) else xc
-                     for xc in (c.x_m % period for c in cusps)):
-        if not kinks_x or xc - kinks_x[-1] > 1e-9 * period:
-            kinks_x.append(xc)
+    kinks_x = _distinct_kinks([c.x_m % period for c in cusps], period)
     track = Track("solved", period, f=y_rev, df=slope_rev, kinks=kinks_x,
                   params={"period_m": period, "revolution_length_m": rev},
                   extremes=(-rmax, -rmin))

@@ -56,6 +56,22 @@ class Cusp:
     kind: str = "valley"
 
 
+def make_cusps(x_m, vertex, phi_rad, depth_m) -> list[Cusp]:
+    """Cusps from parallel sequences of their fields (plain Python numbers), kind "valley".
+
+    The same objects as ``Cusp(...)`` one by one, built without the frozen dataclass's
+    per-field ``__init__`` (the fields go straight into each instance's ``__dict__``), which
+    matters for outlines with thousands of corners.
+    """
+    new = object.__new__
+    out = []
+    for xc, v, ph, dep in zip(x_m, vertex, phi_rad, depth_m, strict=True):
+        c = new(Cusp)
+        c.__dict__.update(x_m=xc, vertex=v, phi_rad=ph, depth_m=dep, kind="valley")
+        out.append(c)
+    return out
+
+
 def corner_kind(track: Track, x_m: float) -> str:
     """Whether the track's corner at ``x_m`` [m] is a valley or a crest (see :class:`Cusp`).
 
@@ -77,8 +93,21 @@ def corner_kind(track: Track, x_m: float) -> str:
 
 
 def classify_corners(track: Track, cusps) -> tuple[Cusp, ...]:
-    """``cusps`` with each one's :attr:`Cusp.kind` read off ``track``."""
-    return tuple(replace(c, kind=corner_kind(track, c.x_m)) for c in cusps)
+    """``cusps`` with each one's :attr:`Cusp.kind` read off ``track`` (as :func:`corner_kind`)."""
+    cusps = tuple(cusps)
+    if not cusps:
+        return cusps
+    # corner_kind for all corners in one vectorised call on the track.
+    eps = 1e-6 * track.period
+    xc = np.array([c.x_m for c in cusps], dtype=float)
+    y = np.asarray(track.y(np.stack([xc - eps, xc, xc + eps], axis=1).ravel()),
+                   dtype=float).reshape(-1, 3)
+    valley = y[:, 0] + y[:, 2] - 2.0 * y[:, 1] >= 0.0
+    out = []
+    for c, v in zip(cusps, valley, strict=True):
+        kind = "valley" if v else "crest"
+        out.append(c if c.kind == kind else replace(c, kind=kind))
+    return tuple(out)
 
 
 class CatenaryMap:
