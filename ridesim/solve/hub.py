@@ -252,7 +252,7 @@ def hub_turn(curve: Wheel, centre_distance: float, *, mode: str = "outside") -> 
 def _check_partner(curve: Wheel, c0: float, c1: float, mode: str, E: float) -> None:
     """The partner's radius must be positive at every contact (one-line errors)."""
     rmin, rmax, _ = curve.extremes()
-    if mode == "outside" and not E > rmax:
+    if mode == "outside" and not E - rmax > 1e-12 * rmax:
         raise GeometryError(
             f"centre_distance = {E:.9g} m: the wheel's greatest radius {rmax:.9g} m reaches it, so"
             f" no hub is possible (its radius E - r would not be positive); use a centre distance"
@@ -263,7 +263,7 @@ def _check_partner(curve: Wheel, c0: float, c1: float, mode: str, E: float) -> N
             f"centre_distance = {E:.9g} m: a ring contains the wheel only with its centre distance"
             " > 0 m (ring radius E + r); use a positive centre distance"
         )
-    if mode == "ring" and not (0 < E < rmin):
+    if mode == "ring" and not (0 < E and rmin - E > 1e-12 * rmin):
         raise GeometryError(
             f"centre_distance = {E:.9g} m: the wheel inside this ring (radius ρ - E) needs"
             f" 0 < E < {rmin:.9g} m (the ring's least radius)"
@@ -643,8 +643,9 @@ def _build(own: Wheel, mode: str, E: float, target: float | None, *, swapped: bo
     c0 = sgn * E
     _check_partner(own, c0, c1, mode, E)
     rmin, rmax, phi_min = own.extremes()
-    a0 = (phi_min + HALF_PI) % TWO_PI
+    a0 = (phi_min + HALF_PI + math.pi) % TWO_PI - math.pi  # as the line solve: in [-π, π)
     if own.is_round:
+        a0 = 0.0  # any angle will do: start the count at zero
         rmap = _RoundMap(rmax, c0 + c1 * rmax, a0)
     elif own.is_polygon:
         rmap = _EdgeMap(own, c0, c1, a0)
