@@ -64,5 +64,7 @@ def run_job(name: str, sc: Scenario, progress=None) -> dict:
         The job's JSON-ready result.
     """
     from ridesim.export.results import json_ready
+    from ridesim.jobs.hub import require_line
 
+    require_line(sc, name)
     return json_ready(JOBS[name](sc, progress=progress))
