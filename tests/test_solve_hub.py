@@ -254,3 +254,14 @@ def test_other_bad_input():
         rs.hub_for(w, ratio=1, centre_distance=1.0)
     with pytest.raises(InputError):
         rs.hub_for(w, side="around")
+
+
+def test_wheel_for_hub_recovers_the_square():
+    """The hub of a square wheel (ratio 2, 8 lobes) gives the square back with 4 hub periods
+    per wheel turn: least radius the apothem a, greatest a√2 (the corners), same E."""
+    sq = rs.hub_for(rs.Wheel.polygon(sides=4, apothem=0.3), ratio=2)
+    back = rs.wheel_for_hub(sq.hub, lobes=4)
+    np.testing.assert_allclose(back.centre_distance, sq.centre_distance, rtol=1e-10)
+    rmin, rmax, _ = back.wheel.extremes()
+    np.testing.assert_allclose([rmin, rmax], [0.3, 0.3 * math.sqrt(2)], rtol=1e-9)
+    assert back.wheel.symmetry == 4 and back.ratio == pytest.approx(2.0, rel=1e-12)
