@@ -1,0 +1,198 @@
+"""A non-circular gear pair in pymunk: both members on pivots, rolling on their pitch curves.
+
+The hub (driven) turns on a fixed pivot at the origin against a load torque (a
+Coulomb brake: a motor held at rest with its torque limited to the load). The wheel
+(driver) turns on a pivot carried by a carriage that slides along the line of centres
+(a groove at ``(0, E)``) and is pressed towards the hub by gravity, the preload a
+friction-driven pair needs; a motor turns the wheel at a constant speed relative to the
+carriage. Both bodies are made of convex fan pieces about their centres (a star-shaped
+outline splits into such pieces exactly), and their centres of mass sit on their pivots.
+
+:func:`run_gear_pair` records the angles, so that the driven speed over the driving
+speed can be compared with the analytic ``dψ/dθ = r/ρ``
+(:meth:`ridesim.solve.hub.HubPair.speed_ratio`).
+"""
+
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass
+
+import numpy as np
+
+from ridesim.errors import InputError, SimulationError
+
+__all__ = ["GearRun", "run_gear_pair"]
+
+TWO_PI = 2.0 * math.pi
+G = 9.80665
+
+
+@dataclass(frozen=True)
+class GearRun:
+    """Record of a simulated gear pair.
+
+    Attributes
+    ----------
+    t_s : ndarray
+        Time [s].
+    theta_rad : ndarray
+        Wheel (driver) turn [rad], clockwise, in the pair's convention.
+    psi_rad : ndarray
+        Hub (driven) turn [rad], anticlockwise, in the pair's convention.
+    centre_distance_m : ndarray
+        Measured distance [m] between the pivots (the carriage rides on the contact).
+    load_torque_Nm : float
+        Brake torque on the hub [N m].
+    """
+
+    t_s: np.ndarray
+    theta_rad: np.ndarray
+    psi_rad: np.ndarray
+    centre_distance_m: np.ndarray
+    load_torque_Nm: float
+
+    def speed_ratio(self, window: int = 5) -> tuple[np.ndarray, np.ndarray]:
+        """Driven over driving speed, ``Δψ/Δθ`` over ``2 window`` steps, and the wheel angle.
+
+        Returns
+        -------
+        theta : ndarray
+            Wheel angle [rad] at the middle of each window.
+        ratio : ndarray
+            Measured ``dψ/dθ``.
+        """
+        w = int(window)
+        th, ps = self.theta_rad, self.psi_rad
+        return th[w:-w], (ps[2 * w:] - ps[:-2 * w]) / (th[2 * w:] - th[:-2 * w])
+
+
+def _fan(v: np.ndarray, max_edges: int = 12) -> list[np.ndarray]:
+    """Split a star-shaped polygon (about the origin, anticlockwise) into convex fan pieces."""
+    n = len(v)
+    pieces, start = [], 0
+    while start < n:
+        stop = start + 1
+        while stop - start < max_edges and stop < n:
+            cand = np.vstack([[0.0, 0.0], v[start:stop + 2 if stop + 1 < n else n], v[:1]
+                              if stop + 1 >= n else np.empty((0, 2))])
+            if not _convex(cand):
+                break
+            stop += 1
+        idx = [(start + k) % n for k in range(stop - start + 1)]
+        pieces.append(np.vstack([[0.0, 0.0], v[idx]]))
+        start = stop
+    return pieces
+
+
+def _convex(p: np.ndarray) -> bool:
+    d = np.diff(np.vstack([p, p[:1]]), axis=0)
+    cross = d[:, 0] * np.roll(d[:, 1], -1) - d[:, 1] * np.roll(d[:, 0], -1)
+    return bool(np.all(cross > -1e-15))
+
+
+def _rim(body, n: int) -> np.ndarray:
+    if body.is_polygon:
+        return np.array(body.vertices, dtype=float)
+    phi = np.linspace(0.0, TWO_PI, int(n), endpoint=False)
+    if body.kinks:
+        phi = np.unique(np.concatenate([phi, np.mod(body.kinks, TWO_PI)]))
+    r = body.radius(phi)
+    return np.column_stack([r * np.cos(phi), r * np.sin(phi)])
+
+
+def run_gear_pair(pair, *, driver_speed_rad_s: float = 2.0, turns: float = 1.0,
+                  timestep_s: float = 5e-4, friction: float = 1.5, load_torque_Nm: float = 0.5,
+                  preload_N: float = 200.0, inertia_kg_m2: tuple[float, float] = (0.05, 0.05),
+                  iterations: int = 30, slop_m: float = 1e-4, rim_points: int = 360) -> GearRun:
+    """Simulate a closed outside hub pair as gears: the driver at constant speed, the driven braked.
+
+    Parameters
+    ----------
+    pair : HubPair
+        A closed pair with ``side = "outside"``.
+    driver_speed_rad_s : float
+        Wheel speed [rad/s] (clockwise).
+    turns : float
+        Wheel turns to simulate.
+    timestep_s : float
+        Step [s].
+    friction : float
+        Coulomb coefficient at the contact.
+    load_torque_Nm : float
+        Brake torque on the hub [N m].
+    preload_N : float
+        Force [N] pressing the wheel's carriage towards the hub (its weight).
+    inertia_kg_m2 : pair of float
+        Moments of inertia of wheel and hub about their pivots [kg m^2].
+    iterations : int
+        Constraint solver iterations per step.
+    slop_m : float
+        Allowed contact overlap [m].
+    rim_points : int
+        Polygon vertices of a smooth rim.
+
+    Returns
+    -------
+    GearRun
+    """
+    import pymunk
+
+    if pair.side != "outside":
+        raise InputError("run_gear_pair simulates a pair outside each other (side = 'outside')")
+    for name, v in (("driver_speed_rad_s", driver_speed_rad_s), ("turns", turns),
+                    ("timestep_s", timestep_s), ("friction", friction), ("preload_N", preload_N)):
+        if not (isinstance(v, (int, float)) and math.isfinite(v) and v > 0):
+            raise InputError(f"{name} must be a number > 0, got {v!r}")
+    E = pair.centre_distance
+    space = pymunk.Space()
+    space.iterations = int(iterations)
+    space.gravity = (0.0, -G)
+    space.collision_slop = float(slop_m)
+    space.collision_persistence = 1
+    static = space.static_body
+
+    hub = pymunk.Body(1.0, float(inertia_kg_m2[1]))  # centre of mass on the pivot
+    wheel = pymunk.Body(1.0, float(inertia_kg_m2[0]))
+    carriage = pymunk.Body(max(preload_N / G - 1.0, 1e-3), float("inf"))
+    hub.position = (0.0, 0.0)
+    carriage.position = (0.0, E)
+    wheel.position = (0.0, E)
+    th0 = float(pair.wheel_angle(0.0))  # ψ = 0 here
+    wheel.angle = -th0  # the wheel frame turned clockwise by θ
+    w0 = float(driver_speed_rad_s)
+    wheel.angular_velocity = -w0
+    hub.angular_velocity = w0 * float(pair.speed_ratio(th0))
+    mu = math.sqrt(float(friction))  # pymunk multiplies the two shapes' coefficients
+    shapes = []
+    for body, rim in ((wheel, _rim(pair.wheel, rim_points)), (hub, _rim(pair.hub, rim_points))):
+        for piece in _fan(rim):
+            sh = pymunk.Poly(body, [(float(x), float(y)) for x, y in piece])
+            sh.friction = mu
+            shapes.append(sh)
+    groove = pymunk.GrooveJoint(static, carriage, (0.0, 0.5 * E), (0.0, 1.5 * E), (0.0, 0.0))
+    axle = pymunk.PivotJoint(carriage, wheel, (0.0, 0.0), (0.0, 0.0))
+    pin = pymunk.PivotJoint(static, hub, (0.0, 0.0), (0.0, 0.0))
+    drive = pymunk.SimpleMotor(carriage, wheel, w0)
+    brake = pymunk.SimpleMotor(static, hub, 0.0)
+    brake.max_force = float(load_torque_Nm)
+    space.add(hub, wheel, carriage, *shapes, groove, axle, pin, drive, brake)
+
+    n = int(math.ceil(turns * TWO_PI / w0 / timestep_s))
+    t = np.empty(n + 1)
+    th = np.empty(n + 1)
+    ps = np.empty(n + 1)
+    cd = np.empty(n + 1)
+    a_w0, a_h0 = wheel.angle, hub.angle
+    for i in range(n + 1):
+        t[i] = i * timestep_s
+        th[i] = th0 - (wheel.angle - a_w0)
+        ps[i] = hub.angle - a_h0
+        cd[i] = carriage.position.y
+        if i < n:
+            space.step(timestep_s)
+    if not np.all(np.isfinite(cd)) or np.max(np.abs(cd - E)) > 0.25 * E:
+        raise SimulationError("the gear pair flew apart in the simulation (pivot distance off by"
+                              " more than a quarter of E); reduce the step or raise the preload")
+    return GearRun(t_s=t, theta_rad=th, psi_rad=ps, centre_distance_m=cd,
+                   load_torque_Nm=float(load_torque_Nm))
