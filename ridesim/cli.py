@@ -120,6 +120,11 @@ def _cmd_check(sc, args) -> tuple[dict, str]:
 
 
 def _cmd_simulate(sc, args) -> tuple[dict, str]:
+    if sc.path.is_hub:
+        from ridesim.jobs.hub import simulate_hub
+
+        res = simulate_hub(sc)
+        return res.to_dict(), res.to_text()
     from ridesim.metrics.ride import simulate
 
     progress = None

@@ -109,5 +109,18 @@ def test_hub_with_track_or_unsupported_job_is_refused(tmp_path, capsys):
     f.write_text('[track]\nshape = "wave"\namplitude_m = 0.02\nwavelength_m = 0.3\n[path]\nkind = "hub"\n')
     assert main(["solve", str(f)]) == 2
     assert "needs a [wheel]" in capsys.readouterr().err
-    assert main(["simulate", str(SCENARIOS / "drum_carousel.toml")]) == 2
+    assert main(["size-motor", str(SCENARIOS / "drum_carousel.toml")]) == 2
     assert "does not handle" in capsys.readouterr().err
+    assert main(["simulate", str(SCENARIOS / "drum_carousel.toml")]) == 2  # rings: not yet
+    assert "ring" in capsys.readouterr().err
+
+
+def test_simulate_elliptic_gear_pair(capsys):
+    """The demo pair simulated at constant driver speed: driven speed within 2 % of the
+    analytic r/(2a - r) all along, its range the classical (1-e)/(1+e) .. (1+e)/(1-e)."""
+    assert main(["simulate", str(SCENARIOS / "elliptic_gear_pair.toml"), "--json"]) == 0
+    out = json.loads(capsys.readouterr().out)
+    assert out["speed_ratio_error_max"] < 0.02 and out["drifts"] is False
+    assert out["speed_ratio_min"] == pytest.approx((1 - E_ECC) / (1 + E_ECC), rel=0.02)
+    assert out["speed_ratio_max"] == pytest.approx((1 + E_ECC) / (1 - E_ECC), rel=0.02)
+    assert out["cautions"]

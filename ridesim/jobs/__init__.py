@@ -26,6 +26,10 @@ def _check(sc: Scenario, progress=None) -> dict:
 
 
 def _simulate(sc: Scenario, progress=None) -> dict:
+    if sc.path.is_hub:
+        from ridesim.jobs.hub import simulate_hub
+
+        return simulate_hub(sc).to_dict()
     from ridesim.metrics.ride import simulate
 
     return simulate(sc, progress=progress).to_dict()

@@ -1,6 +1,7 @@
 """Jobs for a wheel rolling around a hub (``path.kind = "hub"``): solve text and check.
 
-The simulation, motor sizing, clip and report of a hub path are not built yet;
+A hub scenario is simulated as a gear pair (:func:`simulate_hub`); motor sizing, the
+clip and the report of a hub path are not built yet;
 :data:`HUB_JOBS` names the jobs that handle one, and :func:`require_line` refuses the
 others with one line.
 """
@@ -16,10 +17,11 @@ from ridesim.safety import caution_lines, with_safety
 from ridesim.scenario.build import solve_hub_scenario
 from ridesim.scenario.load import Scenario
 
-__all__ = ["HUB_JOBS", "HubCheckResult", "check_hub", "solve_hub_text", "require_line"]
+__all__ = ["HUB_JOBS", "HubCheckResult", "HubSimResult", "check_hub", "simulate_hub", "solve_hub_text",
+           "require_line"]
 
 #: Jobs (command names) that handle a hub path.
-HUB_JOBS = ("solve", "check", "export")
+HUB_JOBS = ("solve", "check", "export", "simulate")
 
 HUB_CAUTIONS = (
     "The hub check is kinematic: rigid pitch curves, contact on the line of centres, no tooth"
@@ -191,3 +193,112 @@ def check_hub(sc: Scenario) -> HubCheckResult:
                          f" {rad * 1000:.2f} mm): as gears, no rack or hob can cut it; a shaper"
                          " cutter of smaller pitch radius can (Litvin et al. 2009 [memory])")
     return HubCheckResult(sc.name, not reasons, reasons, notes, out, a, avail, cautions)
+
+
+@dataclass
+class HubSimResult:
+    """A simulated gear pair (hub scenario) against its analytic speed ratio.
+
+    Attributes
+    ----------
+    name : str
+        Scenario name.
+    figures : dict
+        Measured and analytic figures with units in the key names.
+    drifts : bool
+        True when the driven member's phase left the analytic one by more than 0.01 rad.
+    cautions : list of str
+        Safety cautions.
+    """
+
+    name: str
+    figures: dict
+    drifts: bool
+    cautions: list[str]
+
+    def to_dict(self) -> dict:
+        """JSON-ready figures."""
+        return {"name": self.name, "path": "hub", **self.figures, "drifts": self.drifts,
+                "cautions": list(self.cautions)}
+
+    def to_text(self) -> str:
+        """The run as text."""
+        f = self.figures
+        lines = [f"scenario: {self.name} (gear pair on fixed centres, simulated in pymunk)",
+                 f"driver speed {f['driver_speed_rad_s']:.4g} rad/s for {f['driver_turns']:.4g} turn(s);"
+                 f" brake torque on the hub {f['load_torque_Nm']:.4g} N m, preload {f['preload_N']:.4g} N",
+                 f"driven/driving speed: measured {f['speed_ratio_min']:.5g} .. {f['speed_ratio_max']:.5g},"
+                 f" analytic {f['analytic_speed_ratio_min']:.5g} .. {f['analytic_speed_ratio_max']:.5g}",
+                 f"largest error against the analytic ratio: {100 * f['speed_ratio_error_max']:.3f} %",
+                 f"driven phase off the analytic by at most {f['phase_drift_rad']:.4g} rad",
+                 "pivot distance off the centre distance by at most"
+                 f" {1000 * f['centre_distance_error_m']:.4f} mm"]
+        if self.drifts:
+            lines.append("DRIFTS: the driven member slipped out of phase (more than 0.01 rad);"
+                         " raise the friction or the preload")
+        lines += caution_lines(self.cautions)
+        return "\n".join(lines)
+
+
+def simulate_hub(sc: Scenario) -> HubSimResult:
+    """Simulate a hub scenario (outside) as a gear pair: the driver at constant shaft speed.
+
+    Both parts are plates of the ``[wheel]`` thickness and density (the wheel's
+    ``mass_kg``/``inertia_kg_m2`` override its own), balanced on their pivots. The driver is
+    pressed against the hub by ``path.preload_N`` (unset: the wheel's weight; the preload a
+    friction drive needs) and turns at ``drive.shaft_speed_rad_s`` (mode shaft_speed) or at
+    ``drive.speed_m_s`` over the wheel's mean contact radius, its motor limited to
+    ``drive.max_torque_Nm``; the hub is braked by ``path.load_torque_Nm``.
+
+    Parameters
+    ----------
+    sc : Scenario
+        Validated scenario with ``path.kind = "hub"``, ``side = "outside"``.
+
+    Returns
+    -------
+    HubSimResult
+    """
+    import numpy as np
+
+    from ridesim.scenario.build import wheel_mass
+    from ridesim.sim.hub import run_gear_pair
+
+    if sc.path.side != "outside":
+        raise ScenarioError("simulate handles a wheel around a hub (path.side = \"outside\") only;"
+                            " a ring is not simulated yet")
+    if sc.drive.mode == "torque":
+        raise ScenarioError("simulate drives a gear pair at a constant shaft speed: use drive.mode ="
+                            " \"shaft_speed\" (or \"speed\")")
+    pair = solve_hub_scenario(sc)
+    if not pair.closed:
+        raise ScenarioError("the hub does not close at path.centre_distance_m; give path.ratio")
+    th = np.linspace(0.0, 2 * math.pi, 2048, endpoint=False)
+    if sc.drive.mode == "shaft_speed":
+        w = float(sc.drive.shaft_speed_rad_s)
+    else:
+        w = float(sc.drive.speed_m_s) / float(np.mean(pair.wheel_radius(th)))
+    mw = wheel_mass(sc, pair.wheel)
+    mh = pair.hub.mass_properties(sc.wheel.thickness_m, sc.wheel.density_kg_m3)
+    turns = float(sc.run.duration_s) * w / (2 * math.pi)
+    load = float(sc.path.load_torque_Nm)
+    preload = sc.path.preload_N if sc.path.preload_N is not None else mw.mass_kg * 9.80665
+    run = run_gear_pair(pair, driver_speed_rad_s=w, turns=turns, timestep_s=float(sc.run.timestep_s),
+                        friction=float(sc.surface.friction), load_torque_Nm=load,
+                        preload_N=float(preload), mass_kg=(mw.mass_kg, mh.mass_kg),
+                        inertia_kg_m2=(mw.inertia_kg_m2, mh.inertia_kg_m2),
+                        iterations=int(sc.run.iterations),
+                        max_drive_torque_Nm=float(sc.drive.max_torque_Nm))
+    theta, ratio = run.speed_ratio(window=5)
+    an = pair.speed_ratio(theta)
+    drift = float(np.max(np.abs(run.psi_rad - pair.hub_angle(run.theta_rad))))
+    sr = pair.speed_ratio(th)
+    figures = {"driver_speed_rad_s": w, "driver_turns": turns, "load_torque_Nm": load,
+               "preload_N": float(preload),
+               "speed_ratio_min": float(ratio.min()), "speed_ratio_max": float(ratio.max()),
+               "analytic_speed_ratio_min": float(sr.min()), "analytic_speed_ratio_max": float(sr.max()),
+               "speed_ratio_error_max": float(np.max(np.abs(ratio / an - 1.0))),
+               "phase_drift_rad": drift,
+               "centre_distance_error_m": float(np.max(np.abs(run.centre_distance_m
+                                                              - pair.centre_distance)))}
+    return HubSimResult(sc.name, figures, drift > 0.01, with_safety(HUB_CAUTIONS))

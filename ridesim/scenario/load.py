@@ -471,12 +471,19 @@ class PathSpec:
         Hub only: hub centre to axle in m, when given.
     ratio : float or None
         Hub only: wheel turns per hub turn, when given (the centre distance is then solved).
+    load_torque_Nm : float
+        Hub only, simulate: brake torque on the driven hub in N*m.
+    preload_N : float or None
+        Hub only, simulate: force in N pressing the wheel's axle towards the hub; None: the
+        wheel's weight.
     """
 
     kind: str = default_of("path.kind")
     side: str = default_of("path.side")
     centre_distance_m: float | None = default_of("path.centre_distance_m")
     ratio: float | None = default_of("path.ratio")
+    load_torque_Nm: float = default_of("path.load_torque_Nm")
+    preload_N: float | None = default_of("path.preload_N")
 
     @property
     def is_hub(self) -> bool:
@@ -1172,9 +1179,11 @@ def _parse_path(raw: Any) -> PathSpec:
     t.only([f.name for f in fields(PathSpec)])
     kind = t.get("kind")
     spec = PathSpec(kind=kind, side=t.get("side"), centre_distance_m=t.get("centre_distance_m"),
-                    ratio=t.get("ratio"))
+                    ratio=t.get("ratio"), load_torque_Nm=t.get("load_torque_Nm"),
+                    preload_N=t.get("preload_N"))
     if kind == "line":
-        extra = [k for k in ("side", "centre_distance_m", "ratio") if t.has(k)]
+        extra = [k for k in ("side", "centre_distance_m", "ratio", "load_torque_Nm", "preload_N")
+                 if t.has(k)]
         if extra:
             raise ScenarioError(
                 f"path.{extra[0]} belongs to a hub path; set path.kind = \"hub\" or remove it"

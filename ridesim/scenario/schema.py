@@ -286,6 +286,13 @@ KEYS: tuple[Key, ...] = (
         "hub only: wheel turns per hub turn; the centre distance is solved so the hub closes"
         " (ratio x wheel symmetry must be whole; inside a ring > 1)", gt=0,
         plausible=(0.1, 50.0), source="common practice: gear ratios of one stage"),
+    Key("path", "load_torque_Nm", "real", 0.0, "N m",
+        "hub only, simulate: brake torque on the driven hub (a gear pair's load)", ge=0,
+        plausible=(0.0, 5000.0), source=_TORQUE_SRC + "; 0: a free hub"),
+    Key("path", "preload_N", "real", None, "N",
+        "hub only, simulate: force pressing the wheel's axle towards the hub; unset: the"
+        " wheel's weight", gt=0, plausible=(0.01, 20000.0),
+        source="common practice: a light spring on a desk model to a ride car's weight"),
     # ---------------------------------------------------------------- [vehicle]
     Key("vehicle", "body_mass_kg", "real", 10.0, "kg", "body mass without wheels",
         ge=0, plausible=(0.0, 1000.0),

@@ -3,7 +3,7 @@
 The hub (driven) turns on a fixed pivot at the origin against a load torque (a
 Coulomb brake: a motor held at rest with its torque limited to the load). The wheel
 (driver) turns on a pivot carried by a carriage that slides along the line of centres
-(a groove at ``(0, E)``) and is pressed towards the hub by gravity, the preload a
+(a groove at ``(0, E)``) and is pressed towards the hub by a constant force, the preload a
 friction-driven pair needs; a motor turns the wheel at a constant speed relative to the
 carriage. Both bodies are made of convex fan pieces about their centres (a star-shaped
 outline splits into such pieces exactly), and their centres of mass sit on their pivots.
@@ -104,7 +104,9 @@ def _rim(body, n: int) -> np.ndarray:
 def run_gear_pair(pair, *, driver_speed_rad_s: float = 2.0, turns: float = 1.0,
                   timestep_s: float = 5e-4, friction: float = 1.5, load_torque_Nm: float = 0.5,
                   preload_N: float = 200.0, inertia_kg_m2: tuple[float, float] = (0.05, 0.05),
-                  iterations: int = 30, slop_m: float = 1e-4, rim_points: int = 360) -> GearRun:
+                  mass_kg: tuple[float, float] = (1.0, 1.0),
+                  iterations: int = 30, slop_m: float = 1e-4, rim_points: int = 360,
+                  max_drive_torque_Nm: float | None = None) -> GearRun:
     """Simulate a closed outside hub pair as gears: the driver at constant speed, the driven braked.
 
     Parameters
@@ -122,15 +124,20 @@ def run_gear_pair(pair, *, driver_speed_rad_s: float = 2.0, turns: float = 1.0,
     load_torque_Nm : float
         Brake torque on the hub [N m].
     preload_N : float
-        Force [N] pressing the wheel's carriage towards the hub (its weight).
+        Force [N] pressing the wheel's carriage towards the hub (a spring's or a weight's;
+        applied as a constant force on a carriage as heavy as the wheel).
     inertia_kg_m2 : pair of float
         Moments of inertia of wheel and hub about their pivots [kg m^2].
+    mass_kg : pair of float
+        Masses of wheel and hub [kg] (centres of mass on the pivots).
     iterations : int
         Constraint solver iterations per step.
     slop_m : float
         Allowed contact overlap [m].
     rim_points : int
         Polygon vertices of a smooth rim.
+    max_drive_torque_Nm : float, optional
+        Torque limit [N m] of the driving motor; None: unlimited.
 
     Returns
     -------
@@ -147,14 +154,15 @@ def run_gear_pair(pair, *, driver_speed_rad_s: float = 2.0, turns: float = 1.0,
     E = pair.centre_distance
     space = pymunk.Space()
     space.iterations = int(iterations)
-    space.gravity = (0.0, -G)
+    space.gravity = (0.0, 0.0)  # the preload is a force; centres of mass sit on the pivots
     space.collision_slop = float(slop_m)
     space.collision_persistence = 1
     static = space.static_body
 
-    hub = pymunk.Body(1.0, float(inertia_kg_m2[1]))  # centre of mass on the pivot
-    wheel = pymunk.Body(1.0, float(inertia_kg_m2[0]))
-    carriage = pymunk.Body(max(preload_N / G - 1.0, 1e-3), float("inf"))
+    hub = pymunk.Body(float(mass_kg[1]), float(inertia_kg_m2[1]))  # centre of mass on the pivot
+    wheel = pymunk.Body(float(mass_kg[0]), float(inertia_kg_m2[0]))
+    carriage = pymunk.Body(float(mass_kg[0]), float("inf"))
+    push = (0.0, -float(preload_N))
     hub.position = (0.0, 0.0)
     carriage.position = (0.0, E)
     wheel.position = (0.0, E)
@@ -174,6 +182,8 @@ def run_gear_pair(pair, *, driver_speed_rad_s: float = 2.0, turns: float = 1.0,
     axle = pymunk.PivotJoint(carriage, wheel, (0.0, 0.0), (0.0, 0.0))
     pin = pymunk.PivotJoint(static, hub, (0.0, 0.0), (0.0, 0.0))
     drive = pymunk.SimpleMotor(carriage, wheel, w0)
+    if max_drive_torque_Nm is not None:
+        drive.max_force = float(max_drive_torque_Nm)
     brake = pymunk.SimpleMotor(static, hub, 0.0)
     brake.max_force = float(load_torque_Nm)
     space.add(hub, wheel, carriage, *shapes, groove, axle, pin, drive, brake)
@@ -190,6 +200,7 @@ def run_gear_pair(pair, *, driver_speed_rad_s: float = 2.0, turns: float = 1.0,
         ps[i] = hub.angle - a_h0
         cd[i] = carriage.position.y
         if i < n:
+            carriage.apply_force_at_local_point(push, (0.0, 0.0))
             space.step(timestep_s)
     if not np.all(np.isfinite(cd)) or np.max(np.abs(cd - E)) > 0.25 * E:
         raise SimulationError("the gear pair flew apart in the simulation (pivot distance off by"
