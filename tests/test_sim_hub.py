@@ -43,3 +43,32 @@ def test_gear_pair_refuses_a_ring():
     pair = rs.hub_for(rs.Wheel.circle(radius=0.2), ratio=2, side="inside")
     with pytest.raises(InputError):
         run_gear_pair(pair)
+
+
+@pytest.mark.parametrize("side", ["outside", "inside"])
+def test_carousel_arm_follows_the_hub_angle(side):
+    """Hub fixed, wheel on an arm about its centre: rolling without slip turns the arm to
+    ``π/2 - ψ(θ)`` around a hub and ``ψ(θ) - π/2`` inside a ring, with ψ the pitch-curve
+    integral ∫ r/(E ∓ r) dθ (Litvin & Fuentes 2004), and keeps the axle at E. Around the
+    hub: the elliptical pair, whose ψ is the transmission function
+    2 atan(((1-e)/(1+e)) tan(φ/2)) (Litvin et al. 2009)."""
+    from ridesim.sim.hub import run_carousel
+
+    if side == "outside":
+        a, b = 0.3, 0.27
+        c = math.sqrt(a * a - b * b)
+        e = c / a
+        pair = rs.hub_for(rs.Wheel.ellipse(semi_axes=(a, b), axle=(c, 0.0)), ratio=1)
+    else:
+        pair = rs.hub_for(rs.Wheel.polar("0.3 + 0.03*cos(2*phi)"), ratio=1.5, side="inside")
+    run = run_carousel(pair, turns=1.0)
+    assert run.theta_rad[-1] - run.theta_rad[0] == pytest.approx(2 * math.pi, rel=1e-3)
+    if side == "outside":
+        phi = run.theta_rad - 0.5 * math.pi
+        k = np.round(phi / (2 * math.pi))
+        psi = 2 * np.arctan((1 - e) / (1 + e) * np.tan((phi - 2 * math.pi * k) / 2)) + 2 * math.pi * k
+        expected = 0.5 * math.pi - psi
+    else:
+        expected = pair.hub_angle(run.theta_rad) - 0.5 * math.pi
+    assert np.max(np.abs(run.arm_rad - expected)) < 0.01
+    assert np.max(np.abs(run.axle_radius_m - pair.centre_distance)) < 2e-3 * pair.centre_distance

@@ -22,7 +22,7 @@ import numpy as np
 
 from ridesim.errors import InputError, SimulationError
 
-__all__ = ["GearRun", "run_gear_pair"]
+__all__ = ["GearRun", "CarouselRun", "run_gear_pair", "run_carousel"]
 
 TWO_PI = 2.0 * math.pi
 G = 9.80665
@@ -207,3 +207,138 @@ def run_gear_pair(pair, *, driver_speed_rad_s: float = 2.0, turns: float = 1.0,
                               " more than a quarter of E); reduce the step or raise the preload")
     return GearRun(t_s=t, theta_rad=th, psi_rad=ps, centre_distance_m=cd,
                    load_torque_Nm=float(load_torque_Nm))
+
+
+@dataclass(frozen=True)
+class CarouselRun:
+    """Record of a simulated carousel: the hub fixed, the wheel on an arm about its centre.
+
+    Attributes
+    ----------
+    t_s : ndarray
+        Time [s].
+    theta_rad : ndarray
+        Wheel turn relative to the arm [rad] (clockwise), in the pair's convention.
+    arm_rad : ndarray
+        Arm angle [rad], anticlockwise from +x in the hub's frame.
+    axle_radius_m : ndarray
+        Distance [m] from the hub's centre to the axle.
+    """
+
+    t_s: np.ndarray
+    theta_rad: np.ndarray
+    arm_rad: np.ndarray
+    axle_radius_m: np.ndarray
+
+
+def run_carousel(pair, *, wheel_speed_rad_s: float = 2.0, turns: float = 1.0,
+                 timestep_s: float = 5e-4, friction: float = 1.5, preload_N: float = 200.0,
+                 mass_kg: float = 1.0, inertia_kg_m2: float = 0.05, arm_inertia_kg_m2: float = 0.05,
+                 iterations: int = 30, slop_m: float = 1e-4, rim_points: int = 360) -> CarouselRun:
+    """Simulate a carousel or drum: the hub (or ring) fixed, an arm pivoted at its centre.
+
+    The wheel's axle rides in a radial groove on the arm and is pressed against the hub
+    (outwards against a ring) by ``preload_N``; a motor on the arm turns the wheel at a
+    constant speed relative to the arm, and the arm swings round as the wheel rolls. Gravity
+    is off (a horizontal carousel; the preload stands for a spring).
+
+    Parameters
+    ----------
+    pair : HubPair
+        A closed pair, either side.
+    wheel_speed_rad_s : float
+        Wheel speed relative to the arm [rad/s] (clockwise).
+    turns : float
+        Wheel turns relative to the arm to simulate.
+    timestep_s : float
+        Step [s].
+    friction : float
+        Coulomb coefficient at the contact.
+    preload_N : float
+        Force [N] pressing the axle towards the hub's centre (outside) or away from it (inside).
+    mass_kg : float
+        Wheel mass [kg] (and its carriage's).
+    inertia_kg_m2 : float
+        Wheel moment of inertia about its axle [kg m^2].
+    arm_inertia_kg_m2 : float
+        Arm moment of inertia about the hub's centre [kg m^2].
+    iterations : int
+        Constraint solver iterations per step.
+    slop_m : float
+        Allowed contact overlap [m].
+    rim_points : int
+        Polygon vertices of a smooth rim.
+
+    Returns
+    -------
+    CarouselRun
+    """
+    import pymunk
+
+    for name, v in (("wheel_speed_rad_s", wheel_speed_rad_s), ("turns", turns),
+                    ("timestep_s", timestep_s), ("friction", friction), ("preload_N", preload_N)):
+        if not (isinstance(v, (int, float)) and math.isfinite(v) and v > 0):
+            raise InputError(f"{name} must be a number > 0, got {v!r}")
+    E = pair.centre_distance
+    inside = pair.side == "inside"
+    space = pymunk.Space()
+    space.iterations = int(iterations)
+    space.gravity = (0.0, 0.0)
+    space.collision_slop = float(slop_m)
+    space.collision_persistence = 1
+    static = space.static_body
+    th0 = float(pair.wheel_angle(0.0))
+    arm0, axle0, spin0 = pair.poses(th0)
+    arm0, spin0 = float(arm0), float(spin0)
+
+    arm = pymunk.Body(1.0, float(arm_inertia_kg_m2))
+    carriage = pymunk.Body(float(mass_kg), float(inertia_kg_m2))
+    wheel = pymunk.Body(float(mass_kg), float(inertia_kg_m2))
+    arm.position = (0.0, 0.0)
+    arm.angle = arm0
+    carriage.position = wheel.position = (float(axle0[0]), float(axle0[1]))
+    carriage.angle = arm0
+    wheel.angle = -spin0
+    mu = math.sqrt(float(friction))
+    shapes = []
+    for piece in _fan(_rim(pair.hub, rim_points)):
+        if inside:  # a ring: its rim as segments, the inside open
+            continue
+        sh = pymunk.Poly(static, [(float(x), float(y)) for x, y in piece])
+        sh.friction = mu
+        shapes.append(sh)
+    if inside:
+        rim = _rim(pair.hub, 4 * rim_points)
+        for p, q in zip(rim, np.roll(rim, -1, axis=0), strict=True):
+            sh = pymunk.Segment(static, (float(p[0]), float(p[1])), (float(q[0]), float(q[1])), 0.0)
+            sh.friction = mu
+            shapes.append(sh)
+    for piece in _fan(_rim(pair.wheel, rim_points)):
+        sh = pymunk.Poly(wheel, [(float(x), float(y)) for x, y in piece])
+        sh.friction = mu
+        shapes.append(sh)
+    # In the arm's frame the arm points along +x.
+    pin = pymunk.PivotJoint(static, arm, (0.0, 0.0), (0.0, 0.0))
+    groove = pymunk.GrooveJoint(arm, carriage, (0.5 * E if not inside else 0.0, 0.0),
+                                (1.5 * E + (0.5 * E if inside else 0.0), 0.0), (0.0, 0.0))
+    lock = pymunk.GearJoint(arm, carriage, 0.0, 1.0)  # the carriage turns with the arm
+    axle = pymunk.PivotJoint(carriage, wheel, (0.0, 0.0), (0.0, 0.0))
+    drive = pymunk.SimpleMotor(carriage, wheel, float(wheel_speed_rad_s))
+    space.add(arm, carriage, wheel, *shapes, pin, groove, lock, axle, drive)
+
+    n = int(math.ceil(turns * TWO_PI / wheel_speed_rad_s / timestep_s))
+    t, th, am, rr = (np.empty(n + 1) for _ in range(4))
+    sign = -1.0 if inside else 1.0  # towards the centre outside, away from it inside
+    for i in range(n + 1):
+        t[i] = i * timestep_s
+        am[i] = arm.angle
+        th[i] = th0 - (wheel.angle - carriage.angle - (-spin0 - arm0))
+        rr[i] = math.hypot(*carriage.position)
+        if i < n:
+            d = carriage.position / max(carriage.position.length, 1e-12)
+            carriage.apply_force_at_world_point(-sign * float(preload_N) * d, carriage.position)
+            space.step(timestep_s)
+    if not np.all(np.isfinite(rr)) or np.max(np.abs(rr - E)) > 0.25 * E:
+        raise SimulationError("the carousel's wheel left the hub in the simulation (axle off its"
+                              " circle by more than a quarter of E); reduce the step or raise the preload")
+    return CarouselRun(t_s=t, theta_rad=th, arm_rad=np.unwrap(am), axle_radius_m=rr)
