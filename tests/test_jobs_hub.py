@@ -124,3 +124,14 @@ def test_simulate_elliptic_gear_pair(capsys):
     assert out["speed_ratio_min"] == pytest.approx((1 - E_ECC) / (1 + E_ECC), rel=0.02)
     assert out["speed_ratio_max"] == pytest.approx((1 + E_ECC) / (1 - E_ECC), rel=0.02)
     assert out["cautions"]
+
+
+def test_render_writes_the_plot_and_the_clip(tmp_path):
+    from PIL import Image
+
+    assert main(["render", str(SCENARIOS / "drum_carousel.toml"), "--out", str(tmp_path),
+                 "--seconds", "1", "--fps", "10"]) == 0
+    assert (tmp_path / "hub_ratio.png").stat().st_size > 0
+    with Image.open(tmp_path / "clip.gif") as im:
+        assert im.n_frames == 10 and im.size == (640, 360)
+    assert "clip.gif" in (tmp_path / "index.md").read_text()

@@ -1,7 +1,8 @@
 """Jobs for a wheel rolling around a hub (``path.kind = "hub"``): solve text and check.
 
-A hub scenario is simulated as a gear pair (:func:`simulate_hub`); motor sizing, the
-clip and the report of a hub path are not built yet;
+A hub scenario is simulated as a gear pair (:func:`simulate_hub`) and rendered as a
+speed-ratio plot and a clip of the carousel (:func:`render_hub`); motor sizing and the
+report of a hub path are not built yet;
 :data:`HUB_JOBS` names the jobs that handle one, and :func:`require_line` refuses the
 others with one line.
 """
@@ -18,10 +19,10 @@ from ridesim.scenario.build import solve_hub_scenario
 from ridesim.scenario.load import Scenario
 
 __all__ = ["HUB_JOBS", "HubCheckResult", "HubSimResult", "check_hub", "simulate_hub", "solve_hub_text",
-           "require_line"]
+           "require_line", "render_hub"]
 
 #: Jobs (command names) that handle a hub path.
-HUB_JOBS = ("solve", "check", "export", "simulate")
+HUB_JOBS = ("solve", "check", "export", "simulate", "render")
 
 HUB_CAUTIONS = (
     "The hub check is kinematic: rigid pitch curves, contact on the line of centres, no tooth"
@@ -302,3 +303,52 @@ def simulate_hub(sc: Scenario) -> HubSimResult:
                "centre_distance_error_m": float(np.max(np.abs(run.centre_distance_m
                                                               - pair.centre_distance)))}
     return HubSimResult(sc.name, figures, drift > 0.01, with_safety(HUB_CAUTIONS))
+
+
+def render_hub(sc: Scenario, out, *, svg: bool = False, clip: bool = True, clip_s: float = 4.0,
+               fps: int = 25, size: tuple[int, int] = (640, 360), progress=None) -> list:
+    """Write a hub scenario's pictures (speed-ratio plot, clip) with a captioned ``index.md``.
+
+    Parameters
+    ----------
+    sc : Scenario
+        Validated scenario with ``path.kind = "hub"``.
+    out : Path
+        Output folder (created).
+    svg : bool
+        Also write an SVG copy of the plot.
+    clip : bool
+        Write ``clip.gif`` (one wheel turn relative to the arm over ``clip_s``).
+    clip_s : float
+        Clip length [s].
+    fps : int
+        Frame rate [1/s].
+    size : (int, int)
+        Clip size [px].
+    progress : callable, optional
+        ``progress(fraction)`` while the clip is drawn.
+
+    Returns
+    -------
+    list of (Path, str)
+        Each file and its caption.
+    """
+    from pathlib import Path
+
+    from ridesim.render.hub import plot_hub_ratio, render_hub_clip
+    from ridesim.render.plots import write_index
+
+    out = Path(out)
+    out.mkdir(parents=True, exist_ok=True)
+    pair = solve_hub_scenario(sc)
+    if not pair.closed:
+        raise ScenarioError("the hub does not close at path.centre_distance_m; give path.ratio")
+    items = [plot_hub_ratio(pair, out / "hub_ratio.png")]
+    if svg:
+        items.append(plot_hub_ratio(pair, out / "hub_ratio.svg"))
+    if clip:
+        items.append(render_hub_clip(pair, out / "clip.gif", duration_s=clip_s, fps=fps, size=size,
+                                     progress=progress))
+    where = "around a hub" if pair.side == "outside" else "inside a ring"
+    write_index(out, items, title=f"{sc.name}: wheel {where}")
+    return items
