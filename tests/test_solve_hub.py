@@ -134,6 +134,16 @@ def test_square_hub_contact_radius():
     assert len(pair.hub.kinks) == 8  # one corner of the hub per seat of a wheel corner
 
 
+def test_hub_extremes_at_its_corners():
+    """An irregular wheel's hub is least where the wheel's farthest corner seats: E - max|v|
+    (the line-of-centres relation at that corner), found exactly, not at a nearby sample."""
+    w = rs.Wheel.polygon_from_vertices([(0.3, -0.2), (0.1, 0.35), (-0.25, 0.1), (-0.2, -0.3)],
+                                       axle=(0.02, 0.01))
+    pair = rs.hub_for(w, ratio=1)
+    far = float(np.max(np.hypot(*np.asarray(w.vertices).T)))
+    np.testing.assert_allclose(pair.hub.extremes()[0], pair.centre_distance - far, rtol=1e-13)
+
+
 # ------------------------------------------------------------------ the straight limit
 
 
