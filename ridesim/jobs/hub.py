@@ -188,7 +188,12 @@ def check_hub(sc: Scenario) -> HubCheckResult:
     if a.friction_demand > avail:
         reasons.append(f"the contact needs friction {a.friction_demand:.4g} (load along the line of"
                        f" centres) but surface.friction is {avail:.4g}")
-    for what, rad in (("wheel", a.wheel_concave_radius_m), ("hub", a.hub_concave_radius_m)):
+    # A ring's material lies outside its curve: where the curve bends in, the ring is convex
+    # (an internal gear is cut by a shaper cutter anyway), so only external curves get the note.
+    concave = [("wheel", a.wheel_concave_radius_m)]
+    if pair.side == "outside":
+        concave.append(("hub", a.hub_concave_radius_m))
+    for what, rad in concave:
         if rad is not None:
             notes.append(f"the {what}'s pitch curve is concave (least radius of curvature"
                          f" {rad * 1000:.2f} mm): as gears, no rack or hob can cut it; a shaper"
