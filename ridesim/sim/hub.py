@@ -68,15 +68,18 @@ class GearRun:
 
 
 def _fan(v: np.ndarray, max_edges: int = 12) -> list[np.ndarray]:
-    """Split a star-shaped polygon (about the origin, anticlockwise) into convex fan pieces."""
+    """Split a star-shaped polygon (about the origin, anticlockwise) into convex fan pieces.
+
+    Each piece is the origin and a run of consecutive vertices, grown while it stays convex
+    (one edge with the origin is a triangle, always convex for a star-shaped outline).
+    """
     n = len(v)
     pieces, start = [], 0
     while start < n:
-        stop = start + 1
+        stop = start + 1  # the piece holds vertices start..stop
         while stop - start < max_edges and stop < n:
-            cand = np.vstack([[0.0, 0.0], v[start:stop + 2 if stop + 1 < n else n], v[:1]
-                              if stop + 1 >= n else np.empty((0, 2))])
-            if not _convex(cand):
+            idx = [(start + k) % n for k in range(stop - start + 2)]  # try one more
+            if not _convex(np.vstack([[0.0, 0.0], v[idx]])):
                 break
             stop += 1
         idx = [(start + k) % n for k in range(stop - start + 1)]
