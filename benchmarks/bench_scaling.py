@@ -28,11 +28,11 @@ import sys
 import time
 
 import numpy as np
-from ridesim.io.scenario import VehicleSpec
 
 import ridesim as rs
 from ridesim.assess.clearance import clearance
 from ridesim.assess.phasing import cart_phasing
+from ridesim.scenario.load import VehicleSpec
 
 SIZES = (512, 1024, 2048, 4096, 8192)
 

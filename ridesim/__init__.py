@@ -14,18 +14,22 @@ from ridesim.errors import (
     ScenarioError,
     SimulationError,
 )
+from ridesim.model.path import AxlePath
 from ridesim.model.track import Track
 from ridesim.model.wheel import MassProperties, Wheel
 from ridesim.solve.forward import track_for
+from ridesim.solve.hub import HubPair, gears_for_ratio, hub_for, wheel_for_hub
 from ridesim.solve.inverse import closure_depths, wheel_for
 from ridesim.solve.pair import Cusp, RollingPair
 
 __all__ = [
     "__version__",
+    "AxlePath",
     "ClosureError",
     "Cusp",
     "FormulaError",
     "GeometryError",
+    "HubPair",
     "InputError",
     "MassProperties",
     "RidesimError",
@@ -35,6 +39,9 @@ __all__ = [
     "Track",
     "Wheel",
     "closure_depths",
+    "gears_for_ratio",
+    "hub_for",
     "track_for",
     "wheel_for",
+    "wheel_for_hub",
 ]

@@ -49,6 +49,11 @@ def _cmd_check(sc, args) -> tuple[dict, str]:
 
 
 def _cmd_simulate(sc, args) -> tuple[dict, str]:
+    if sc.path.is_hub:
+        from ridesim.jobs.hub import simulate_hub
+
+        res = simulate_hub(sc)
+        return res.to_dict(), res.to_text()
     from ridesim.jobs.simulate import simulate, write_probes
 
     progress = None
@@ -131,6 +136,13 @@ def _cmd_export(sc, args) -> tuple[dict, str]:
 
     out = _need_out(args, "export")
     pair = solve_scenario(sc)
+    if sc.path.is_hub:
+        from ridesim.export.drawings import export_hub_drawings
+
+        thick = sc.wheel.thickness_m
+        files = export_hub_drawings(pair, out, name=sc.name, thickness_m=thick,
+                                    title_lines=(sc.description,) if sc.description else ())
+        return {"files": [str(f) for f in files]}, "\n".join(str(f) for f in files)
     thick = sc.wheel.thickness_m if sc.wheel is not None else None
     files = export_drawings(pair, out, name=sc.name, max_section_m=args.section,
                             wheel_thickness_m=thick, title_lines=(sc.description,) if sc.description else ())
@@ -346,6 +358,9 @@ def main(argv: list[str] | None = None) -> int:
         sc = load_scenario(args.scenario)
         for line in sc.warnings:  # valid but outside real builds: most likely a unit slip
             print(f"warning: {line}", file=sys.stderr)
+        from ridesim.jobs.hub import require_line
+
+        require_line(sc, args.command)
         fn = commands[args.command][0]
         data, text = fn(sc, args)
         data = json_ready({**data, "warnings": list(sc.warnings)})

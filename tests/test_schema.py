@@ -23,6 +23,7 @@ SPECS = {
     "vehicle": scenario_module.VehicleSpec, "drive": scenario_module.DriveSpec,
     "surface": scenario_module.SurfaceSpec, "run": scenario_module.RunSpec,
     "duty": scenario_module.DutySpec, "motor": scenario_module.MotorSpec,
+    "path": scenario_module.PathSpec,
 }
 
 # A valid base scenario for the keys of each wheel or track shape.
@@ -182,7 +183,7 @@ def test_cli_prints_warnings_on_stderr_and_in_the_json_list(tmp_path, capsys):
 
 _SUFFIX_UNITS = (  # longest suffix first: the project's key naming rule (DEVELOPERS.md)
     ("_kg_m3", "kg/m^3"), ("_kg_m2", "kg m^2"), ("_rad_s", "rad/s"), ("_m_s2", "m/s^2"),
-    ("_m_s", "m/s"), ("_Nm", "N m"), ("_rad", "rad"), ("_kg", "kg"), ("_s", "s"), ("_m", "m"),
+    ("_m_s", "m/s"), ("_Nm", "N m"), ("_N", "N"), ("_rad", "rad"), ("_kg", "kg"), ("_s", "s"), ("_m", "m"),
 )
 
 

@@ -39,6 +39,7 @@ __all__ = [
     "CHORD_TOL_M",
     "MARGIN_M",
     "export_drawings",
+    "export_hub_drawings",
     "wheel_outline_mm",
     "track_sections",
     "track_profile_mm",
@@ -591,6 +592,127 @@ def export_drawings(pair, out_dir: str | Path, *, name: str, max_section_m: floa
         "keep fingers clear of the track near the wheels, and follow the machinery and ride safety rules",
         "that apply where the build is used.",
         *title_lines,
+        "",
+    ]
+    written.append(write_text_atomic(out / f"{stem}_cut_list.txt", "\n".join(notes)))
+    return written
+
+
+def _centre_svg(body, pts: np.ndarray, name: str, part: str, lines: Sequence[str], hole_m: float,
+                margin_m: float, outer_r_mm: float | None = None) -> str:
+    """One part turning about a centre: outline (cut), centre hole (cut) and cross-hair (score)."""
+    ext = pts if outer_r_mm is None else np.array([[-outer_r_mm, -outer_r_mm], [outer_r_mm, outer_r_mm]])
+    sheet = _Sheet(ext[:, 0].min(), ext[:, 0].max(), ext[:, 1].min(), ext[:, 1].max(), list(lines),
+                   margin_m * 1000)
+    sheet.path(pts, CUT, closed=True, ident="outline")
+    if outer_r_mm is not None:
+        sheet.circle(0.0, 0.0, outer_r_mm, CUT, ident="outer-edge")
+    rh = 0.5 * hole_m * 1000
+    if outer_r_mm is None:  # a ring's centre lies in the cut-out: marked, not drilled
+        sheet.circle(0.0, 0.0, rh, CUT, ident="centre-hole")
+    rmin = float(np.min(np.hypot(pts[:, 0], pts[:, 1])))
+    arm = rh + min(5.0, 0.3 * rmin)
+    sheet.path(np.array([[-arm, 0.0], [arm, 0.0]]), SCORE, closed=False, ident="centre-cross-x")
+    sheet.path(np.array([[0.0, -arm], [0.0, arm]]), SCORE, closed=False, ident="centre-cross-y")
+    desc = (f"{part} outline about its centre (the centre at the origin of the geometry group, y up),"
+            " mm, in the pose of the solve's reference (angle 0).")
+    return sheet.render(f"{name} {part}", desc)
+
+
+def export_hub_drawings(pair, out_dir: str | Path, *, name: str, thickness_m: float | None = None,
+                        title_lines: Sequence[str] = (), hole_m: float = 0.010,
+                        ring_rim_m: float = 0.030, margin_m: float = MARGIN_M) -> list[Path]:
+    """Write full-size cut files of a wheel and the hub (or ring) it rolls on.
+
+    Files (all written atomically), with ``NAME`` the sanitised ``name``:
+
+    * ``NAME_wheel.svg``, ``NAME_wheel.csv``: the wheel about its axle, with the axle hole;
+    * ``NAME_hub.svg``, ``NAME_hub.csv`` (``NAME_ring...`` for a wheel inside a ring): the
+      hub about its centre, with its centre hole; a ring is drawn as its rolling outline cut
+      from a disc ``ring_rim_m`` wider than its greatest radius;
+    * ``NAME_cut_list.txt``: the centre distance to set them at, and what each file holds.
+
+    Parameters
+    ----------
+    pair : HubPair
+        A closed hub pair.
+    out_dir : str or Path
+        Folder for the files (created if missing).
+    name : str
+        Scenario name, used in file names and title blocks.
+    thickness_m : float, optional
+        Plate thickness [m], stated in the title blocks.
+    title_lines : sequence of str
+        Extra lines for every title block.
+    hole_m : float
+        Diameter [m] of the axle hole and of the hub's centre hole (default 10 mm).
+    ring_rim_m : float
+        Width [m] of a ring's plate beyond its greatest radius.
+    margin_m : float
+        Blank margin [m] around the geometry.
+
+    Returns
+    -------
+    list of Path
+        The files written, wheel first.
+    """
+    stem = _safe_name(name)
+    hole = _positive("hole_m", hole_m)
+    rim = _positive("ring_rim_m", ring_rim_m)
+    margin = _positive("margin_m", margin_m)
+    if thickness_m is not None:
+        thickness_m = _positive("thickness_m", thickness_m)
+    if isinstance(title_lines, str):
+        raise InputError("title_lines must be a sequence of strings, not one string; wrap it in a list")
+    wheel, hub = pair.wheel, pair.hub
+    ring = pair.side == "inside"
+    part = "ring" if ring else "hub"
+    wr = wheel.extremes()
+    hr = hub.extremes()
+    for what, rmin in (("wheel", wr[0]),) + ((part, hr[0]),) * (not ring):
+        if hole >= 2 * rmin:
+            raise InputError(f"hole_m = {hole:g} m does not fit in the {what} (least radius"
+                             f" {rmin:g} m); give a smaller hole")
+    common = [f"centre distance {pair.centre_distance * 1000:.3f} (hub centre to axle);"
+              f" {pair.ratio:.6g} wheel turns per {part} turn",
+              "red: cut; blue: score or mark; black: text"]
+    if thickness_m is not None:
+        common.insert(1, f"plate thickness {thickness_m * 1000:.3f}")
+    common += [str(s) for s in title_lines]
+    out = Path(out_dir)
+    written: list[Path] = []
+    wpts = wheel_outline_mm(wheel)
+    wl = [f"{name}: wheel, full size 1:1, all dimensions in mm",
+          f"radius about the axle: r_min {wr[0] * 1000:.3f}, r_max {wr[1] * 1000:.3f};"
+          f" axle hole diameter {hole * 1000:.3f}", *common]
+    written.append(write_text_atomic(out / f"{stem}_wheel.svg",
+                                     _centre_svg(wheel, wpts, name, "wheel", wl, hole, margin)))
+    written.append(write_text_atomic(out / f"{stem}_wheel.csv", _csv(wpts)))
+    hpts = wheel_outline_mm(hub)
+    outer = (hr[1] + rim) * 1000 if ring else None
+    hl = [f"{name}: {part}, full size 1:1, all dimensions in mm",
+          f"radius about the centre: {hr[0] * 1000:.3f} .. {hr[1] * 1000:.3f}; {pair.hub_lobes}"
+          f" lobe(s); " + (f"outer edge radius {outer:.3f}; the marked centre is the arm's pivot"
+                            if ring else f"centre hole diameter {hole * 1000:.3f}"), *common]
+    written.append(write_text_atomic(out / f"{stem}_{part}.svg",
+                                     _centre_svg(hub, hpts, name, part, hl, hole, margin, outer)))
+    written.append(write_text_atomic(out / f"{stem}_{part}.csv", _csv(hpts)))
+    th_s = float(pair.wheel_angle(0.0))
+    timing = (math.degrees((th_s - 0.5 * math.pi) % TWO_PI), -90.0 % 360.0 if ring else 90.0)
+    notes = [
+        f"{name}: cut files (full size, millimetres)",
+        "",
+        f"{stem}_wheel.svg / .csv: wheel outline about its axle; axle hole {hole * 1000:.3f} mm.",
+        f"{stem}_{part}.svg / .csv: {part} outline about its centre; "
+        + (f"cut the outline out of a disc of radius {outer:.3f} mm; the arm pivots at the marked"
+           " centre." if ring else f"centre hole {hole * 1000:.3f} mm."),
+        f"Mount the axle {pair.centre_distance * 1000:.3f} mm from the {part}'s centre"
+        f" ({'around the hub' if not ring else 'inside the ring'}).",
+        f"Timing: assemble with the wheel's ray at {timing[0]:.3f} deg (its drawing) on the {part}'s"
+        f" ray at {timing[1]:.3f} deg (its drawing), anticlockwise from +x; the parts touch there.",
+        "CSV columns x_mm,y_mm: each part about its own centre.",
+        "Where parts roll on each other, fingers can be drawn in and crushed: guard the nip.",
+        *[str(s) for s in title_lines],
         "",
     ]
     written.append(write_text_atomic(out / f"{stem}_cut_list.txt", "\n".join(notes)))

@@ -37,6 +37,10 @@ def _check(sc: Scenario, progress=None) -> dict:
 
 
 def _simulate(sc: Scenario, progress=None) -> dict:
+    if sc.path.is_hub:
+        from ridesim.jobs.hub import simulate_hub
+
+        return simulate_hub(sc).to_dict()
     from ridesim.jobs.simulate import simulate
 
     return simulate(sc, progress=progress).to_dict()
@@ -75,5 +79,7 @@ def run_job(name: str, sc: Scenario, progress=None) -> dict:
         The job's JSON-ready result.
     """
     from ridesim.export.results import json_ready
+    from ridesim.jobs.hub import require_line
 
+    require_line(sc, name)
     return json_ready(JOBS[name](sc, progress=progress))

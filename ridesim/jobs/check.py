@@ -313,6 +313,10 @@ def check_scenario(sc: Scenario) -> CheckResult:
     """
     if not isinstance(sc, Scenario):
         raise InputError(f"sc must be a Scenario (see load_scenario), got {type(sc).__name__}")
+    if sc.path.is_hub:  # a wheel around a hub has its own check
+        from ridesim.jobs.hub import check_hub
+
+        return check_hub(sc)
     pair = solve_scenario(sc)
     sc = resolve_wheelbase(sc, pair)
     cautions = with_safety(CHECK_CAUTIONS)

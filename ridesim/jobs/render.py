@@ -58,6 +58,11 @@ def render_scenario(sc, out_dir: str | Path, *, svg: bool = False, simulate: boo
 
     out = Path(out_dir)
     out.mkdir(parents=True, exist_ok=True)
+    if sc.path.is_hub:  # a wheel around a hub: its own plot and clip
+        from ridesim.jobs.hub import render_hub
+
+        return render_hub(sc, out, svg=svg, clip=clip, clip_s=clip_s, fps=fps, size=size,
+                          progress=progress)
     pair = solve_scenario(sc)
     sc = resolve_wheelbase(sc, pair)
     mp = wheel_mass(sc, pair.wheel)

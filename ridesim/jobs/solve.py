@@ -44,7 +44,7 @@ def solve_with_wheelbases(sc: Scenario, *, wheelbase_range_m=None) -> dict[str, 
     from ridesim.scenario.build import solve_scenario
 
     out = solve_scenario(sc).to_dict()
-    if not out["closed"]:
+    if sc.path.is_hub or not out["closed"]:  # a hub pair has no wheelbase to list
         return out
     P, r_max = float(out["period_m"]), float(out["depth_max_m"])
     rng = wheelbase_range_m
@@ -80,6 +80,10 @@ def solve_text(sc: Scenario, out: dict[str, Any]) -> str:
     -------
     str
     """
+    if sc.path.is_hub:
+        from ridesim.jobs.hub import solve_hub_text
+
+        return solve_hub_text(sc, out)
     lines = [f"scenario: {sc.name}"]
     if out["solved_from"] == "wheel":
         lines.append(f"solved the track for the {out['wheel']['kind'].replace('_', ' ')} wheel")

@@ -621,6 +621,12 @@ class Wheel:
                 p = phi[j]
             best.append((float(self.radius(np.array(p))), float(p) % TWO_PI))
         (rmin, amin), (rmax, _) = best
+        if self._kinks:  # an extremum at a declared corner is exactly there, not at a sample
+            ak = np.array(self._kinks)
+            rk = self.radius(ak)
+            if float(rk.min()) < rmin:
+                rmin, amin = float(rk.min()), float(ak[int(np.argmin(rk))]) % TWO_PI
+            rmax = max(rmax, float(rk.max()))
         return min(rmin, float(r.min())), max(rmax, float(r.max())), amin
 
     def mass_properties(self, thickness_m: float, density_kg_m3: float) -> MassProperties:

@@ -21,11 +21,12 @@ from ridesim.model.track import Track
 from ridesim.model.wheel import MassProperties, Wheel
 from ridesim.scenario.load import Scenario, TrackSpec, WheelSpec
 from ridesim.solve.forward import track_for
+from ridesim.solve.hub import HubPair, hub_for
 from ridesim.solve.inverse import wheel_for
 from ridesim.solve.pair import RollingPair
 
 __all__ = ["read_points_csv", "wheel_from_spec", "track_from_spec", "solve_scenario", "wheel_mass",
-           "resolve_wheelbase"]
+           "resolve_wheelbase", "solve_hub_scenario"]
 
 
 _CSV_UNITS_M = {"m": 1.0, "mm": 1e-3}
@@ -169,8 +170,10 @@ def track_from_spec(spec: TrackSpec) -> Track:
     return _wrap("track", Track.points, pts, period=spec.period_m)
 
 
-def solve_scenario(sc: Scenario) -> RollingPair:
+def solve_scenario(sc: Scenario) -> RollingPair | HubPair:
     """Solve the scenario's pair: the track for its wheel, or the wheel for its track.
+
+    With ``path.kind = "hub"`` the hub for its wheel (:func:`solve_hub_scenario`).
 
     Parameters
     ----------
@@ -179,14 +182,38 @@ def solve_scenario(sc: Scenario) -> RollingPair:
 
     Returns
     -------
-    RollingPair
+    RollingPair or HubPair
     """
+    if sc.path.is_hub:
+        return solve_hub_scenario(sc)
     if sc.wheel is not None and sc.wheel.shape is not None:
         return _wrap("wheel", track_for, wheel_from_spec(sc.wheel))
     t = track_from_spec(sc.track)
     if sc.track.depth_m is not None:
         return _wrap("track.depth_m", wheel_for, t, depth=sc.track.depth_m)
     return _wrap("track.lobes", wheel_for, t, lobes=sc.track.lobes or 1)
+
+
+def solve_hub_scenario(sc: Scenario) -> HubPair:
+    """Solve the hub (or ring) for the scenario's wheel with its axle on a circle.
+
+    Parameters
+    ----------
+    sc : Scenario
+        Validated scenario with ``path.kind = "hub"`` and a ``[wheel]``.
+
+    Returns
+    -------
+    HubPair
+    """
+    p = sc.path
+    if not p.is_hub or sc.wheel is None or sc.wheel.shape is None:
+        raise ScenarioError("a hub solve needs path.kind = \"hub\" and a [wheel] with its shape")
+    w = wheel_from_spec(sc.wheel)
+    if p.centre_distance_m is not None:
+        return _wrap("path.centre_distance_m", hub_for, w, centre_distance=p.centre_distance_m,
+                     side=p.side)
+    return _wrap("path.ratio", hub_for, w, ratio=p.ratio if p.ratio is not None else 1, side=p.side)
 
 
 def resolve_wheelbase(sc: Scenario, pair: RollingPair) -> Scenario:

@@ -64,6 +64,7 @@ __all__ = [
     "RunSpec",
     "DutySpec",
     "MotorSpec",
+    "PathSpec",
     "Scenario",
     "load_scenario",
     "scenario_from_dict",
@@ -100,6 +101,7 @@ _EXCLUSIVE: dict[str, tuple[tuple[str, ...], ...]] = {
     "wheel": (_POLYGON_SIZES, ("points_m", "file")),
     "track": (("points_m", "file"), ("lobes", "depth_m")),
     "vehicle": (("wheelbase_m", "wheelbase_periods"),),
+    "path": (("centre_distance_m", "ratio"),),
 }
 
 _POLYGON_NAMES = {
@@ -456,6 +458,40 @@ class MotorSpec:
 
 
 @dataclass(frozen=True)
+class PathSpec:
+    """Validated ``[path]`` section: where the axle runs.
+
+    Attributes
+    ----------
+    kind : str
+        ``"line"`` (a straight line over a track) or ``"hub"`` (a circle about a hub's centre).
+    side : str
+        Hub only: ``"outside"`` (around the hub) or ``"inside"`` (inside a ring).
+    centre_distance_m : float or None
+        Hub only: hub centre to axle in m, when given.
+    ratio : float or None
+        Hub only: wheel turns per hub turn, when given (the centre distance is then solved).
+    load_torque_Nm : float
+        Hub only, simulate: brake torque on the driven hub in N*m.
+    preload_N : float or None
+        Hub only, simulate: force in N pressing the wheel's axle towards the hub; None: the
+        wheel's weight.
+    """
+
+    kind: str = default_of("path.kind")
+    side: str = default_of("path.side")
+    centre_distance_m: float | None = default_of("path.centre_distance_m")
+    ratio: float | None = default_of("path.ratio")
+    load_torque_Nm: float = default_of("path.load_torque_Nm")
+    preload_N: float | None = default_of("path.preload_N")
+
+    @property
+    def is_hub(self) -> bool:
+        """True for an axle on a circle about a hub."""
+        return self.kind == "hub"
+
+
+@dataclass(frozen=True)
 class Scenario:
     """A validated scenario: one build and how to run it.
 
@@ -502,6 +538,7 @@ class Scenario:
     run: RunSpec
     duty: DutySpec = DutySpec()
     motor: MotorSpec = MotorSpec()
+    path: PathSpec = PathSpec()
     source: str = field(default="<dict>", compare=False)
     base_dir: str = field(default=".", compare=False)
 
@@ -551,6 +588,8 @@ class Scenario:
         out["run"] = _spec_dict(self.run)
         out["duty"] = _spec_dict(self.duty)
         out["motor"] = _spec_dict(self.motor)
+        if self.path != PathSpec():
+            out["path"] = _spec_dict(self.path)
         return out
 
     def replace(self, key: str, value: Any) -> Scenario:
@@ -788,6 +827,14 @@ def scenario_from_dict(
     if not has_wheel and not has_track:
         raise ScenarioError("scenario has neither [wheel] nor [track]; add one")
 
+    path = _parse_path(data.get("path", {}))
+    if path.is_hub and not has_wheel:
+        raise ScenarioError(
+            "path.kind = \"hub\" needs a [wheel] (the hub is solved for it); a [track] belongs"
+            " to a straight path: remove [path] or give the wheel"
+        )
+    if path.is_hub and has_track:
+        raise ScenarioError("path.kind = \"hub\": the hub replaces the track; remove [track]")
     if material_only:
         wheel = _parse_wheel_material(data["wheel"])
     else:
@@ -807,6 +854,7 @@ def scenario_from_dict(
         run=_parse_run(data.get("run", {})),
         duty=_parse_duty(data.get("duty", {})),
         motor=_parse_motor(data.get("motor", {})),
+        path=path,
         source=source,
         base_dir=str(base),
     )
@@ -1123,6 +1171,28 @@ def _parse_motor(raw: Any) -> MotorSpec:
         safety_factor=t.get("safety_factor"),
         inertia_kg_m2=t.get("inertia_kg_m2"),
     )
+
+
+def _parse_path(raw: Any) -> PathSpec:
+    """Validate the ``[path]`` section."""
+    t = _Table("path", raw)
+    t.only([f.name for f in fields(PathSpec)])
+    kind = t.get("kind")
+    spec = PathSpec(kind=kind, side=t.get("side"), centre_distance_m=t.get("centre_distance_m"),
+                    ratio=t.get("ratio"), load_torque_Nm=t.get("load_torque_Nm"),
+                    preload_N=t.get("preload_N"))
+    if kind == "line":
+        extra = [k for k in ("side", "centre_distance_m", "ratio", "load_torque_Nm", "preload_N")
+                 if t.has(k)]
+        if extra:
+            raise ScenarioError(
+                f"path.{extra[0]} belongs to a hub path; set path.kind = \"hub\" or remove it"
+            )
+    if spec.centre_distance_m is not None and spec.ratio is not None:
+        raise ScenarioError("give path.centre_distance_m or path.ratio, not both")
+    if kind == "hub" and spec.side == "inside" and spec.centre_distance_m is None and spec.ratio is None:
+        raise ScenarioError("path.side = \"inside\" needs path.ratio (> 1) or path.centre_distance_m")
+    return spec
 
 
 def _parse_run(raw: Any) -> RunSpec:

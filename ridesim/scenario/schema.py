@@ -48,6 +48,8 @@ __all__ = [
     "WHEEL_SHAPES",
     "TRACK_SHAPES",
     "DRIVE_MODES",
+    "PATH_KINDS",
+    "HUB_SIDES",
     "MAX_TIMESTEP_S",
     "REQUIRED",
     "Key",
@@ -73,7 +75,13 @@ DRIVE_MODES = ("speed", "shaft_speed", "torque")
 MAX_TIMESTEP_S = 0.02
 """Largest accepted ``run.timestep_s`` in s."""
 
-SECTIONS = ("wheel", "track", "vehicle", "drive", "surface", "run", "duty", "motor")
+PATH_KINDS = ("line", "hub")
+"""Allowed values of ``path.kind`` (the same as ``ridesim.model.path.PATH_KINDS``)."""
+
+HUB_SIDES = ("outside", "inside")
+"""Allowed values of ``path.side`` (the same as ``ridesim.model.path.HUB_SIDES``)."""
+
+SECTIONS = ("wheel", "track", "path", "vehicle", "drive", "surface", "run", "duty", "motor")
 """The scenario's sections, in the order of the reference."""
 
 
@@ -263,6 +271,28 @@ KEYS: tuple[Key, ...] = (
     Key("track", "section_length_m", "real", 1.0, "m", "length of the sections between joints",
         ge=0.002, plausible=(0.01, 20.0),
         source="common practice: short printed pieces to 20 m rails"),
+    # ---------------------------------------------------------------- [path]
+    Key("path", "kind", "choice", "line", "",
+        "axle path: a straight line over a track, or a circle about a hub (a carousel, a drum,"
+        " a non-circular gear pair)", choices=PATH_KINDS),
+    Key("path", "side", "choice", "outside", "",
+        "hub only: the wheel rolls around the hub (outside) or inside a ring (inside)",
+        choices=HUB_SIDES),
+    Key("path", "centre_distance_m", "real", None, "m",
+        "hub only: hub centre to axle (give this or ratio; neither: ratio 1 outside)",
+        gt=0, plausible=(0.01, 20.0),
+        source="common practice: desk-top gear models to fairground carousels"),
+    Key("path", "ratio", "real", None, "-",
+        "hub only: wheel turns per hub turn; the centre distance is solved so the hub closes"
+        " (ratio x wheel symmetry must be whole; inside a ring > 1)", gt=0,
+        plausible=(0.1, 50.0), source="common practice: gear ratios of one stage"),
+    Key("path", "load_torque_Nm", "real", 0.0, "N m",
+        "hub only, simulate: brake torque on the driven hub (a gear pair's load)", ge=0,
+        plausible=(0.0, 5000.0), source=_TORQUE_SRC + "; 0: a free hub"),
+    Key("path", "preload_N", "real", None, "N",
+        "hub only, simulate: force pressing the wheel's axle towards the hub; unset: the"
+        " wheel's weight", gt=0, plausible=(0.01, 20000.0),
+        source="common practice: a light spring on a desk model to a ride car's weight"),
     # ---------------------------------------------------------------- [vehicle]
     Key("vehicle", "body_mass_kg", "real", 10.0, "kg", "body mass without wheels",
         ge=0, plausible=(0.0, 1000.0),

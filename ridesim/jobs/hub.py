@@ -1,0 +1,359 @@
+"""Jobs for a wheel rolling around a hub (``path.kind = "hub"``): solve text and check.
+
+A hub scenario is simulated as a gear pair (:func:`simulate_hub`) and rendered as a
+speed-ratio plot and a clip of the carousel (:func:`render_hub`); motor sizing and the
+report of a hub path are not built yet;
+:data:`HUB_JOBS` names the jobs that handle one, and :func:`require_line` refuses the
+others with one line.
+"""
+
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass
+
+from ridesim.assess.hub import HubAssessment, assess_hub
+from ridesim.errors import ScenarioError
+from ridesim.safety import caution_lines, with_safety
+from ridesim.scenario.build import solve_hub_scenario
+from ridesim.scenario.load import Scenario
+
+__all__ = ["HUB_JOBS", "HubCheckResult", "HubSimResult", "check_hub", "simulate_hub", "solve_hub_text",
+           "require_line", "render_hub"]
+
+#: Jobs (command names) that handle a hub path.
+HUB_JOBS = ("solve", "check", "export", "simulate", "render")
+
+HUB_CAUTIONS = (
+    "The hub check is kinematic: rigid pitch curves, contact on the line of centres, no tooth"
+    " form, backlash, flex or wear; gears need teeth cut on these pitch curves by a gear"
+    " specialist's method.",
+    "The friction demand assumes the wheel is pressed against the hub along the line of centres"
+    " (a free wheel on its arm); a driven wheel, gravity in the plane or a preload spring change"
+    " it.",
+)
+
+
+def require_line(sc: Scenario, job: str) -> None:
+    """Refuse a job that does not handle a hub path yet, in one line.
+
+    Parameters
+    ----------
+    sc : Scenario
+        Validated scenario.
+    job : str
+        Command name.
+    """
+    if sc.path.is_hub and job not in HUB_JOBS:
+        raise ScenarioError(
+            f"{job} does not handle path.kind = \"hub\" yet (it does: {', '.join(HUB_JOBS)});"
+            " remove [path] to run it on a straight track"
+        )
+
+
+def _mm(v: float) -> str:
+    return f"{v:.6g} m ({v * 1000:.2f} mm)"
+
+
+def solve_hub_text(sc: Scenario, out: dict) -> str:
+    """Plain-text lines of a hub solve's figures (``HubPair.to_dict()``).
+
+    Parameters
+    ----------
+    sc : Scenario
+        The scenario.
+    out : dict
+        The pair's figures.
+
+    Returns
+    -------
+    str
+    """
+    where = "around the hub" if out["side"] == "outside" else "inside the ring"
+    lines = [f"scenario: {sc.name}",
+             f"solved the {'hub' if out['side'] == 'outside' else 'ring'} for the"
+             f" {sc.wheel.shape} wheel rolling {where}",
+             f"centre distance:       {_mm(out['centre_distance_m'])}",
+             f"ratio:                 {out['ratio']:.9g} wheel turns per hub turn"
+             f" ({out['hub_lobes']} hub lobe(s))"]
+    if out["closed"]:
+        lines += [
+            f"wheel contact radius:  {out['wheel_radius_min_m']:.6g} .. {out['wheel_radius_max_m']:.6g} m",
+            f"hub contact radius:    {out['hub_radius_min_m']:.6g} .. {out['hub_radius_max_m']:.6g} m",
+            f"speed ratio (hub/wheel): {out['speed_ratio_min']:.6g} .. {out['speed_ratio_max']:.6g}",
+            "closure: the hub closes",
+        ]
+    else:
+        lines.append(f"closure: NOT closed; the hub is {out['closure_gap_rad']:+.6g} rad from a full"
+                     " turn; give path.ratio instead of centre_distance_m to find a closing distance")
+    return "\n".join(lines)
+
+
+@dataclass
+class HubCheckResult:
+    """The check of a hub scenario.
+
+    Attributes
+    ----------
+    name : str
+        Scenario name.
+    rollable : bool
+        True when the hub closes and the outlines do not interfere, and the surface's
+        friction meets the demand.
+    reasons : list of str
+        Why not, one line each.
+    notes : list of str
+        Findings that do not stop it (concave pitch curves).
+    pair : dict
+        The solve's figures.
+    assessment : HubAssessment or None
+        Figures of the check (None when the hub does not close).
+    friction_available : float
+        ``surface.friction``.
+    cautions : list of str
+        Safety cautions.
+    """
+
+    name: str
+    rollable: bool
+    reasons: list[str]
+    notes: list[str]
+    pair: dict
+    assessment: HubAssessment | None
+    friction_available: float
+    cautions: list[str]
+
+    def to_dict(self) -> dict:
+        """JSON-ready figures with units in the key names."""
+        out = {"name": self.name, "path": "hub", "rollable": self.rollable,
+               "reasons": list(self.reasons), "notes": list(self.notes), "solve": dict(self.pair),
+               "friction_available": self.friction_available}
+        if self.assessment is not None:
+            out.update(self.assessment.to_dict())
+        out["cautions"] = list(self.cautions)
+        return out
+
+    def to_text(self) -> str:
+        """The check as text."""
+        p = self.pair
+        where = "around a hub" if p["side"] == "outside" else "inside a ring"
+        lines = [f"scenario: {self.name} (wheel {where})",
+                 f"centre distance {p['centre_distance_m']:.6g} m, ratio {p['ratio']:.6g} wheel turns per"
+                 " hub turn"]
+        a = self.assessment
+        if a is not None:
+            lines += [
+                f"least gap between the outlines: {a.least_gap_m * 1000:+.4f} mm"
+                f" (at wheel angle {a.least_gap_theta_rad:.4f} rad; 0 is the contact)",
+                f"friction demand: {a.friction_demand:.4g} (pressure angle"
+                f" {math.degrees(math.atan(a.friction_demand)):.2f} deg); available"
+                f" {self.friction_available:.4g}",
+                f"driven speed per driving speed: {a.speed_ratio_min:.6g} .. {a.speed_ratio_max:.6g}"
+                f" (mean {a.speed_ratio_mean:.6g}, ripple {100 * a.speed_ripple:.2f} %)",
+                f"driven torque per driving torque (no losses): {a.torque_ratio_min:.6g} .."
+                f" {a.torque_ratio_max:.6g}",
+            ]
+        lines.append("verdict: ROLLS" if self.rollable else "verdict: DOES NOT ROLL")
+        lines += [f"  - {r}" for r in self.reasons]
+        lines += [f"note: {n}" for n in self.notes]
+        lines += caution_lines(self.cautions)
+        return "\n".join(lines)
+
+
+def check_hub(sc: Scenario) -> HubCheckResult:
+    """Check a hub scenario: closure, interference, friction demand, ripple, concavity.
+
+    Parameters
+    ----------
+    sc : Scenario
+        Validated scenario with ``path.kind = "hub"``.
+
+    Returns
+    -------
+    HubCheckResult
+    """
+    pair = solve_hub_scenario(sc)
+    cautions = with_safety(HUB_CAUTIONS)
+    avail = float(sc.surface.friction)
+    out = pair.to_dict()
+    if not pair.closed:
+        reason = (f"the hub does not close at path.centre_distance_m = {pair.centre_distance:.6g} m"
+                  f" ({pair.closure_gap_rad:+.4g} rad from a full turn); give path.ratio instead")
+        return HubCheckResult(sc.name, False, [reason], [], out, None, avail, cautions)
+    a = assess_hub(pair)
+    reasons, notes = [], []
+    if a.interferes:
+        reasons.append(f"the outlines overlap by {-a.least_gap_m * 1000:.3f} mm at wheel angle"
+                       f" {a.least_gap_theta_rad:.4f} rad: another part of the wheel meets the hub")
+    if a.friction_demand > avail:
+        reasons.append(f"the contact needs friction {a.friction_demand:.4g} (load along the line of"
+                       f" centres) but surface.friction is {avail:.4g}")
+    # A ring's material lies outside its curve: where the curve bends in, the ring is convex
+    # (an internal gear is cut by a shaper cutter anyway), so only external curves get the note.
+    concave = [("wheel", a.wheel_concave_radius_m)]
+    if pair.side == "outside":
+        concave.append(("hub", a.hub_concave_radius_m))
+    for what, rad in concave:
+        if rad is not None:
+            notes.append(f"the {what}'s pitch curve is concave (least radius of curvature"
+                         f" {rad * 1000:.2f} mm): as gears, no rack or hob can cut it; a shaper"
+                         " cutter of smaller pitch radius can (Litvin et al. 2009 [memory])")
+    return HubCheckResult(sc.name, not reasons, reasons, notes, out, a, avail, cautions)
+
+
+@dataclass
+class HubSimResult:
+    """A simulated gear pair (hub scenario) against its analytic speed ratio.
+
+    Attributes
+    ----------
+    name : str
+        Scenario name.
+    figures : dict
+        Measured and analytic figures with units in the key names.
+    drifts : bool
+        True when the driven member's phase left the analytic one by more than 0.01 rad.
+    cautions : list of str
+        Safety cautions.
+    """
+
+    name: str
+    figures: dict
+    drifts: bool
+    cautions: list[str]
+
+    def to_dict(self) -> dict:
+        """JSON-ready figures."""
+        return {"name": self.name, "path": "hub", **self.figures, "drifts": self.drifts,
+                "cautions": list(self.cautions)}
+
+    def to_text(self) -> str:
+        """The run as text."""
+        f = self.figures
+        lines = [f"scenario: {self.name} (gear pair on fixed centres, simulated in pymunk)",
+                 f"driver speed {f['driver_speed_rad_s']:.4g} rad/s for {f['driver_turns']:.4g} turn(s);"
+                 f" brake torque on the hub {f['load_torque_Nm']:.4g} N m, preload {f['preload_N']:.4g} N",
+                 f"driven/driving speed: measured {f['speed_ratio_min']:.5g} .. {f['speed_ratio_max']:.5g},"
+                 f" analytic {f['analytic_speed_ratio_min']:.5g} .. {f['analytic_speed_ratio_max']:.5g}",
+                 f"largest error against the analytic ratio: {100 * f['speed_ratio_error_max']:.3f} %",
+                 f"driven phase off the analytic by at most {f['phase_drift_rad']:.4g} rad",
+                 "pivot distance off the centre distance by at most"
+                 f" {1000 * f['centre_distance_error_m']:.4f} mm"]
+        if self.drifts:
+            lines.append("DRIFTS: the driven member slipped out of phase (more than 0.01 rad);"
+                         " raise the friction or the preload")
+        lines += caution_lines(self.cautions)
+        return "\n".join(lines)
+
+
+def simulate_hub(sc: Scenario) -> HubSimResult:
+    """Simulate a hub scenario (outside) as a gear pair: the driver at constant shaft speed.
+
+    Both parts are plates of the ``[wheel]`` thickness and density (the wheel's
+    ``mass_kg``/``inertia_kg_m2`` override its own), balanced on their pivots. The driver is
+    pressed against the hub by ``path.preload_N`` (unset: the wheel's weight; the preload a
+    friction drive needs) and turns at ``drive.shaft_speed_rad_s`` (mode shaft_speed) or at
+    ``drive.speed_m_s`` over the wheel's mean contact radius, its motor limited to
+    ``drive.max_torque_Nm``; the hub is braked by ``path.load_torque_Nm``.
+
+    Parameters
+    ----------
+    sc : Scenario
+        Validated scenario with ``path.kind = "hub"``, ``side = "outside"``.
+
+    Returns
+    -------
+    HubSimResult
+    """
+    import numpy as np
+
+    from ridesim.scenario.build import wheel_mass
+    from ridesim.sim.hub import run_gear_pair
+
+    if sc.path.side != "outside":
+        raise ScenarioError("simulate handles a wheel around a hub (path.side = \"outside\") only;"
+                            " a ring is not simulated yet")
+    if sc.drive.mode == "torque":
+        raise ScenarioError("simulate drives a gear pair at a constant shaft speed: use drive.mode ="
+                            " \"shaft_speed\" (or \"speed\")")
+    pair = solve_hub_scenario(sc)
+    if not pair.closed:
+        raise ScenarioError("the hub does not close at path.centre_distance_m; give path.ratio")
+    th = np.linspace(0.0, 2 * math.pi, 2048, endpoint=False)
+    if sc.drive.mode == "shaft_speed":
+        w = float(sc.drive.shaft_speed_rad_s)
+    else:
+        w = float(sc.drive.speed_m_s) / float(np.mean(pair.wheel_radius(th)))
+    mw = wheel_mass(sc, pair.wheel)
+    mh = pair.hub.mass_properties(sc.wheel.thickness_m, sc.wheel.density_kg_m3)
+    turns = float(sc.run.duration_s) * w / (2 * math.pi)
+    load = float(sc.path.load_torque_Nm)
+    preload = sc.path.preload_N if sc.path.preload_N is not None else mw.mass_kg * 9.80665
+    run = run_gear_pair(pair, driver_speed_rad_s=w, turns=turns, timestep_s=float(sc.run.timestep_s),
+                        friction=float(sc.surface.friction), load_torque_Nm=load,
+                        preload_N=float(preload), mass_kg=(mw.mass_kg, mh.mass_kg),
+                        inertia_kg_m2=(mw.inertia_kg_m2, mh.inertia_kg_m2),
+                        iterations=int(sc.run.iterations),
+                        max_drive_torque_Nm=float(sc.drive.max_torque_Nm))
+    theta, ratio = run.speed_ratio(window=5)
+    an = pair.speed_ratio(theta)
+    drift = float(np.max(np.abs(run.psi_rad - pair.hub_angle(run.theta_rad))))
+    sr = pair.speed_ratio(th)
+    figures = {"driver_speed_rad_s": w, "driver_turns": turns, "load_torque_Nm": load,
+               "preload_N": float(preload),
+               "speed_ratio_min": float(ratio.min()), "speed_ratio_max": float(ratio.max()),
+               "analytic_speed_ratio_min": float(sr.min()), "analytic_speed_ratio_max": float(sr.max()),
+               "speed_ratio_error_max": float(np.max(np.abs(ratio / an - 1.0))),
+               "phase_drift_rad": drift,
+               "centre_distance_error_m": float(np.max(np.abs(run.centre_distance_m
+                                                              - pair.centre_distance)))}
+    return HubSimResult(sc.name, figures, drift > 0.01, with_safety(HUB_CAUTIONS))
+
+
+def render_hub(sc: Scenario, out, *, svg: bool = False, clip: bool = True, clip_s: float = 4.0,
+               fps: int = 25, size: tuple[int, int] = (640, 360), progress=None) -> list:
+    """Write a hub scenario's pictures (speed-ratio plot, clip) with a captioned ``index.md``.
+
+    Parameters
+    ----------
+    sc : Scenario
+        Validated scenario with ``path.kind = "hub"``.
+    out : Path
+        Output folder (created).
+    svg : bool
+        Also write an SVG copy of the plot.
+    clip : bool
+        Write ``clip.gif`` (one wheel turn relative to the arm over ``clip_s``).
+    clip_s : float
+        Clip length [s].
+    fps : int
+        Frame rate [1/s].
+    size : (int, int)
+        Clip size [px].
+    progress : callable, optional
+        ``progress(fraction)`` while the clip is drawn.
+
+    Returns
+    -------
+    list of (Path, str)
+        Each file and its caption.
+    """
+    from pathlib import Path
+
+    from ridesim.render.hub import plot_hub_ratio, render_hub_clip
+    from ridesim.render.plots import write_index
+
+    out = Path(out)
+    out.mkdir(parents=True, exist_ok=True)
+    pair = solve_hub_scenario(sc)
+    if not pair.closed:
+        raise ScenarioError("the hub does not close at path.centre_distance_m; give path.ratio")
+    items = [plot_hub_ratio(pair, out / "hub_ratio.png")]
+    if svg:
+        items.append(plot_hub_ratio(pair, out / "hub_ratio.svg"))
+    if clip:
+        items.append(render_hub_clip(pair, out / "clip.gif", duration_s=clip_s, fps=fps, size=size,
+                                     progress=progress))
+    where = "around a hub" if pair.side == "outside" else "inside a ring"
+    write_index(out, items, title=f"{sc.name}: wheel {where}")
+    return items
