@@ -139,11 +139,33 @@ class DesignResult:
         return any(d.feasible for d in self.outcome.designs)
 
     def top(self) -> list[Judged]:
-        """The ``keep`` best feasible designs, or the ``keep`` nearest when none is feasible."""
+        """The ``keep`` best feasible designs, or the ``keep`` nearest when none is feasible.
+
+        A design with the same discrete choices as a better one listed and every continuous
+        key within 5 % of its range of it is left out (it is in the candidates table), so the
+        list shows distinct designs.
+        """
         keep = self.brief.search["keep"]
         r = self.ranked()
         ok = [d for d in r if d.feasible]
-        return (ok if ok else r)[:keep]
+        out: list[Judged] = []
+        for d in ok if ok else r:
+            if not any(self._near(d, e) for e in out):
+                out.append(d)
+            if len(out) >= keep:
+                break
+        return out
+
+    def _near(self, d: Judged, e: Judged) -> bool:
+        """Same discrete choices and every continuous key within 5 % of its range: a repeat."""
+        for v in self.brief.variables:
+            a, b = d.values[v.key], e.values[v.key]
+            if v.continuous:
+                if abs(a - b) > 0.05 * (v.high - v.low):
+                    return False
+            elif a != b:
+                return False
+        return True
 
     def _goal_figures(self, d: Judged) -> dict:
         out = {r["path"]: r["value"] for r in d.requirements}
@@ -251,6 +273,10 @@ class DesignResult:
         str
         """
         b = self.brief
+        if self.interrupted:
+            return (f"design brief {Path(b.source).name}: interrupted after {self.computed}"
+                    " designs computed; rerun the same command with the same --out to resume"
+                    " (finished designs are kept in its journal)")
         lines = [f"design brief {Path(b.source).name}: {len(self.outcome.designs)} designs"
                  f" evaluated ({self.computed} computed now; jobs: {', '.join(b.jobs) or 'none'})",
                  f"method: {self.outcome.method}"]
@@ -275,15 +301,7 @@ class DesignResult:
         else:
             lines.append("feasible: NO design evaluated meets the brief; the nearest:")
             for i, d in enumerate(top):
-                miss = "; ".join(
-                    f"{q['requirement']} " + ("not evaluated (screened out)" if q["met"] is None
-                                              else f"missed: {_short(q['value'])}"
-                                              + (f", off by {_short(q['by'])}"
-                                                 f" ({100 * q['by_rel']:.3g} %)"
-                                                 if q["by"] not in (None, 1.0) or
-                                                 isinstance(q["value"], (int, float)) and
-                                                 not isinstance(q["value"], bool) else ""))
-                    for q in d.requirements if q["met"] is not True)
+                miss = "; ".join(_miss(q) for q in d.requirements if q["met"] is not True)
                 lines.append(f"  {i + 1}. {vals(d)}: {d.error or miss}")
             c = self.conflicts()
             if c["never_met"]:
@@ -297,8 +315,6 @@ class DesignResult:
                          + (", pareto.png)" if self.files else ")"))
         if self.outcome.budget_hit:
             lines.append(f"note: stopped at search.max_evaluations = {b.search['max_evaluations']}")
-        if self.interrupted:
-            lines.append("interrupted: rerun the same command with the same --out to resume")
         for f in self.files:
             if f.endswith("best.toml"):
                 lines.append(f"best design: {f} (ready for check, simulate, report, export)")
@@ -351,6 +367,11 @@ class DesignResult:
             files.append(str(self._plot_front(out / "pareto.png")))
         self.files = files
         files.append(str(out / "design.json"))
+        stale = [*out.glob("design_*.toml"), *out.glob("nearest_*.toml"), out / "best.toml",
+                 out / "pareto.png"]
+        for f in stale:  # a previous run's designs that this run did not write again
+            if f.exists() and str(f) not in files:
+                f.unlink()
         write_text_atomic(out / "design.json", json.dumps(self.to_dict(), indent=1) + "\n")
         return files
 
@@ -407,6 +428,17 @@ class DesignResult:
         fig.savefig(buf, format="png")
         plt.close(fig)
         return write_bytes_atomic(path, buf.getvalue())
+
+
+def _miss(q: dict) -> str:
+    """One failed requirement of a design, e.g. ``x <= 0.3: 0.414, off by 0.114 (38.1 %)``."""
+    if q["met"] is None:
+        return f"{q['requirement']}: not evaluated (an earlier job missed its requirement)"
+    v = q["value"]
+    if isinstance(v, (int, float)) and not isinstance(v, bool) and q["by"] is not None:
+        return (f"{q['requirement']}: {_short(v)}, off by {_short(q['by'])}"
+                f" ({100 * q['by_rel']:.3g} %)")
+    return f"{q['requirement']}: got {_short(v)}"
 
 
 def _short(v: Any) -> str:

@@ -125,7 +125,8 @@ def judge(row: dict, brief: Brief, order: int) -> Judged:
     -------
     Judged
     """
-    values, figures = row["values"], row["figures"]
+    values = {k: row["values"][k] for k in brief.keys}  # the brief's order (the journal sorts)
+    figures = row["figures"]
 
     def value_of(path: str) -> Any:
         return values[path] if path in values else figures.get(path)
