@@ -290,7 +290,8 @@ def _cmd_design(args) -> int:
     from ridesim.jobs.design import load_brief, run_design
 
     brief = load_brief(args.scenario)  # every bad key, range or path: exit 2 before any run
-    for line in brief.base.warnings:
+    warnings = [*brief.base.warnings, *brief.warnings]
+    for line in warnings:
         print(f"warning: {line}", file=sys.stderr)
     show = sys.stderr.isatty() and not args.json
 
@@ -304,7 +305,7 @@ def _cmd_design(args) -> int:
     if show:
         sys.stderr.write("\n")
     if args.json:
-        sys.stdout.write(json.dumps(res.to_dict()) + "\n")
+        sys.stdout.write(json.dumps({**res.to_dict(), "warnings": warnings}) + "\n")
     else:
         print(res.to_text())
     return 130 if res.interrupted else 0

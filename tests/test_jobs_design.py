@@ -280,6 +280,7 @@ def test_demo_brief_loads_and_its_paths_are_figures():
     assert set(b.probe) == {"check", "size-motor"}
 
 
+@pytest.mark.slow  # a Dask LocalCluster takes seconds to start; sweeps test it in the fast suite
 def test_dask_cluster_gives_the_same_designs(tmp_path):
     pytest.importorskip("distributed")
     f = brief(tmp_path, NGON.format(mu=0.5, n_max=12, extra=""))
@@ -287,3 +288,13 @@ def test_dask_cluster_gives_the_same_designs(tmp_path):
     b = run_design(f, workers=2, cluster="local").to_dict()
     for k in ("best", "candidates", "evaluations"):
         assert a[k] == b[k]
+
+
+def test_requirement_written_as_text():
+    from ridesim.jobs.design.brief import _requirement
+
+    (r,) = _requirement("check.friction.required_peak", "<= 0.4")
+    assert (r.op, r.target) == ("<=", 0.4)
+    assert r.judge(0.5)[0] is False and r.judge(0.5)[1] == pytest.approx(0.1)
+    (r,) = _requirement("check.rollable", "== true")
+    assert r.judge(True)[0] is True and r.judge(False)[0] is False

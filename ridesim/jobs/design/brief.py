@@ -236,6 +236,26 @@ class Brief:
         """The varied keys in file order."""
         return tuple(v.key for v in self.variables)
 
+    @property
+    def warnings(self) -> tuple[str, ...]:
+        """One line per varied key whose choices or range ends lie outside real builds.
+
+        Returns
+        -------
+        tuple of str
+            The key table's plausibility warnings (``ridesim/scenario/schema.py``).
+        """
+        from ridesim.scenario.schema import value_warnings
+
+        out: list[str] = []
+        for v in self.variables:
+            for x in (v.low, v.high) if v.continuous else v.values:
+                lines = value_warnings(v.key, x)
+                if lines:
+                    out.append(f"vary: {lines[0]}")
+                    break
+        return tuple(out)
+
     def figure_paths(self) -> tuple[str, ...]:
         """Every figure path the brief reads (requirements, then goals), without repeats."""
         out: list[str] = []
@@ -345,7 +365,8 @@ def _requirement(path: str, spec: Any) -> list[Requirement]:
             try:
                 target: Any = float(parts[1])
             except ValueError:
-                target = parts[1] if parts[0] == "==" else None
+                target = {"true": True, "false": False}.get(parts[1], parts[1])
+                target = target if parts[0] == "==" else None
             if target is None:
                 raise _fail(f"{where} = {spec!r}: the bound must be a number")
             return [Requirement(path, parts[0], target)]
