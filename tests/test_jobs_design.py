@@ -298,3 +298,20 @@ def test_requirement_written_as_text():
     assert r.judge(0.5)[0] is False and r.judge(0.5)[1] == pytest.approx(0.1)
     (r,) = _requirement("check.rollable", "== true")
     assert r.judge(True)[0] is True and r.judge(False)[0] is False
+
+
+def test_ctrl_c_keeps_finished_designs_and_resumes(tmp_path):
+    f = brief(tmp_path, APOTHEM.format(seed=1))
+    full = run_design(f, tmp_path / "full", workers=1).to_dict()
+
+    def interrupt(evaluated, computed):
+        if computed == 5:
+            raise KeyboardInterrupt  # as Ctrl-C would, in the middle of the search
+
+    out = tmp_path / "out"
+    stopped = run_design(f, out, workers=1, progress=interrupt)
+    assert stopped.interrupted and stopped.computed == 5
+    assert not (out / "best.toml").exists()  # nothing half-done is written as a result
+    again = run_design(f, out, workers=1).to_dict()
+    assert again["computed_now"] == full["evaluations"] - 5
+    assert json.dumps(again["candidates"]) == json.dumps(full["candidates"])

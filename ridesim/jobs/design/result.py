@@ -442,6 +442,8 @@ def _miss(q: dict) -> str:
 
 
 def _short(v: Any) -> str:
+    if v is None:
+        return "null"
     if isinstance(v, float):
         return f"{v:.6g}"
     if isinstance(v, bool):

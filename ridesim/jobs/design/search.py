@@ -135,7 +135,12 @@ def judge(row: dict, brief: Brief, order: int) -> Judged:
     violation = 0.0
     for r in brief.requirements:
         v = value_of(r.path)
-        met, by, rel = r.judge(v) if not row["error"] else (None, math.nan, 1.0)
+        if row["error"]:
+            met, by, rel = None, math.nan, 1.0
+        elif v is None and r.path.split(".", 1)[0] in row["jobs_run"]:
+            met, by, rel = False, math.nan, 1.0  # the job ran and gives no value (null)
+        else:
+            met, by, rel = r.judge(v)
         if met is not True:
             violation += rel
         reqs.append({"requirement": r.text(), "path": r.path, "value": v, "met": met,
