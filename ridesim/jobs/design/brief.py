@@ -498,8 +498,8 @@ def load_brief(path: str | Path, *, probe: bool = True) -> Brief:
                     " [4, 5, 6]")
     variables = tuple(_variable(k, s) for k, s in vary.items())
     keys = tuple(v.key for v in variables)
-    # Every design must be a valid scenario at the ranges' ends for at least one choice:
-    # checked per design (an invalid one is reported as such); here only the keys.
+    # A combination of values the scenario refuses (e.g. fit_track_to_corners with no corner
+    # radius) is not bad input: that design is reported as not evaluated, with the reason.
 
     require = data.get("require", {})
     if not isinstance(require, dict):
@@ -538,8 +538,6 @@ def load_brief(path: str | Path, *, probe: bool = True) -> Brief:
             if not var.continuous and not all(_is_num(x) for x in var.values):
                 raise _fail(f"goal {g.path!r} is not a number (its choices are"
                             f" {list(var.values)}); optimise a numeric key or figure")
-    if not math.prod(len(v.values) for v in variables if not v.continuous) >= 1:
-        raise _fail("a discrete key has no choices")
 
     results = _probe(base, jobs, variables) if probe else {}
     for p in [r.path for r in reqs] + [g.path for g in goals]:
