@@ -215,6 +215,31 @@ def _cmd_sweep(args) -> int:
     return 130 if outcome.interrupted and outcome.done < outcome.total else 0
 
 
+def _cmd_design(args) -> int:
+    from ridesim.jobs.design import load_brief, run_design
+
+    brief = load_brief(args.scenario)  # every bad key, range or path: exit 2 before any run
+    warnings = [*brief.base.warnings, *brief.warnings]
+    for line in warnings:
+        print(f"warning: {line}", file=sys.stderr)
+    show = sys.stderr.isatty() and not args.json
+
+    def progress(evaluated: int, computed: int) -> None:
+        if show:
+            sys.stderr.write(f"\rdesign: {evaluated} designs evaluated ({computed} computed)   ")
+            sys.stderr.flush()
+
+    res = run_design(brief, args.out, workers=args.workers, cluster=args.cluster,
+                     progress=progress)
+    if show:
+        sys.stderr.write("\n")
+    if args.json:
+        sys.stdout.write(json.dumps({**res.to_dict(), "warnings": warnings}) + "\n")
+    else:
+        print(res.to_text())
+    return 130 if res.interrupted else 0
+
+
 def _sweep_warnings(plan) -> list[str]:
     """Plausibility warnings of a sweep: the base's unvaried keys, then one line per varied key."""
     from ridesim.scenario.schema import KEYS, value_warnings
@@ -323,6 +348,16 @@ def _build_parser(commands: dict) -> _Parser:
     sw.add_argument("--plot", metavar="METRIC", help="plot METRIC against the varied parameters")
     sw.add_argument("--against", metavar="KEYS", help="comma-separated parameters for --plot")
     sw.add_argument("--json", action="store_true", help="print exactly one JSON object")
+    de = sub.add_parser("design", help="search for the designs that meet a brief (resumable)",
+                        description="Search the brief's varied keys for the designs that meet its"
+                        " requirements, best goal first; rerun with the same --out to resume.")
+    de.add_argument("scenario", metavar="BRIEF.toml", help="design brief")
+    de.add_argument("--json", action="store_true", help="print exactly one JSON object")
+    de.add_argument("--out", metavar="DIR", help="write best.toml, the ranked designs and the"
+                    " journal into DIR")
+    de.add_argument("--workers", type=int, default=None, help="local processes (default: cores)")
+    de.add_argument("--cluster", metavar="ADDRESS", default=None,
+                    help="'local' for a Dask LocalCluster, or a scheduler address")
     return p
 
 
@@ -355,6 +390,8 @@ def main(argv: list[str] | None = None) -> int:
             _check_out(args.out)
         if args.command == "sweep":
             return _cmd_sweep(args)
+        if args.command == "design":
+            return _cmd_design(args)
         sc = load_scenario(args.scenario)
         for line in sc.warnings:  # valid but outside real builds: most likely a unit slip
             print(f"warning: {line}", file=sys.stderr)

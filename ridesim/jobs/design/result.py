@@ -1,0 +1,498 @@
+"""The result of a design search: the best designs, what binds, what conflicts, and the files.
+
+Written into ``--out DIR`` (atomically, after the search): ``best.toml`` (the best design
+that meets the brief, a ready scenario), ``design_1.toml`` ... (the ``search.keep`` best, or
+when none meets the brief the nearest ones, ``nearest_1.toml`` ...), ``candidates.csv`` and
+``candidates.json`` (every design evaluated, ranked: feasible first by the goal, then the
+rest by how far they miss), ``design.json`` (what ``--json`` prints) and, with two goals,
+``pareto.png`` (the trade-off front). The journal ``evaluations.jsonl`` and ``design.log``
+are kept for resuming.
+"""
+
+from __future__ import annotations
+
+import csv
+import io
+import json
+import math
+import tomllib
+from dataclasses import dataclass, field
+from pathlib import Path
+from typing import Any
+
+from ridesim.jobs.design.brief import Brief, load_brief
+from ridesim.jobs.design.evaluate import Evaluator
+from ridesim.jobs.design.search import Judged, SearchOutcome, run_search
+
+__all__ = ["DesignResult", "run_design", "scenario_toml", "pareto_front"]
+
+
+def _toml_value(v: Any) -> str:
+    if isinstance(v, bool):
+        return "true" if v else "false"
+    if isinstance(v, int):
+        return str(v)
+    if isinstance(v, float):
+        return repr(v) if math.isfinite(v) else ("nan" if math.isnan(v) else
+                                                 ("inf" if v > 0 else "-inf"))
+    if isinstance(v, str):
+        return json.dumps(v, ensure_ascii=False)
+    if isinstance(v, (list, tuple)):
+        return "[" + ", ".join(_toml_value(x) for x in v) + "]"
+    raise TypeError(f"cannot write {v!r} as TOML")
+
+
+def scenario_toml(data: dict, header: list[str]) -> str:
+    """A scenario dict (``Scenario.to_dict``) as TOML text that reads back equal.
+
+    Parameters
+    ----------
+    data : dict
+        ``name``, ``description`` and one table per section.
+    header : list of str
+        Comment lines written at the top.
+
+    Returns
+    -------
+    str
+        The TOML text.
+    """
+    lines = [f"# {h}" for h in header]
+    for k, v in data.items():
+        if not isinstance(v, dict):
+            lines.append(f"{k} = {_toml_value(v)}")
+    for k, v in data.items():
+        if isinstance(v, dict) and v:
+            lines += ["", f"[{k}]"] + [f"{n} = {_toml_value(x)}" for n, x in v.items()]
+    text = "\n".join(lines) + "\n"
+    if tomllib.loads(text) != json.loads(json.dumps(data)):  # pragma: no cover - a guard
+        raise ValueError("scenario TOML does not read back equal")
+    return text
+
+
+def pareto_front(designs: list[Judged], sense: tuple[int, int]) -> list[Judged]:
+    """The feasible designs no other feasible design beats on both goals.
+
+    Parameters
+    ----------
+    designs : list of Judged
+        Evaluated designs.
+    sense : (int, int)
+        +1 minimise, -1 maximise, per goal.
+
+    Returns
+    -------
+    list of Judged
+        The front, in increasing order of the first goal (as minimised).
+    """
+    pts = []
+    for d in designs:
+        if d.feasible and all(isinstance(g, (int, float)) and math.isfinite(g) for g in d.goals):
+            pts.append((sense[0] * d.goals[0], sense[1] * d.goals[1], d.order, d))
+    pts.sort(key=lambda p: (p[0], p[1], p[2]))
+    front, best2 = [], math.inf
+    for _a, b, _, d in pts:
+        if b < best2:
+            front.append(d)
+            best2 = b
+    return front
+
+
+@dataclass
+class DesignResult:
+    """A finished design search.
+
+    Attributes
+    ----------
+    brief : Brief
+        The brief.
+    outcome : SearchOutcome
+        Every design evaluated and the method.
+    computed : int
+        Designs computed by this run (the rest came from the journal).
+    interrupted : bool
+        The search was stopped (Ctrl-C) before it finished.
+    files : list of str
+        Files written.
+    """
+
+    brief: Brief
+    outcome: SearchOutcome
+    computed: int
+    interrupted: bool = False
+    files: list = field(default_factory=list)
+
+    # ---------------------------------------------------------------- ranking
+    @property
+    def sense(self) -> tuple[int, ...]:
+        """+1 minimise, -1 maximise, per goal."""
+        return tuple(g.sense for g in self.brief.goals)
+
+    def ranked(self) -> list[Judged]:
+        """Every design: feasible ones by the first goal, then the rest by violation."""
+        return sorted(self.outcome.designs,
+                      key=lambda d: (d.rank_key(0, self.sense), d.order))
+
+    @property
+    def feasible(self) -> bool:
+        """Some design meets every requirement."""
+        return any(d.feasible for d in self.outcome.designs)
+
+    def top(self) -> list[Judged]:
+        """The ``keep`` best feasible designs, or the ``keep`` nearest when none is feasible.
+
+        A design with the same discrete choices as a better one listed and every continuous
+        key within 5 % of its range of it is left out (it is in the candidates table), so the
+        list shows distinct designs.
+        """
+        keep = self.brief.search["keep"]
+        r = self.ranked()
+        ok = [d for d in r if d.feasible]
+        out: list[Judged] = []
+        for d in ok if ok else r:
+            if not any(self._near(d, e) for e in out):
+                out.append(d)
+            if len(out) >= keep:
+                break
+        return out
+
+    def _near(self, d: Judged, e: Judged) -> bool:
+        """Same discrete choices and every continuous key within 5 % of its range: a repeat."""
+        for v in self.brief.variables:
+            a, b = d.values[v.key], e.values[v.key]
+            if v.continuous:
+                if abs(a - b) > 0.05 * (v.high - v.low):
+                    return False
+            elif a != b:
+                return False
+        return True
+
+    def _goal_figures(self, d: Judged) -> dict:
+        out = {r["path"]: r["value"] for r in d.requirements}
+        for g, v in zip(self.brief.goals, d.goals, strict=True):
+            out[g.path] = v
+        return out
+
+    def _entry(self, d: Judged, rank: int) -> dict:
+        e = {"rank": rank, "values": d.values, "figures": self._goal_figures(d),
+             "feasible": d.feasible, "violation": d.violation if math.isfinite(d.violation)
+             else None, "order": d.order, "jobs_run": d.jobs_run}
+        if not d.feasible:
+            e["failed"] = [{k: q[k] for k in ("requirement", "value", "by", "by_rel")}
+                           | {"status": "not evaluated" if q["met"] is None else "failed"}
+                           for q in d.requirements if q["met"] is not True]
+        if d.error:
+            e["error"] = d.error
+        return e
+
+    def binding(self) -> list[dict]:
+        """For the best design: requirements by their room left, least first (the binding one)."""
+        if not self.feasible:
+            return []
+        best = self.top()[0]
+        out = []
+        brief_reqs = {r.text(): r for r in self.brief.requirements}
+        for q in best.requirements:
+            r = brief_reqs[q["requirement"]]
+            sl = r.slack(q["value"])
+            if sl is not None:
+                out.append({"requirement": q["requirement"], "value": q["value"], "slack_rel": sl})
+        out.sort(key=lambda x: x["slack_rel"])
+        return out
+
+    def conflicts(self) -> dict:
+        """When nothing is feasible: which requirements no design met, and which clash."""
+        reqs = [r.text() for r in self.brief.requirements]
+        met_by = {t: 0 for t in reqs}
+        for d in self.outcome.designs:
+            for q in d.requirements:
+                if q["met"] is True:
+                    met_by[q["requirement"]] += 1
+        never = [t for t in reqs if met_by[t] == 0]
+        each_met = [t for t in reqs if met_by[t] > 0]
+        nearest = self.top()[0] if self.outcome.designs else None
+        failed = [q["requirement"] for q in (nearest.requirements if nearest else [])
+                  if q["met"] is not True]
+        clash = [t for t in failed if t in each_met]
+        return {"never_met": never, "met_alone_not_together": clash if not never else [],
+                "failed_by_nearest": failed}
+
+    # ---------------------------------------------------------------- output
+    def to_dict(self) -> dict:
+        """The result as one JSON-ready object (what ``--json`` prints).
+
+        Returns
+        -------
+        dict
+            ``feasible``, ``best`` (``values``, ``figures``; None when nothing meets the
+            brief), ``nearest`` (when nothing does), ``candidates`` (the best or nearest
+            designs, ranked), ``evaluations``, ``computed_now``, ``method``, ``stages``,
+            ``binding``, ``conflicts``, ``pareto`` (two goals), ``files``, ``cautions``.
+        """
+        from ridesim.export.results import json_ready
+
+        top = [self._entry(d, i + 1) for i, d in enumerate(self.top())]
+        out: dict[str, Any] = {
+            "brief": self.brief.source,
+            "feasible": self.feasible,
+            "best": ({"values": top[0]["values"], "figures": top[0]["figures"]}
+                     if self.feasible else None),
+            "candidates": top,
+            "evaluations": len(self.outcome.designs),
+            "feasible_designs": sum(d.feasible for d in self.outcome.designs),
+            "computed_now": self.computed,
+            "interrupted": self.interrupted,
+            "seed": self.brief.seed,
+            "method": self.outcome.method,
+            "stages": self.outcome.stages,
+            "vary": [v.describe() for v in self.brief.variables],
+            "requirements": [r.text() for r in self.brief.requirements],
+            "goals": [g.text() for g in self.brief.goals],
+            "jobs": list(self.brief.jobs),
+        }
+        if self.feasible:
+            out["binding"] = self.binding()
+        else:
+            out["nearest"] = top[0] if top else None
+            out["conflicts"] = self.conflicts()
+        if len(self.brief.goals) == 2:
+            out["pareto"] = [{"values": d.values, "goals": d.goals}
+                             for d in pareto_front(self.outcome.designs, self.sense)]
+        out["files"] = list(self.files)
+        if {"simulate", "size-motor"} & set(self.brief.jobs):
+            from ridesim.safety import with_safety
+
+            out["cautions"] = with_safety()
+        return json_ready(out)
+
+    def to_text(self) -> str:
+        """The result as a few lines for the terminal.
+
+        Returns
+        -------
+        str
+        """
+        b = self.brief
+        if self.interrupted:
+            return (f"design brief {Path(b.source).name}: interrupted after {self.computed}"
+                    " designs computed; rerun the same command with the same --out to resume"
+                    " (finished designs are kept in its journal)")
+        lines = [f"design brief {Path(b.source).name}: {len(self.outcome.designs)} designs"
+                 f" evaluated ({self.computed} computed now; jobs: {', '.join(b.jobs) or 'none'})",
+                 f"method: {self.outcome.method}"]
+        top = self.top()
+
+        def vals(d: Judged) -> str:
+            return ", ".join(f"{k} = {_short(v)}" for k, v in d.values.items())
+
+        if self.feasible:
+            n_ok = sum(d.feasible for d in self.outcome.designs)
+            lines.append(f"feasible: yes ({n_ok} designs meet the brief); best by"
+                         f" {'; '.join(g.text() for g in b.goals)}:")
+            for i, d in enumerate(top):
+                goals = ", ".join(f"{g.path} = {_short(v)}" for g, v in zip(b.goals, d.goals,
+                                                                           strict=True))
+                lines.append(f"  {i + 1}. {vals(d)}  ({goals})")
+            bind = self.binding()
+            if bind:
+                q = bind[0]
+                lines.append(f"binds: {q['requirement']} (the best design is at {_short(q['value'])},"
+                             f" {100 * q['slack_rel']:.3g} % of the bound to spare)")
+        else:
+            lines.append("feasible: NO design evaluated meets the brief; the nearest:")
+            for i, d in enumerate(top):
+                miss = "; ".join(_miss(q) for q in d.requirements if q["met"] is not True)
+                lines.append(f"  {i + 1}. {vals(d)}: {d.error or miss}")
+            c = self.conflicts()
+            if c["never_met"]:
+                lines.append("no design met: " + "; ".join(c["never_met"]))
+            if c["met_alone_not_together"]:
+                lines.append("met alone but not together (they conflict): "
+                             + "; ".join(c["met_alone_not_together"]))
+        if len(b.goals) == 2:
+            front = pareto_front(self.outcome.designs, self.sense)
+            lines.append(f"trade-off front: {len(front)} designs (pareto in the JSON"
+                         + (", pareto.png)" if self.files else ")"))
+        if self.outcome.budget_hit:
+            lines.append(f"note: stopped at search.max_evaluations = {b.search['max_evaluations']}")
+        for f in self.files:
+            if f.endswith("best.toml"):
+                lines.append(f"best design: {f} (ready for check, simulate, report, export)")
+        if {"simulate", "size-motor"} & set(b.jobs):
+            from ridesim.safety import caution_lines, with_safety
+
+            lines += caution_lines(with_safety())
+        return "\n".join(lines)
+
+    def write(self, out_dir: str | Path) -> list[str]:
+        """Write the scenario files, tables and plot into ``out_dir`` (atomically).
+
+        Parameters
+        ----------
+        out_dir : str or Path
+            The folder.
+
+        Returns
+        -------
+        list of str
+            The files written.
+        """
+        from ridesim.export.results import json_ready, write_text_atomic
+
+        out = Path(out_dir)
+        out.mkdir(parents=True, exist_ok=True)
+        files: list[str] = []
+        stem = "design" if self.feasible else "nearest"
+        for i, d in enumerate(self.top()):
+            text = self._scenario_text(d, i + 1)
+            files.append(str(write_text_atomic(out / f"{stem}_{i + 1}.toml", text)))
+            if i == 0 and self.feasible:
+                files.append(str(write_text_atomic(out / "best.toml", text)))
+        ranked = self.ranked()
+        entries = [self._entry(d, i + 1) for i, d in enumerate(ranked)]
+        files.append(str(write_text_atomic(out / "candidates.json",
+                                           json.dumps(json_ready(entries), indent=1) + "\n")))
+        paths = list(dict.fromkeys([*self.brief.keys, *[q["path"] for q in
+                                                        (ranked[0].requirements if ranked else [])],
+                                    *[g.path for g in self.brief.goals]]))
+        buf = io.StringIO()
+        w = csv.writer(buf, lineterminator="\n")
+        w.writerow(["rank", *paths, "feasible", "violation", "failed", "error"])
+        for e, d in zip(entries, ranked, strict=True):
+            w.writerow([e["rank"], *(_cell(d.values.get(p, e["figures"].get(p))) for p in paths),
+                        d.feasible, _cell(e["violation"]),
+                        "; ".join(f["requirement"] for f in e.get("failed", [])), d.error or ""])
+        files.append(str(write_text_atomic(out / "candidates.csv", buf.getvalue())))
+        if len(self.brief.goals) == 2:
+            files.append(str(self._plot_front(out / "pareto.png")))
+        self.files = files
+        files.append(str(out / "design.json"))
+        stale = [*out.glob("design_*.toml"), *out.glob("nearest_*.toml"), out / "best.toml",
+                 out / "pareto.png"]
+        for f in stale:  # a previous run's designs that this run did not write again
+            if f.exists() and str(f) not in files:
+                f.unlink()
+        write_text_atomic(out / "design.json", json.dumps(self.to_dict(), indent=1) + "\n")
+        return files
+
+    def _scenario_text(self, d: Judged, rank: int) -> str:
+        from ridesim.scenario.schema import KEY
+
+        sc = self.brief.base.replace_many(d.values)
+        data = sc.to_dict()
+        base = Path(sc.base_dir)
+        for section, table in data.items():  # files named in the base stay where they are
+            if isinstance(table, dict):
+                for k, v in table.items():
+                    row = KEY.get(f"{section}.{k}")
+                    if row is not None and row.kind == "file" and not Path(v).is_absolute():
+                        table[k] = str((base / v).resolve())
+        data["name"] = f"{sc.name}_design_{rank}"
+        vals = ", ".join(f"{k} = {_short(v)}" for k, v in d.values.items())
+        data["description"] = (f"{sc.description} Design {rank} of brief"
+                               f" {Path(self.brief.source).name}: {vals}.").strip()
+        status = "meets the brief" if d.feasible else "does NOT meet the brief (nearest design)"
+        return scenario_toml(data, [f"Written by ridesim design from {self.brief.source}.",
+                                    f"Design {rank} ({status}): {vals}.",
+                                    "Run it: ridesim check THIS.toml (simulate, report, export)."])
+
+    def _plot_front(self, path: Path) -> Path:
+        import matplotlib
+
+        matplotlib.use("Agg")
+        import matplotlib.pyplot as plt
+
+        from ridesim.export.results import write_bytes_atomic
+
+        g0, g1 = self.brief.goals
+        ok = [d for d in self.outcome.designs if d.feasible and
+              all(isinstance(v, (int, float)) for v in d.goals)]
+        bad = [d for d in self.outcome.designs if not d.feasible and
+               all(isinstance(v, (int, float)) for v in d.goals)]
+        front = pareto_front(self.outcome.designs, self.sense)
+        fig, ax = plt.subplots(figsize=(6.4, 4.2), dpi=100)
+        if bad:
+            ax.scatter([d.goals[0] for d in bad], [d.goals[1] for d in bad], s=12, c="#bbbbbb",
+                       label="misses the brief")
+        ax.scatter([d.goals[0] for d in ok], [d.goals[1] for d in ok], s=16, c="#1f5f8b",
+                   label="meets the brief")
+        ax.plot([d.goals[0] for d in front], [d.goals[1] for d in front], "o-", c="#c8553d",
+                label="trade-off front")
+        ax.set_xlabel(g0.text())
+        ax.set_ylabel(g1.text())
+        ax.grid(alpha=0.3)
+        ax.legend(frameon=False)
+        ax.set_title(f"{Path(self.brief.source).name}: {len(front)} designs on the front")
+        fig.tight_layout()
+        buf = io.BytesIO()
+        fig.savefig(buf, format="png")
+        plt.close(fig)
+        return write_bytes_atomic(path, buf.getvalue())
+
+
+def _miss(q: dict) -> str:
+    """One failed requirement of a design, e.g. ``x <= 0.3: 0.414, off by 0.114 (38.1 %)``."""
+    if q["met"] is None:
+        return f"{q['requirement']}: not evaluated (an earlier job missed its requirement)"
+    v = q["value"]
+    if isinstance(v, (int, float)) and not isinstance(v, bool) and q["by"] is not None:
+        return (f"{q['requirement']}: {_short(v)}, off by {_short(q['by'])}"
+                f" ({100 * q['by_rel']:.3g} %)")
+    return f"{q['requirement']}: got {_short(v)}"
+
+
+def _short(v: Any) -> str:
+    if v is None:
+        return "null"
+    if isinstance(v, float):
+        return f"{v:.6g}"
+    if isinstance(v, bool):
+        return str(v).lower()
+    return str(v)
+
+
+def _cell(v: Any) -> str:
+    if v is None:
+        return ""
+    if isinstance(v, float):
+        return repr(v)
+    return str(v)
+
+
+def run_design(brief: str | Path | Brief, out_dir: str | Path | None = None, *,
+               workers: int | None = None, cluster: str | None = None,
+               progress=None) -> DesignResult:
+    """Load a brief, search it, and write the results into ``out_dir``.
+
+    Parameters
+    ----------
+    brief : str, Path or Brief
+        The brief file, or a brief already loaded.
+    out_dir : str or Path, optional
+        Folder for the journal (resume), the scenario files and the tables; None writes
+        nothing.
+    workers : int, optional
+        Local worker processes (default: the machine's cores).
+    cluster : str, optional
+        ``"local"`` or a Dask scheduler address.
+    progress : callable, optional
+        ``progress(evaluated, computed)`` after each design.
+
+    Returns
+    -------
+    DesignResult
+    """
+    b = brief if isinstance(brief, Brief) else load_brief(brief)
+    ev = Evaluator(b, out_dir, workers=workers, cluster=cluster, progress=progress)
+    interrupted = False
+    try:
+        outcome = run_search(b, ev)
+    except KeyboardInterrupt:
+        interrupted = True
+        outcome = SearchOutcome(designs=[], method="interrupted", stages={})
+    finally:
+        ev.close()
+    res = DesignResult(brief=b, outcome=outcome, computed=ev.computed, interrupted=interrupted)
+    if out_dir is not None and not interrupted:
+        res.write(out_dir)
+    return res
