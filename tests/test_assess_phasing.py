@@ -7,7 +7,7 @@ import pytest
 
 import ridesim as rs
 from ridesim.assess.phasing import cart_phasing, resting_height
-from ridesim.render.wording import describe
+from ridesim.assess.wording import describe
 from ridesim.scenario.load import VehicleSpec
 
 

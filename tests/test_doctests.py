@@ -20,7 +20,7 @@ MODULES = [
     "ridesim.export.results",
     "ridesim.validate",
     "ridesim.assess.findings",
-    "ridesim.render.wording",
+    "ridesim.assess.wording",
     "ridesim.roots",
 ]
 

@@ -8,7 +8,7 @@ import pytest
 import ridesim as rs
 from ridesim.assess.findings import CODES, Finding
 from ridesim.jobs.check import check_scenario
-from ridesim.render import wording
+from ridesim.assess import wording
 from ridesim.scenario.load import scenario_from_dict
 
 

@@ -163,8 +163,9 @@ def test_square_at_half_a_rad_s_with_too_few_iterations_says_it_creeps():
     d = res.to_dict()
     assert abs(d["slip"]["phase_drift_rad"]) > ride.PHASE_DRIFT_FINDING_RAD
     assert d["bounce_growing"] and d["axle_bounce_trend_m_s"] > 0
-    assert len(d["findings"]) == 1
-    f = d["findings"][0]
+    assert [f["code"] for f in d["findings"]] == ["creep"]
+    assert d["findings"][0]["recommended_timestep_s"] == pytest.approx(2e-4)
+    f = d["notes"][0]
     # The recommended 0.2 ms step is the one the test above shows to hold this square.
     assert f.startswith("CREEP:") and "run.timestep_s = 0.0002 s" in f and "run.iterations = 100" in f
     text = res.to_text()
@@ -192,8 +193,10 @@ def test_five_lobed_wheel_with_default_corners_reports_its_growing_bounce():
     d = res.to_dict()
     assert d["slip"]["onset_time_s"] is None
     assert d["bounce_growing"] and d["axle_bounce_trend_m_s"] > 0
-    assert len(d["findings"]) == 1
-    f = d["findings"][0]
+    assert [f["code"] for f in d["findings"]] == ["creep"]
+    creep = d["findings"][0]
+    assert creep["growing"] and creep["corner_radius_m"] == pytest.approx(2.1e-3, rel=0.05)
+    f = d["notes"][0]
     assert f.startswith("CREEP: the axle bounce grows") and "rounded by 2.1 mm" in f
     assert "wheel.corner_radius_m" in f
     text = res.to_text()

@@ -2,7 +2,7 @@
 
 A verdict is decided from codes and figures, never from the wording of a message, and the
 same finding can be worded for a terminal, a report or a translation without touching the
-decision. :mod:`ridesim.render.wording` turns each code into a sentence a builder can act on.
+decision. :mod:`ridesim.assess.wording` turns each code into a sentence a builder can act on.
 
 Every code is listed in :data:`CODES` with whether it blocks the roll and what it means.
 Figures in ``data`` carry their unit in the key name (``bounce_m``, ``slope_rad``).
@@ -47,6 +47,7 @@ CODES: dict[str, tuple[bool, str]] = {
     "shaft_surge": (False, "a constant shaft speed makes the ground speed surge"),
     "drive_torque_limit": (False, "the drive's torque limit is below the peak a motor needs"),
     "torque_drive_balance": (False, "a constant torque drive accelerates or slows the cart"),
+    "creep": (False, "a simulated wheel crept out of phase with its track, or its bounce grew"),
 }
 
 

@@ -269,7 +269,7 @@ class PhasingResult:
         Peak vertical seat acceleration [m/s^2] at the given speed (``v² d²y/dx²``), keeping
         vibration up to :data:`SEAT_BAND_HZ` (see :func:`band_limited_peak_accel`).
     findings : tuple of Finding
-        What the phasing found (codes and figures; :mod:`ridesim.render.wording` words them).
+        What the phasing found (codes and figures; :mod:`ridesim.assess.wording` words them).
     whole_periods : int
         The whole number of track periods nearest the wheelbase (at least 1; 0 for one axle).
     wheelbase_error_m : float

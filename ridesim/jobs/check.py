@@ -38,8 +38,8 @@ from ridesim.assess.analytic import (
 from ridesim.assess.clearance import ClearanceResult, CuspSeat, clearance, cusp_seating
 from ridesim.assess.findings import Finding
 from ridesim.assess.phasing import cart_phasing
+from ridesim.assess.wording import describe
 from ridesim.errors import InputError
-from ridesim.render.wording import describe
 from ridesim.safety import SAFETY_CAUTIONS, caution_lines, with_safety
 from ridesim.scenario.build import resolve_wheelbase, solve_scenario, wheel_mass
 from ridesim.scenario.load import Scenario

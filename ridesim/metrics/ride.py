@@ -24,6 +24,8 @@ from typing import Any
 
 import numpy as np
 
+from ridesim.assess.findings import Finding
+from ridesim.assess.wording import describe
 from ridesim.safety import SAFETY_CAUTIONS, caution_lines, with_safety
 from ridesim.sim.engine import Probes
 
@@ -678,7 +680,8 @@ def bounce_trend(probes: Probes) -> dict:
 
 
 def creep_findings(probes: Probes, drift: np.ndarray | None, trend: dict,
-                   slip_onset_s: float | None = None, slip_distance_m: float = 0.0) -> list[str]:
+                   slip_onset_s: float | None = None,
+                   slip_distance_m: float = 0.0) -> list[Finding]:
     """Findings of a wheel creeping out of phase with its track, with the cause where known.
 
     A finding is raised when a wheel's phase drift (:func:`phase_drift_rad`) exceeds
@@ -699,54 +702,39 @@ def creep_findings(probes: Probes, drift: np.ndarray | None, trend: dict,
 
     Returns
     -------
-    list of str
-        Empty when the wheels kept their phase.
+    list of Finding
+        Empty when the wheels kept their phase; else one ``creep`` finding with its figures
+        (worded by :func:`ridesim.assess.wording.describe`).
     """
-    big = drift is not None and drift.size and float(np.max(np.abs(drift))) > PHASE_DRIFT_FINDING_RAD
+    big = bool(drift is not None and drift.size
+               and float(np.max(np.abs(drift))) > PHASE_DRIFT_FINDING_RAD)
     if not (big or trend.get("growing")):
         return []
-    parts = []
-    if big and drift is not None:
+    data: dict[str, Any] = {"drift_limit_rad": PHASE_DRIFT_FINDING_RAD, "drift_exceeds": big,
+                            "growing": bool(trend.get("growing"))}
+    if drift is not None and drift.size:
         a = int(np.argmax(np.abs(drift)))
-        d = float(drift[a])
-        parts.append(f"wheel {a} ended {d:+.3g} rad out of phase with its track ("
-                     + ("behind" if d < 0 else "ahead") + "; rolling without slip keeps 0, a finding"
-                     f" above {PHASE_DRIFT_FINDING_RAD:g} rad)")
+        data.update(drift_axle=a, drift_rad=float(drift[a]))
     if trend.get("growing"):
         wb = trend["window_bounce_m"]
-        lead = "its axle bounce" if big else "the axle bounce"
-        parts.append(f"{lead} grows by {1e3 * trend['trend_m_s']:.3g} mm/s ({1e3 * wb[0]:.3g} mm"
-                     f" in the first {trend['window_s']:.3g} s, {1e3 * wb[-1]:.3g} mm in the last)")
-    if not big and drift is not None and drift.size:
-        parts[-1] += f" while the phase moved {float(drift[np.argmax(np.abs(drift))]):+.3g} rad"
+        data.update(trend_m_s=float(trend["trend_m_s"]), first_window_bounce_m=float(wb[0]),
+                    last_window_bounce_m=float(wb[-1]), window_s=float(trend["window_s"]))
     info = probes.info
     it = int(info.get("iterations") or 0)
     r_roll = 0.5 * float(info.get("r_min_m") or 0.0) + 0.5 * float(info.get("r_max_m") or 0.0)
     creep_m = float(np.max(np.abs(drift))) * r_roll if drift is not None and drift.size else 0.0
-    if slip_onset_s is not None or (slip_distance_m > 0 and slip_distance_m >= 0.5 * creep_m):
-        cause = (f"the wheel slipped at the contact ({1e3 * slip_distance_m:.3g} mm of rim scrub"
-                 " above the slip threshold): more friction, or less torque, keeps it in phase")
-    else:
-        seen = (f" (the slip probe saw {1e3 * slip_distance_m:.3g} mm of rim scrub against"
-                f" {1e3 * creep_m:.3g} mm of creep)" if slip_distance_m > 0 else "")
-        cause = (f"not slip the probe can see{seen}: the phase is lost a little at contact changes and"
-                 " a wheel out of phase meets the next arch or kink early, which loses more")
-        cr = float(info.get("corner_radius_m") or 0.0)
-        if cr > 0 and info.get("corner_radius_source") in ("default", "scenario", "option"):
-            cause += (f"; the wheel's corners are rounded by {1e3 * cr:.3g} mm while the track's"
-                      " valleys were solved for sharp ones, so each corner rocks across its valley"
-                      " instead of rolling into it (measured on a five-lobed wheel on a sawtooth:"
-                      " 2.1 mm corners let the bounce grow, 0.2 mm kept it steady)")
-        if it and it < CREEP_ITERATIONS:
-            cause += (f"; with run.iterations = {it} the contact solver's friction may not converge"
-                      " and the contact creeps")
-    rec = (f"rerun with run.timestep_s = {0.2 * probes.dt_s:g} s, or with run.iterations ="
-           f" {max(CREEP_ITERATIONS, 2 * it)} and run.timestep_s = {0.5 * probes.dt_s:g} s"
-           + (", and set wheel.corner_radius_m to the real edge radius (or, for a polygon wheel,"
-              " wheel.fit_track_to_corners = true)" if "rounded by" in cause else "")
-           + "; if the drift stays, the model cannot hold this pair in phase: read bounce and torque"
-           " peaks as those of an out-of-phase ride, not of the ideal pair")
-    return ["CREEP: " + "; ".join(parts) + f". Cause: {cause}. Recommended: {rec}."]
+    slipped = slip_onset_s is not None or (slip_distance_m > 0 and slip_distance_m >= 0.5 * creep_m)
+    cr = float(info.get("corner_radius_m") or 0.0)
+    unfitted = (not slipped and cr > 0
+                and info.get("corner_radius_source") in ("default", "scenario", "option"))
+    data.update(
+        cause="slip" if slipped else "contact_changes", slip_scrub_m=float(slip_distance_m),
+        creep_m=creep_m, corner_radius_m=cr if unfitted else None,
+        iterations=it if (not slipped and it and it < CREEP_ITERATIONS) else None,
+        recommended_timestep_s=0.2 * probes.dt_s,
+        recommended_iterations=max(CREEP_ITERATIONS, 2 * it),
+        recommended_timestep_with_iterations_s=0.5 * probes.dt_s)
+    return [Finding("creep", data)]
 
 
 # ----------------------------------------------------------------------------- result
@@ -795,7 +783,7 @@ class SimResult:
         Each wheel's phase drift [rad] against its track (:func:`phase_drift_rad`).
     bounce_trend : dict
         See :func:`bounce_trend`.
-    findings : list of str
+    findings : list of Finding
         Creep findings (:func:`creep_findings`): a wheel out of phase or a growing bounce.
     """
 
@@ -914,7 +902,8 @@ class SimResult:
                                              else list(self.phase_drift_per_axle_rad)),
                 "phase_drift_finding_rad": PHASE_DRIFT_FINDING_RAD,
             },
-            "findings": list(self.findings),
+            "findings": [f.to_dict() for f in self.findings],
+            "notes": [describe(f) for f in self.findings],
             "torque": top,
             "speed": dict(self.speed),
             "contact_lost": bool(self.contact_lost),
@@ -982,7 +971,7 @@ class SimResult:
                          f" {c['crest_factor']:.3g}: {c['band']}")
         elif c:
             lines.append(f"comfort:      not evaluated ({c.get('unavailable', '')})")
-        lines.extend(f"FINDING: {f}" for f in d.get("findings", []))
+        lines.extend(f"FINDING: {n}" for n in d.get("notes", []))
         lines.extend(caution_lines(d["cautions"]))
         return "\n".join(lines)
 
