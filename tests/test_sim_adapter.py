@@ -69,7 +69,7 @@ def _same_run(sc):
     return fast.run(), pub.run()
 
 
-@pytest.mark.parametrize("mode,axles", [("speed", 2), ("torque", 2), ("speed", 1)])
+@pytest.mark.parametrize("mode,axles", [("speed", 2), ("torque", 2), ("speed", 1), ("speed", 3)])
 def test_public_interface_gives_the_same_numbers(mode, axles):
     a, b = _same_run(cart(mode, axles))
     assert b.info["torque_sign_known"] is True

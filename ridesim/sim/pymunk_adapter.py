@@ -244,13 +244,18 @@ class FastRecorder(Recorder):
         each_arb, arb_fn, adata = lib.cpSpaceEachCachedArbiter, self._arb_fn, self._adata
         Tc, mp = self._Tc, self._mptr
         S = len(mp)
-        rng = range(S)
         R, MF, J = _MOTOR_RATE, _MOTOR_MAXFORCE, _MOTOR_JACC
         big = self.rate_cap
+        # The first two motors are held in locals (most builds have one or two shafts): a loop
+        # over the motors would cost about 5 % of a step.
+        p0 = mp[0] if S > 0 else None
+        p1 = mp[1] if S > 1 else None
+        rest = mp[2:]
+        rest_j = range(2, S)
         # The motors' rate (the sign of the commanded torque) is written only when it changes.
-        fwd = mp[0][R] > 0.0 if S else True
+        fwd = p0[R] > 0.0 if p0 is not None else True
         for k in range(k0 + 1, k1 + 1):
-            if command is not None:
+            if command is not None and p0 is not None:
                 tq = command(k)
                 if (tq >= 0.0) is not fwd:
                     fwd = tq >= 0.0
@@ -258,14 +263,23 @@ class FastRecorder(Recorder):
                     for p in mp:
                         p[R] = r
                 mf = tq if fwd else -tq
-                for p in mp:
-                    p[MF] = mf
+                p0[MF] = mf
+                if p1 is not None:
+                    p1[MF] = mf
+                    if rest:
+                        for p in rest:
+                            p[MF] = mf
             cp_step(sp, dt)
             each_body(sp, body_fn, bdata)
             each_arb(sp, arb_fn, adata)
-            tb = S * k
-            for j in rng:
-                Tc[tb + j] = mp[j][J]
+            if p0 is not None:
+                tb = S * k
+                Tc[tb] = p0[J]
+                if p1 is not None:
+                    Tc[tb + 1] = p1[J]
+                    if rest:
+                        for j in rest_j:
+                            Tc[tb + j] = mp[j][J]
 
     def contact_stream(self) -> tuple[np.ndarray, np.ndarray]:
         """The run's contact record so far (see :meth:`Recorder.contact_stream`)."""
