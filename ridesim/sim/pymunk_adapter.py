@@ -34,11 +34,12 @@ import pymunk
 import pymunk.batch as pb
 
 __all__ = ["Recorder", "FastRecorder", "PublicRecorder", "make_recorder", "VERIFIED_PYMUNK",
-           "BODY_COLS", "ARB_INTS", "ARB_FLTS", "pymunk_verified"]
+           "BODY_COLS", "ARB_INTS", "ARB_FLTS", "pymunk_verified", "installed_pymunk_version"]
 
-VERIFIED_PYMUNK = ((7, 3),)
-"""pymunk (major, minor) versions whose private layout the fast recorder was verified on
-(``tests/test_sim_adapter.py``); pyproject.toml pins the same range."""
+VERIFIED_PYMUNK = ((7, 0), (7, 1), (7, 2), (7, 3))
+"""pymunk (major, minor) versions whose private layout the fast recorder was verified on: the
+fast and public recorders gave the same numbers (``tests/test_sim_adapter.py``) on 7.0.0,
+7.1.0, 7.2.0 and 7.3.1; pyproject.toml pins the same range."""
 
 BODY_COLS = 6
 """Columns per body in a state row: x, y, angle, vx, vy, w (position = body origin, velocity =
@@ -63,19 +64,37 @@ Command = Callable[[int], float]
 row ``k - 1``)."""
 
 
+def installed_pymunk_version() -> str:
+    """The installed pymunk's version, from its package record.
+
+    ``pymunk.version`` is not used: pymunk 7.0.0 reports "2.0.0" there.
+
+    Returns
+    -------
+    str
+    """
+    from importlib.metadata import PackageNotFoundError, version
+
+    try:
+        return version("pymunk")
+    except PackageNotFoundError:
+        return str(pymunk.version)
+
+
 def pymunk_verified(version: str | None = None) -> bool:
     """Whether a pymunk version is one whose private layout the fast recorder was verified on.
 
     Parameters
     ----------
     version : str, optional
-        A version string such as ``"7.3.1"``; the installed pymunk's when None.
+        A version string such as ``"7.3.1"``; the installed pymunk's when None
+        (:func:`installed_pymunk_version`).
 
     Returns
     -------
     bool
     """
-    v = pymunk.version if version is None else version
+    v = installed_pymunk_version() if version is None else version
     try:
         major, minor = (int(p) for p in v.split(".")[:2])
     except ValueError:
@@ -367,7 +386,8 @@ def make_recorder(space: pymunk.Space, bodies: Sequence[pymunk.Body], motors: Se
             why = str(exc)
     elif interface == "auto":
         verified = ", ".join(f"{a}.{b}" for a, b in VERIFIED_PYMUNK)
-        why = f"pymunk {pymunk.version} is not a version whose internals were verified ({verified})"
+        why = (f"pymunk {installed_pymunk_version()} is not a version whose internals were verified"
+               f" ({verified})")
     if rec is None:
         rec = PublicRecorder(space, bodies, motors, n_steps, dt_s, command_rate_rad_s)
         rec.torque_sign_known = commanded or not motors
