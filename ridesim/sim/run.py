@@ -152,7 +152,7 @@ class PymunkEngine(Engine):
         self._rec: Recorder = make_recorder(
             w.space, self._bodies, motors, self._n_total, self._dt, self._rate_cap,
             commanded=w.drive.mode in ("speed", "torque"), interface=interface)
-        self._direct = self._rec.torque_sign_known
+        self._torque_sign_known = self._rec.torque_sign_known
         self._col = self._rec.columns
         self._nb = self._rec.n_space_bodies  # every body pymunk iterates, the static body included
         self._ncol = self._rec.n_row
@@ -162,7 +162,7 @@ class PymunkEngine(Engine):
         self._cautions: list[str] = []
         if self._rec.caution:
             self._cautions.append(self._rec.caution)
-        if not self._direct and self._S:
+        if not self._torque_sign_known and self._S:
             self._cautions.append(
                 "the motors' torque sign is not readable through pymunk's public interface for a"
                 " shaft-speed drive: torques are magnitudes (sign assumed driving)"
@@ -458,7 +458,7 @@ class PymunkEngine(Engine):
             "max_torque_Nm": w.drive.max_torque_Nm,
             "shaft_speed_rad_s": (float(d.shaft_speed_rad_s or 0.0) if d.mode == "shaft_speed"
                                   else None),
-            "torque_sign_known": self._direct,
+            "torque_sign_known": self._torque_sign_known,
             "pymunk_interface": self.interface,
             "coupled": bool(self.scenario.vehicle.coupled and A > 1),
             "grade_rad": self.options.grade_rad,
