@@ -59,7 +59,7 @@ def _cmd_simulate(sc, args) -> tuple[dict, str]:
     progress = None
     if not args.json and sys.stderr.isatty():
         progress = _progress_bar("simulating")
-    res = simulate(sc, progress=progress)
+    res = simulate(sc, progress=progress, refine_on_creep=args.auto_step)
     if progress is not None:
         progress(1.0)
         sys.stderr.write("\n")
@@ -325,6 +325,9 @@ def _build_parser(commands: dict) -> _Parser:
             sp.add_argument("--fps", type=int, default=25, help="clip frames per second")
             sp.add_argument("--size", default="640x360", help="clip size WIDTHxHEIGHT [px]")
             sp.add_argument("--fixed-camera", action="store_true", help="do not follow the cart")
+        if name == "simulate":
+            sp.add_argument("--auto-step", action="store_true",
+                            help="if the run creeps, rerun it once at a fifth of run.timestep_s")
         if name == "report":
             sp.add_argument("--no-simulate", action="store_true",
                             help="leave the rigid-body simulation out (faster)")

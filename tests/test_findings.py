@@ -6,9 +6,9 @@ Project convention (DEVELOPERS.md): no decision is made by matching the text of 
 import pytest
 
 import ridesim as rs
+from ridesim.assess import wording
 from ridesim.assess.findings import CODES, Finding
 from ridesim.jobs.check import check_scenario
-from ridesim.assess import wording
 from ridesim.scenario.load import scenario_from_dict
 
 

@@ -61,6 +61,7 @@ __all__ = [
     "phase_drift_rad",
     "bounce_trend",
     "creep_findings",
+    "creeping",
     "AT_LIMIT_FRACTION",
     "STALL_SPEED_FRACTION",
     "SimResult",
@@ -679,6 +680,26 @@ def bounce_trend(probes: Probes) -> dict:
     return out
 
 
+def creeping(drift: np.ndarray | None, trend: dict) -> bool:
+    """Whether a run creeps: a wheel's phase drift too large, or a growing bounce.
+
+    The drift limit is :data:`PHASE_DRIFT_FINDING_RAD`; the growth is :func:`bounce_trend`'s.
+
+    Parameters
+    ----------
+    drift : ndarray or None
+        Phase drift [rad] per axle (:func:`phase_drift_rad`).
+    trend : dict
+        Result of :func:`bounce_trend`.
+
+    Returns
+    -------
+    bool
+    """
+    big = drift is not None and drift.size and float(np.max(np.abs(drift))) > PHASE_DRIFT_FINDING_RAD
+    return bool(big or trend.get("growing"))
+
+
 def creep_findings(probes: Probes, drift: np.ndarray | None, trend: dict,
                    slip_onset_s: float | None = None,
                    slip_distance_m: float = 0.0) -> list[Finding]:
@@ -706,10 +727,10 @@ def creep_findings(probes: Probes, drift: np.ndarray | None, trend: dict,
         Empty when the wheels kept their phase; else one ``creep`` finding with its figures
         (worded by :func:`ridesim.assess.wording.describe`).
     """
+    if not creeping(drift, trend):
+        return []
     big = bool(drift is not None and drift.size
                and float(np.max(np.abs(drift))) > PHASE_DRIFT_FINDING_RAD)
-    if not (big or trend.get("growing")):
-        return []
     data: dict[str, Any] = {"drift_limit_rad": PHASE_DRIFT_FINDING_RAD, "drift_exceeds": big,
                             "growing": bool(trend.get("growing"))}
     if drift is not None and drift.size:
@@ -806,6 +827,12 @@ class SimResult:
     phase_drift_per_axle_rad: list | None = None
     bounce_trend: dict = field(default_factory=dict)
     findings: list = field(default_factory=list)
+
+    @property
+    def creeps(self) -> bool:
+        """Whether the run crept (:func:`creeping`; it then carries a creep finding)."""
+        d = self.phase_drift_per_axle_rad
+        return creeping(None if d is None else np.asarray(d, dtype=float), self.bounce_trend)
 
     @property
     def phase_drift_rad(self) -> float | None:
