@@ -193,16 +193,11 @@ def _cmd_render(sc, args) -> tuple[dict, str]:
 
 
 def _cmd_export(sc, args) -> tuple[dict, str]:
-    from ridesim.export.drawings import export_drawings
-    from ridesim.scenario.build import solve_scenario
+    from ridesim.jobs.export import export_scenario
 
     out = _need_out(args, "export")
-    pair = solve_scenario(sc)
-    thick = sc.wheel.thickness_m if sc.wheel is not None else None
-    files = export_drawings(pair, out, name=sc.name, max_section_m=args.section,
-                            wheel_thickness_m=thick, title_lines=(sc.description,) if sc.description else ())
-    data = {"files": [str(f) for f in files]}
-    return data, "\n".join(str(f) for f in files)
+    data = export_scenario(sc, out, section_m=args.section)
+    return data, "\n".join(data["files"] + data["notes"])
 
 
 def _cmd_report(sc, args) -> tuple[dict, str]:
@@ -323,7 +318,8 @@ _COMMANDS: dict[str, tuple[Callable, str]] = {
     "simulate": (_cmd_simulate, "rigid-body simulation: bounce, slip onset, torque"),
     "size-motor": (_cmd_size_motor, "motor torque, speed and power over a duty cycle"),
     "render": (_cmd_render, "plots (PNG, SVG on request) and a GIF clip into --out DIR"),
-    "export": (_cmd_export, "1:1 SVG and CSV cut files of the wheel and track into --out DIR"),
+    "export": (_cmd_export, "1:1 SVG, CSV and DXF cut files of the wheel and track, and a cut list,"
+                            " into --out DIR"),
     "report": (_cmd_report, "one self-contained HTML page: verdict, figures, pictures, cautions"),
 }
 
@@ -370,8 +366,8 @@ def _build_parser(commands: dict) -> _Parser:
                             help="list the whole-period wheelbases from MIN to MAX [m] (default:"
                             " one to five wheel diameters)")
         if name == "export":
-            sp.add_argument("--section", type=float, default=1.0,
-                            help="longest track section to cut [m]")
+            sp.add_argument("--section", type=float, default=None,
+                            help="longest track section to cut [m] (default: [export] section_length_m)")
     sw = sub.add_parser("sweep", help="run a design sweep or tolerance study (resumable)",
                         description="Run every case of a sweep file; rerun the same command to"
                         " resume an interrupted sweep.")

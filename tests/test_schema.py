@@ -23,6 +23,7 @@ SPECS = {
     "vehicle": scenario_module.VehicleSpec, "drive": scenario_module.DriveSpec,
     "surface": scenario_module.SurfaceSpec, "run": scenario_module.RunSpec,
     "duty": scenario_module.DutySpec, "motor": scenario_module.MotorSpec,
+    "export": scenario_module.ExportSpec,
 }
 
 # A valid base scenario for the keys of each wheel or track shape.

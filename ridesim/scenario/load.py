@@ -58,6 +58,7 @@ __all__ = [
     "MAX_TIMESTEP_S",
     "WheelSpec",
     "TrackSpec",
+    "ExportSpec",
     "VehicleSpec",
     "DriveSpec",
     "SurfaceSpec",
@@ -456,6 +457,40 @@ class MotorSpec:
 
 
 @dataclass(frozen=True)
+class ExportSpec:
+    """Validated ``[export]`` section: what the cut files hold and how they are drawn.
+
+    Attributes
+    ----------
+    section_length_m : float
+        Longest track piece in m.
+    track_length_m : float or None
+        Track length to draw in m (whole periods, rounded up); None: ``revolutions``.
+    revolutions : float or None
+        Wheel revolutions of track to draw; None with ``track_length_m`` unset: 1.
+    chord_tolerance_m : float
+        Largest chord-to-curve distance in m.
+    axle_hole_m : float
+        Axle hole diameter in m.
+    axle_flat_m : float or None
+        Width across the flat of a D-bore in m; None: a round hole.
+    kerf_m : float
+        Cut width in m (lines offset by half of it into the waste).
+    rails : int
+        Rails: wheels per axle and strips per track piece.
+    """
+
+    section_length_m: float = default_of("export.section_length_m")
+    track_length_m: float | None = default_of("export.track_length_m")
+    revolutions: float | None = default_of("export.revolutions")
+    chord_tolerance_m: float = default_of("export.chord_tolerance_m")
+    axle_hole_m: float = default_of("export.axle_hole_m")
+    axle_flat_m: float | None = default_of("export.axle_flat_m")
+    kerf_m: float = default_of("export.kerf_m")
+    rails: int = default_of("export.rails")
+
+
+@dataclass(frozen=True)
 class Scenario:
     """A validated scenario: one build and how to run it.
 
@@ -502,6 +537,7 @@ class Scenario:
     run: RunSpec
     duty: DutySpec = DutySpec()
     motor: MotorSpec = MotorSpec()
+    export: ExportSpec = ExportSpec()
     source: str = field(default="<dict>", compare=False)
     base_dir: str = field(default=".", compare=False)
 
@@ -551,6 +587,7 @@ class Scenario:
         out["run"] = _spec_dict(self.run)
         out["duty"] = _spec_dict(self.duty)
         out["motor"] = _spec_dict(self.motor)
+        out["export"] = _spec_dict(self.export)
         return out
 
     def replace(self, key: str, value: Any) -> Scenario:
@@ -807,6 +844,7 @@ def scenario_from_dict(
         run=_parse_run(data.get("run", {})),
         duty=_parse_duty(data.get("duty", {})),
         motor=_parse_motor(data.get("motor", {})),
+        export=_parse_export(data.get("export", {})),
         source=source,
         base_dir=str(base),
     )
@@ -1123,6 +1161,22 @@ def _parse_motor(raw: Any) -> MotorSpec:
         safety_factor=t.get("safety_factor"),
         inertia_kg_m2=t.get("inertia_kg_m2"),
     )
+
+
+def _parse_export(raw: Any) -> ExportSpec:
+    """Validate the ``[export]`` section."""
+    t = _Table("export", raw)
+    t.only([f.name for f in fields(ExportSpec)])
+    if t.has("track_length_m") and t.has("revolutions"):
+        raise ScenarioError("export: give at most one of track_length_m, revolutions")
+    hole = t.get("axle_hole_m")
+    flat = t.get("axle_flat_m")
+    if flat is not None and not 0.5 * hole < flat < hole:
+        raise ScenarioError(
+            f"export.axle_flat_m must lie between axle_hole_m / 2 ({_show(0.5 * hole)}) and"
+            f" axle_hole_m ({_show(hole)}), got {_show(flat)}; it is the width across the flat"
+        )
+    return ExportSpec(**{f.name: t.get(f.name) for f in fields(ExportSpec)})
 
 
 def _parse_run(raw: Any) -> RunSpec:

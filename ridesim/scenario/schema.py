@@ -73,7 +73,7 @@ DRIVE_MODES = ("speed", "shaft_speed", "torque")
 MAX_TIMESTEP_S = 0.02
 """Largest accepted ``run.timestep_s`` in s."""
 
-SECTIONS = ("wheel", "track", "vehicle", "drive", "surface", "run", "duty", "motor")
+SECTIONS = ("wheel", "track", "vehicle", "drive", "surface", "run", "duty", "motor", "export")
 """The scenario's sections, in the order of the reference."""
 
 
@@ -363,6 +363,34 @@ KEYS: tuple[Key, ...] = (
         ge=1, plausible=(1.0, 5.0), source="common practice: design margins of 1.2 to 3"),
     Key("motor", "inertia_kg_m2", "real", 0.0, "kg m^2",
         "rotor inertia (reflected to the wheel as i^2 J)", ge=0),
+    # ---------------------------------------------------------------- [export]
+    Key("export", "section_length_m", "real", 1.0, "m",
+        "longest track piece in the cut files (pieces end at the track's highest points)",
+        gt=0, plausible=(0.05, 3.0),
+        source="common practice: laser and router beds of 0.3 m to 3 m (1.2 x 2.4 m sheets)"),
+    Key("export", "track_length_m", "real", None, "m",
+        "length of track to draw, rounded up to whole periods; unset: revolutions",
+        gt=0, plausible=(0.01, 100.0), source="common practice: a test piece to a ride's loop"),
+    Key("export", "revolutions", "real", None, "-",
+        "wheel revolutions of track to draw (instead of track_length_m); unset: 1", gt=0),
+    Key("export", "chord_tolerance_m", "real", 1e-5, "m",
+        "largest distance of a drawn chord from the true curve",
+        gt=0, plausible=(1e-7, 1e-3),
+        source="common practice: machine resolutions of a few um; 0.01 mm is below laser and"
+               " router accuracy"),
+    Key("export", "axle_hole_m", "real", 0.010, "m",
+        "axle hole diameter (the 10 mm default fits a 10 mm shaft: ream to fit)",
+        gt=0, plausible=(0.001, 0.1), source="common practice: 3 mm toy shafts to 80 mm axles"),
+    Key("export", "axle_flat_m", "real", None, "m",
+        "D-bore: width across the flat (between axle_hole_m / 2 and axle_hole_m), so the"
+        " wheel cannot turn on a D-shaft; unset: a round hole", gt=0),
+    Key("export", "kerf_m", "real", 0.0, "m",
+        "width of the cut; cut lines are offset by half of it into the waste so the parts come"
+        " out at size", ge=0, plausible=(0.0, 0.005),
+        source="common practice: 0.1-0.3 mm laser, 1-3 mm router or waterjet"),
+    Key("export", "rails", "int", 2, "-",
+        "rails the vehicle runs on: wheels per axle and strips per track piece in the cut list",
+        ge=1, plausible=(1.0, 4.0), source="common practice: a cart runs on two rails"),
 )
 """Every scenario key, grouped by section (the order of the reference)."""
 
