@@ -154,10 +154,21 @@ class WheelSpec:
     points_m : tuple of (float, float) or None
         Outline given inline: points [x, y] in m, at least 3.
     file : str or None
-        Outline given as a CSV file of x, y in m: resolved absolute path.
-    axle_m : (float, float)
+        Outline given as a file: CSV points x, y (m, or mm under an ``x_mm,y_mm`` header), or
+        a DXF or SVG drawing; resolved absolute path.
+    layer, id : str or None
+        DXF layer or SVG element id of the outline, when the drawing holds several shapes.
+    units : str or None
+        Length unit of a DXF drawing whose header gives none (m, cm, mm, in, ft).
+    corner_angle_deg : float or None
+        Outline: a point is a corner where the outline turns by more than this (deg);
+        None: 10.
+    corners : str, tuple of int or None
+        Outline: "all", "none" or point indices overriding ``corner_angle_deg``.
+    axle_m : (float, float) or None
         Axle position [x, y] in m in the coordinates of the outline. Always
-        (0, 0) for ``polar``, whose radius is measured from the axle.
+        (0, 0) for ``polar``, whose radius is measured from the axle. None for a
+        drawn outline without it: the smallest circle inside the outline.
     thickness_m : float
         Plate thickness in m.
     density_kg_m3 : float
@@ -194,7 +205,12 @@ class WheelSpec:
     radius_formula: str | None = default_of("wheel.radius_formula")
     points_m: tuple[Point, ...] | None = default_of("wheel.points_m")
     file: str | None = default_of("wheel.file")
-    axle_m: Point = default_of("wheel.axle_m")
+    layer: str | None = default_of("wheel.layer")
+    id: str | None = default_of("wheel.id")
+    units: str | None = default_of("wheel.units")
+    corner_angle_deg: float | None = default_of("wheel.corner_angle_deg")
+    corners: str | tuple[int, ...] | None = default_of("wheel.corners")
+    axle_m: Point | None = default_of("wheel.axle_m")
     thickness_m: float = default_of("wheel.thickness_m")
     density_kg_m3: float = default_of("wheel.density_kg_m3")
     mass_kg: float | None = default_of("wheel.mass_kg")
@@ -231,6 +247,10 @@ class TrackSpec:
     file : str or None
         Points given as a CSV file of x, y in m (in mm under an ``x_mm,y_mm`` header):
         resolved absolute path.
+    corner_angle_deg : float or None
+        Points: a point is a corner where the profile turns by more than this (deg); None: 10.
+    corners : str, tuple of int or None
+        Points: "all", "none" or point indices overriding ``corner_angle_deg``.
     lobes : int or None
         Track periods per wheel revolution (>= 1). None when ``depth_m`` is
         given instead; 1 when neither is given.
@@ -259,6 +279,8 @@ class TrackSpec:
     period_m: float | None = default_of("track.period_m")
     points_m: tuple[Point, ...] | None = default_of("track.points_m")
     file: str | None = default_of("track.file")
+    corner_angle_deg: float | None = default_of("track.corner_angle_deg")
+    corners: str | tuple[int, ...] | None = default_of("track.corners")
     lobes: int | None = default_of("track.lobes")
     depth_m: float | None = default_of("track.depth_m")
     height_error_m: float = default_of("track.height_error_m")
@@ -922,9 +944,20 @@ def _parse_wheel(raw: Any, base: Path) -> WheelSpec:
         _point_source(t, "outline", values, base)
         if values["points_m"] is not None:
             _check_area("wheel.points_m", values["points_m"])
+        drawing = values["file"] is not None and Path(values["file"]).suffix.lower() in (".dxf", ".svg")
+        for name in ("layer", "id", "units"):
+            if t.has(name) and not drawing:
+                raise ScenarioError(f"wheel.{name} applies to a DXF or SVG file only; remove it")
+            values[name] = t.get(name)
+        if values["units"] is not None and values["units"] not in ("m", "cm", "mm", "in", "ft"):
+            raise ScenarioError(f"wheel.units must be one of m, cm, mm, in, ft, got {_show(values['units'])}")
+        values["corner_angle_deg"] = t.get("corner_angle_deg")
+        values["corners"] = _corners(t)
 
     if shape != "polar":
         values["axle_m"] = t.get("axle_m")
+        if shape == "outline" and drawing and not t.has("axle_m"):
+            values["axle_m"] = None  # the smallest circle inside the drawn outline
     values.update({name: t.get(name) for name in _WHEEL_MATERIAL})
     if shape == "polygon" and t.get("fit_track_to_corners"):
         if values["corner_radius_m"] <= 0:
@@ -985,6 +1018,8 @@ def _parse_track(raw: Any, base: Path) -> TrackSpec:
         values["period_m"] = t.get("period_m", required=req)
     else:  # points
         _point_source(t, "points", values, base)
+        values["corner_angle_deg"] = t.get("corner_angle_deg")
+        values["corners"] = _corners(t)
         points = values["points_m"]
         if points is not None:
             for i in range(1, len(points)):
@@ -1030,6 +1065,26 @@ def _parse_track_build(raw: Any) -> TrackSpec:
                 f" shape); only {', '.join(_TRACK_BUILD)} are allowed"
             )
     return TrackSpec(shape=None, lobes=None, **_track_build_values(t))
+
+
+def _corners(t: _Table) -> str | tuple[int, ...] | None:
+    """Read ``corners``: "all", "none" or a list of point indices (from 0)."""
+    if not t.has("corners"):
+        return None
+    v = t.raw("corners")
+    if isinstance(v, str):
+        if v in ("all", "none"):
+            return v
+        raise ScenarioError(f'{t.key("corners")} must be "all", "none" or a list of point indices,'
+                            f" got {_show(v)}")
+    items = _as_list(t.key("corners"), v, "a list of point indices")
+    out = []
+    for i, item in enumerate(items):
+        k = _as_int(f"{t.key('corners')}[{i}]", item)
+        if k < 0:
+            raise ScenarioError(f"{t.key('corners')}[{i}] must be a point index >= 0, got {k}")
+        out.append(k)
+    return tuple(out)
 
 
 def _point_source(t: _Table, shape: str, values: dict[str, Any], base: Path) -> None:

@@ -87,7 +87,7 @@ class _Required:
 REQUIRED: Any = _Required()
 """Default of a key that must be given; its spec field holds None until it is."""
 
-KINDS = ("real", "int", "bool", "str", "choice", "pair", "points", "file", "ints", "reals")
+KINDS = ("real", "int", "bool", "str", "choice", "pair", "points", "file", "ints", "reals", "corners")
 """Value types of :attr:`Key.kind`."""
 
 
@@ -196,8 +196,23 @@ KEYS: tuple[Key, ...] = (
         "outline points [x, y], at least 3 (give exactly one of points_m, file)",
         shapes=_OUTLINE),
     Key("wheel", "file", "file", REQUIRED, "m",
-        "CSV file of outline points x, y, relative to the scenario's folder"
+        "outline file relative to the scenario's folder: CSV points x, y, or a DXF or SVG drawing"
         " (give exactly one of points_m, file)", shapes=_OUTLINE),
+    Key("wheel", "layer", "str", None, "",
+        "DXF: the layer holding the outline (needed when the drawing holds several shapes)",
+        shapes=_OUTLINE),
+    Key("wheel", "id", "str", None, "",
+        "SVG: the id of the outline element (needed when the drawing holds several shapes)",
+        shapes=_OUTLINE),
+    Key("wheel", "units", "str", None, "",
+        "DXF: length unit (m, cm, mm, in, ft) of a drawing whose header gives none",
+        shapes=_OUTLINE),
+    Key("wheel", "corner_angle_deg", "real", None, "deg",
+        "a point of the outline is a corner where the outline turns by more than this (unset:"
+        " 10); between corners it is a smooth spline", ge=0, lt=180, shapes=_OUTLINE),
+    Key("wheel", "corners", "corners", None, "",
+        '"all" (a polygon), "none" (smooth all round) or a list of point indices; unset:'
+        " by corner_angle_deg", shapes=_OUTLINE),
     Key("wheel", "scale", "real", 1.0, "-",
         "as-built size over nominal size (1.002: cut 0.2 % large)",
         gt=0, plausible=(0.9, 1.1),
@@ -206,7 +221,8 @@ KEYS: tuple[Key, ...] = (
         "as-built axle hole position minus the nominal one [x, y]",
         plausible=(-0.05, 0.05), source=_ERROR_SRC),
     Key("wheel", "axle_m", "pair", (0.0, 0.0), "m",
-        "axle position [x, y] in the outline's coordinates (not for polar)"),
+        "axle position [x, y] in the outline's coordinates (not for polar); a DXF or SVG"
+        " outline: unset means the smallest circle inside it"),
     Key("wheel", "thickness_m", "real", 0.02, "m", "plate thickness",
         gt=0, plausible=(0.001, 0.3),
         source="common practice: 1 mm sheet to 30 cm solid wheels"),
@@ -245,6 +261,12 @@ KEYS: tuple[Key, ...] = (
     Key("track", "file", "file", REQUIRED, "m",
         "CSV file of profile points x, y (mm under an x_mm,y_mm header)"
         " (give exactly one of points_m, file)", shapes=("points",)),
+    Key("track", "corner_angle_deg", "real", None, "deg",
+        "a point of the profile is a corner where it turns by more than this (unset: 10);"
+        " between corners it is a smooth spline", ge=0, lt=180, shapes=("points",)),
+    Key("track", "corners", "corners", None, "",
+        '"all" (straight segments), "none" (smooth throughout) or a list of point indices;'
+        " unset: by corner_angle_deg", shapes=("points",)),
     Key("track", "period_m", "real", None, "m",
         "period (required for formula; points: unset means the points' x span)",
         gt=0, plausible=_TRACK_LENGTH_M, source=_TRACK_SRC, shapes=("formula", "points")),
@@ -540,7 +562,8 @@ def _show_bounds(k: Key) -> str:
 
 _KIND_TEXT = {"real": "number", "int": "integer", "bool": "true/false", "str": "text",
               "choice": "text", "pair": "[x, y]", "points": "list of [x, y]", "file": "path",
-              "ints": "list of integers", "reals": "list of numbers"}
+              "ints": "list of integers", "reals": "list of numbers",
+              "corners": "\"all\", \"none\" or list of integers"}
 
 
 def markdown_reference() -> str:
