@@ -213,6 +213,25 @@ def _cmd_report(sc, args) -> tuple[dict, str]:
     return {"report": str(page), **figures}, f"report written: {page}"
 
 
+def _cmd_new(args) -> int:
+    from ridesim.export.results import write_text_atomic
+    from ridesim.scenario.template import scenario_template
+
+    name = args.name.strip()
+    if not name or Path(name).name != name or name.endswith(".toml"):
+        raise ScenarioError_(f"NAME must be a plain name without a folder or .toml, got {args.name!r}")
+    text = scenario_template(name, wheel=args.wheel, track=args.track)
+    path = Path(args.out or ".") / f"{name}.toml"
+    if path.exists():
+        raise ScenarioError_(f"{path} already exists; choose another NAME or remove it")
+    write_text_atomic(path, text)
+    if args.json:
+        sys.stdout.write(json.dumps({"scenario": str(path)}) + "\n")
+    else:
+        print(f"wrote {path}: edit it, then run ridesim check {path}")
+    return 0
+
+
 def _text_of(res) -> str:
     """A result's own text, or a plain listing of its figures."""
     if hasattr(res, "to_text"):
@@ -368,6 +387,17 @@ def _build_parser(commands: dict) -> _Parser:
         if name == "export":
             sp.add_argument("--section", type=float, default=None,
                             help="longest track section to cut [m] (default: [export] section_length_m)")
+    nw = sub.add_parser("new", help="write a commented scenario NAME.toml with every key",
+                        description="Write NAME.toml: a scenario with the keys its shape needs set to"
+                        " an example and every other key commented out, each with its unit, default"
+                        " and range.")
+    nw.add_argument("name", metavar="NAME", help="scenario name (the file is NAME.toml)")
+    nw.add_argument("--wheel", metavar="SHAPE", default=None,
+                    help="wheel shape: polygon | ellipse | circle | polar | outline (default polygon)")
+    nw.add_argument("--track", metavar="SHAPE", default=None,
+                    help="track shape instead: wave | sawtooth | formula | points")
+    nw.add_argument("--out", metavar="DIR", help="folder for the file (default: here)")
+    nw.add_argument("--json", action="store_true", help="print exactly one JSON object")
     sw = sub.add_parser("sweep", help="run a design sweep or tolerance study (resumable)",
                         description="Run every case of a sweep file; rerun the same command to"
                         " resume an interrupted sweep.")
@@ -413,6 +443,8 @@ def main(argv: list[str] | None = None) -> int:
             _check_out(args.out)
         if args.command == "sweep":
             return _cmd_sweep(args)
+        if args.command == "new":
+            return _cmd_new(args)
         sc = load_scenario(args.scenario)
         for line in sc.warnings:  # valid but outside real builds: most likely a unit slip
             print(f"warning: {line}", file=sys.stderr)
