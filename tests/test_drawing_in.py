@@ -173,3 +173,31 @@ def test_svg_shapes_and_id(tmp_path):
                                                         "axle_m": [0.05, -0.05]}}))
     rmin, rmax, _ = pair.wheel.extremes()
     assert rmin == pytest.approx(0.0375, abs=1e-6) and rmax == pytest.approx(0.05, abs=1e-6)
+
+
+def test_track_profile_from_a_dxf_spline_and_an_svg_polyline(tmp_path):
+    """One period of f = A cos(2 pi x / L) drawn as a fitted SPLINE (DXF, mm) and as an SVG
+    polyline of 61 points: the wheel for n lobes closes at D = sqrt((n L / 2 pi)^2 + A^2)
+    (the standard integral of 1 / (D - A cos kx); see tests/test_outline.py)."""
+    amp, L, n = 20.0, 300.0, 4  # mm
+    x = np.linspace(0.0, L, 61)
+    y = amp * np.cos(2 * math.pi * x / L)
+    exact = math.hypot(n * L / (2 * math.pi), amp) / 1000
+    svg = tmp_path / "track.svg"
+    pts = " ".join(f"{a:.6f},{-b:.6f}" for a, b in zip(x, y, strict=True))  # SVG y points down
+    svg.write_text('<svg xmlns="http://www.w3.org/2000/svg" width="400mm" height="100mm"'
+                   ' viewBox="0 -50 400 100">'
+                   f'<polyline id="profile" points="{pts}" fill="none" stroke="red"/></svg>',
+                   encoding="utf-8")
+    pair = solve_scenario(scenario_from_dict({"track": {"shape": "points", "file": str(svg), "lobes": n}}))
+    # The drawing's frame sets the heights (here 50 mm down from the viewBox): compare the
+    # depth below the profile's crest, D - A.
+    top = pair.track.shape_range()[1]
+    assert pair.depth - top == pytest.approx(exact - amp / 1000, rel=1e-6)
+    doc = dxf_doc()
+    doc.modelspace().add_polyline2d(list(zip(x.tolist(), y.tolist(), strict=True)))
+    path = tmp_path / "track.dxf"
+    doc.saveas(path)
+    pair = solve_scenario(scenario_from_dict({"track": {"shape": "points", "file": str(path), "lobes": n}}))
+    assert pair.depth == pytest.approx(exact, rel=1e-6)
+    assert pair.track.kinks == ()

@@ -19,7 +19,7 @@ import numpy as np
 from ridesim.errors import RidesimError, ScenarioError
 from ridesim.model.track import Track
 from ridesim.model.wheel import MassProperties, Wheel
-from ridesim.scenario.drawing import is_drawing, read_drawing
+from ridesim.scenario.drawing import is_drawing, read_drawing, read_profile_drawing
 from ridesim.scenario.load import Scenario, TrackSpec, WheelSpec
 from ridesim.solve.forward import track_for
 from ridesim.solve.inverse import wheel_for
@@ -184,7 +184,11 @@ def track_from_spec(spec: TrackSpec) -> Track:
         return _wrap("track", Track.sawtooth, spec.rise_m, spec.run_m)
     if s == "formula":
         return _wrap("track.formula", Track.profile, spec.formula, spec.period_m)
-    pts = spec.points_m if spec.points_m is not None else read_points_csv(spec.file, "track.file")
+    if spec.file is not None and is_drawing(spec.file):
+        pts = read_profile_drawing(spec.file, "track.file", layer=spec.layer, ident=spec.id,
+                                   units=spec.units)
+    else:
+        pts = spec.points_m if spec.points_m is not None else read_points_csv(spec.file, "track.file")
     return _wrap("track", Track.points, pts, period=spec.period_m, **_corner_args(spec))
 
 

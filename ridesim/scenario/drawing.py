@@ -29,7 +29,7 @@ import numpy as np
 
 from ridesim.errors import ScenarioError
 
-__all__ = ["UNITS_M", "FLATTEN_M", "DrawnOutline", "read_drawing", "is_drawing"]
+__all__ = ["UNITS_M", "FLATTEN_M", "DrawnOutline", "read_drawing", "read_profile_drawing", "is_drawing"]
 
 #: Length units a ``units`` key may name, in metres.
 UNITS_M = {"m": 1.0, "cm": 0.01, "mm": 0.001, "in": 0.0254, "ft": 0.3048}
@@ -394,3 +394,48 @@ def read_drawing(path: str | Path, key: str, *, layer: str | None = None, ident:
         return _pick(shapes, key, p, "layer = \"...\"")
     shapes = _read_svg(p, key, ident)
     return _pick(shapes, key, p, "id = \"...\"")
+
+
+def read_profile_drawing(path: str | Path, key: str, *, layer: str | None = None, ident: str | None = None,
+                         units: str | None = None) -> np.ndarray:
+    """Read one open track profile (one period, left to right) from a DXF or SVG drawing.
+
+    The profile is the one open curve of the drawing (DXF entities on ``layer`` joined end to
+    end, or the SVG element ``ident``); closed shapes are ignored.
+
+    Parameters
+    ----------
+    path : str or Path
+        The drawing (``.dxf`` or ``.svg``).
+    key : str
+        Scenario key path for messages (``track.file``).
+    layer : str, optional
+        DXF layer to read.
+    ident : str, optional
+        SVG element id to read.
+    units : str, optional
+        DXF length unit for a drawing whose header gives none.
+
+    Returns
+    -------
+    ndarray, shape (N, 2)
+        Profile points [m], x increasing.
+    """
+    p = Path(path)
+    if units is not None and units not in UNITS_M:
+        raise ScenarioError(f"{key.rsplit('.', 1)[0]}.units must be one of {', '.join(UNITS_M)},"
+                            f" got {units!r}")
+    if p.suffix.lower() == ".dxf":
+        shapes, picker = _read_dxf(p, key, layer, units), 'layer = "..."'
+    else:
+        shapes, picker = _read_svg(p, key, ident), 'id = "..."'
+    runs = [s for s in shapes if s.open_run]
+    if not runs:
+        raise ScenarioError(f"{key}: {p.name} holds no open curve to read as the track profile; draw one"
+                            " period of the profile as one open polyline, spline or path")
+    if len(runs) > 1:
+        names = ", ".join(s.name for s in runs[:4])
+        raise ScenarioError(f"{key}: {p.name} holds {len(runs)} open curves ({names}); pick one"
+                            f" with {picker}")
+    pts = runs[0].points
+    return pts[::-1].copy() if pts[-1, 0] < pts[0, 0] else pts

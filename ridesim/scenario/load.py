@@ -247,6 +247,10 @@ class TrackSpec:
     file : str or None
         Points given as a CSV file of x, y in m (in mm under an ``x_mm,y_mm`` header):
         resolved absolute path.
+    layer, id : str or None
+        DXF layer or SVG element id of a drawn profile, when the drawing holds several curves.
+    units : str or None
+        Length unit of a DXF drawing whose header gives none (m, cm, mm, in, ft).
     corner_angle_deg : float or None
         Points: a point is a corner where the profile turns by more than this (deg); None: 10.
     corners : str, tuple of int or None
@@ -279,6 +283,9 @@ class TrackSpec:
     period_m: float | None = default_of("track.period_m")
     points_m: tuple[Point, ...] | None = default_of("track.points_m")
     file: str | None = default_of("track.file")
+    layer: str | None = default_of("track.layer")
+    id: str | None = default_of("track.id")
+    units: str | None = default_of("track.units")
     corner_angle_deg: float | None = default_of("track.corner_angle_deg")
     corners: str | tuple[int, ...] | None = default_of("track.corners")
     lobes: int | None = default_of("track.lobes")
@@ -944,13 +951,7 @@ def _parse_wheel(raw: Any, base: Path) -> WheelSpec:
         _point_source(t, "outline", values, base)
         if values["points_m"] is not None:
             _check_area("wheel.points_m", values["points_m"])
-        drawing = values["file"] is not None and Path(values["file"]).suffix.lower() in (".dxf", ".svg")
-        for name in ("layer", "id", "units"):
-            if t.has(name) and not drawing:
-                raise ScenarioError(f"wheel.{name} applies to a DXF or SVG file only; remove it")
-            values[name] = t.get(name)
-        if values["units"] is not None and values["units"] not in ("m", "cm", "mm", "in", "ft"):
-            raise ScenarioError(f"wheel.units must be one of m, cm, mm, in, ft, got {_show(values['units'])}")
+        drawing = _drawing_keys(t, values)
         values["corner_angle_deg"] = t.get("corner_angle_deg")
         values["corners"] = _corners(t)
 
@@ -1018,6 +1019,7 @@ def _parse_track(raw: Any, base: Path) -> TrackSpec:
         values["period_m"] = t.get("period_m", required=req)
     else:  # points
         _point_source(t, "points", values, base)
+        _drawing_keys(t, values)
         values["corner_angle_deg"] = t.get("corner_angle_deg")
         values["corners"] = _corners(t)
         points = values["points_m"]
@@ -1065,6 +1067,19 @@ def _parse_track_build(raw: Any) -> TrackSpec:
                 f" shape); only {', '.join(_TRACK_BUILD)} are allowed"
             )
     return TrackSpec(shape=None, lobes=None, **_track_build_values(t))
+
+
+def _drawing_keys(t: _Table, values: dict[str, Any]) -> bool:
+    """Read ``layer``, ``id`` and ``units`` (DXF or SVG files only); True for a drawing."""
+    drawing = values["file"] is not None and Path(values["file"]).suffix.lower() in (".dxf", ".svg")
+    for name in ("layer", "id", "units"):
+        if t.has(name) and not drawing:
+            raise ScenarioError(f"{t.key(name)} applies to a DXF or SVG file only; remove it")
+        values[name] = t.get(name)
+    if values["units"] is not None and values["units"] not in ("m", "cm", "mm", "in", "ft"):
+        raise ScenarioError(f"{t.key('units')} must be one of m, cm, mm, in, ft,"
+                            f" got {_show(values['units'])}")
+    return drawing
 
 
 def _corners(t: _Table) -> str | tuple[int, ...] | None:

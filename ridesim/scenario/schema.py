@@ -259,8 +259,18 @@ KEYS: tuple[Key, ...] = (
         "profile points [x, y], x increasing, at least 3 (give exactly one of points_m, file)",
         shapes=("points",)),
     Key("track", "file", "file", REQUIRED, "m",
-        "CSV file of profile points x, y (mm under an x_mm,y_mm header)"
-        " (give exactly one of points_m, file)", shapes=("points",)),
+        "CSV file of profile points x, y (mm under an x_mm,y_mm header), or a DXF or SVG"
+        " drawing of one period as one open curve (give exactly one of points_m, file)",
+        shapes=("points",)),
+    Key("track", "layer", "str", None, "",
+        "DXF: the layer holding the profile (needed when the drawing holds several curves)",
+        shapes=("points",)),
+    Key("track", "id", "str", None, "",
+        "SVG: the id of the profile element (needed when the drawing holds several curves)",
+        shapes=("points",)),
+    Key("track", "units", "str", None, "",
+        "DXF: length unit (m, cm, mm, in, ft) of a drawing whose header gives none",
+        shapes=("points",)),
     Key("track", "corner_angle_deg", "real", None, "deg",
         "a point of the profile is a corner where it turns by more than this (unset: 10);"
         " between corners it is a smooth spline", ge=0, lt=180, shapes=("points",)),
