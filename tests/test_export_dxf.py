@@ -17,6 +17,7 @@ ezdxf = pytest.importorskip("ezdxf")
 from ezdxf import bbox  # noqa: E402
 
 from ridesim.jobs.export import export_scenario  # noqa: E402
+from ridesim.scenario.build import solve_scenario  # noqa: E402
 from ridesim.scenario.load import scenario_from_dict  # noqa: E402
 
 A = 0.12  # apothem [m]
@@ -136,3 +137,32 @@ def test_bad_flat_is_refused(raises_one_line):
     raises_one_line(ScenarioError, ["axle_flat_m", "across the flat"], scenario_from_dict,
                     {"wheel": {"shape": "circle", "radius_m": 0.1},
                      "export": {"axle_hole_m": 0.01, "axle_flat_m": 0.004}})
+
+
+def test_circle_wheel_is_a_dxf_circle_and_smooth_outline_within_tolerance(tmp_path):
+    # A circle of radius 0.1 m with its axle 0.02 m off centre: the cut circle has radius
+    # R + k/2 about the centre, which sits at -axle in the axle frame.
+    sc = scenario_from_dict({"name": "c", "export": {"kerf_m": KERF},
+                             "wheel": {"shape": "circle", "radius_m": 0.1, "axle_m": [0.02, 0.0]}})
+    export_scenario(sc, tmp_path, dxf=True)
+    doc = ezdxf.readfile(tmp_path / "c_wheel.dxf")
+    circles = sorted((e for e in cut_entities(doc) if e.dxftype() == "CIRCLE"), key=lambda e: e.dxf.radius)
+    hole, rim = circles
+    assert rim.dxf.radius == pytest.approx((0.1 + KERF / 2) * 1000, rel=1e-12)
+    np.testing.assert_allclose([rim.dxf.center.x, rim.dxf.center.y], [-20.0, 0.0], atol=1e-9)
+    assert hole.dxf.radius == pytest.approx((0.010 - KERF) / 2 * 1000, rel=1e-12)
+    # An outline through 90 points of an ellipse is drawn from its spline: every drawn point
+    # lies on that spline's polar radius (within rounding), chords within the tolerance.
+    t = 2 * math.pi * np.arange(90) / 90
+    pts = np.column_stack([0.2 * np.cos(t), 0.15 * np.sin(t)])
+    sc = scenario_from_dict({"name": "e", "wheel": {"shape": "outline", "points_m": pts.tolist()}})
+    export_scenario(sc, tmp_path, dxf=True)
+    doc = ezdxf.readfile(tmp_path / "e_wheel.dxf")
+    poly = next(e for e in cut_entities(doc) if e.dxftype() == "LWPOLYLINE")
+    drawn = np.array(poly.get_points("xy")) / 1000
+    w = solve_scenario(sc).wheel
+    phi = np.arctan2(drawn[:, 1], drawn[:, 0])
+    np.testing.assert_allclose(np.hypot(drawn[:, 0], drawn[:, 1]), w.radius(phi), atol=1e-12)
+    mid = 0.5 * (drawn + np.roll(drawn, -1, axis=0))  # chord midpoints: inside the rim by < tol
+    gap = w.radius(np.arctan2(mid[:, 1], mid[:, 0])) - np.hypot(mid[:, 0], mid[:, 1])
+    assert gap.max() < 1e-5 and gap.min() > -1e-9

@@ -157,6 +157,8 @@ def wheel_outline_mm(wheel, tol_m: float = CHORD_TOL_M) -> np.ndarray:
     """
     if wheel.is_polygon:
         return np.array(wheel.vertices, dtype=float) * 1000.0
+    if getattr(wheel, "curve", None) is not None:  # an outline through points: its own spline
+        return wheel.curve.sample(tol_m) * 1000.0
     # Split at corners and at curvature breaks (a rounded polygon's flat-to-arc joints).
     splits = sorted(set(wheel.kinks) | set(wheel.breaks))
     kinks = [k for k in splits if 0.0 < k < TWO_PI]

@@ -9,8 +9,9 @@ path, y below the axle line), with three layers:
 * ``MARK`` (blue, ACI 5): score or mark lines (axle cross-hair, cusp and joint ticks);
 * ``TEXT`` (white/black, ACI 7): notes to engrave or ignore.
 
-Curves are LWPOLYLINEs whose chords stay within the export's chord tolerance; a round
-axle hole is a CIRCLE and the arc of a D-bore an exact arc (a polyline bulge).
+Curves are LWPOLYLINEs whose chords stay within the export's chord tolerance; a circular
+wheel and a round axle hole are CIRCLEs and the arc of a D-bore an exact arc (a polyline
+bulge).
 """
 
 from __future__ import annotations
@@ -95,7 +96,13 @@ def wheel_dxf(path: str | Path, pair, cut_mm: np.ndarray, hole_m: float, flat_m:
     """
     doc = _new_doc()
     msp = doc.modelspace()
-    msp.add_lwpolyline([tuple(map(float, p)) for p in cut_mm], close=True, dxfattribs={"layer": "CUT"})
+    wheel = pair.wheel
+    if wheel.kind == "circle":  # a circle stays a circle: its centre and radius, grown by half the kerf
+        c = np.asarray(wheel.shape_offset) * 1000
+        msp.add_circle((float(c[0]), float(c[1])), (wheel.params["radius_m"] + 0.5 * kerf_m) * 1000,
+                       dxfattribs={"layer": "CUT"})
+    else:
+        msp.add_lwpolyline([tuple(map(float, p)) for p in cut_mm], close=True, dxfattribs={"layer": "CUT"})
     r = 0.5 * (hole_m - kerf_m) * 1000
     if flat_m is None:
         msp.add_circle((0.0, 0.0), r, dxfattribs={"layer": "CUT"})
