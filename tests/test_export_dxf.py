@@ -166,3 +166,19 @@ def test_circle_wheel_is_a_dxf_circle_and_smooth_outline_within_tolerance(tmp_pa
     mid = 0.5 * (drawn + np.roll(drawn, -1, axis=0))  # chord midpoints: inside the rim by < tol
     gap = w.radius(np.arctan2(mid[:, 1], mid[:, 0])) - np.hypot(mid[:, 0], mid[:, 1])
     assert gap.max() < 1e-5 and gap.min() > -1e-9
+
+
+def test_sheet_limits_the_pieces_and_flags_what_does_not_fit(tmp_path):
+    """Sheet 0.6 x 0.25 m with 10 mm margins: pieces at most 0.58 m, i.e. 4 hexagon periods of
+    2 a asinh(tan(pi/6)) = 0.1318 m (Hall & Wagon 1992); the wheel (2 a / cos(pi/6) = 277 mm by
+    2 a = 240 mm) does not fit the 230 mm of usable height."""
+    sc = scenario_from_dict({"name": "s", "wheel": {"shape": "polygon", "sides": 6, "apothem_m": A},
+                             "export": {"sheet_m": [0.6, 0.25], "revolutions": 2}})
+    export_scenario(sc, tmp_path, dxf=False)
+    data = json.loads((tmp_path / "s_cut_list.json").read_text())
+    P = 2 * A * math.asinh(math.tan(math.pi / 6))
+    assert len(data["parts"]) == 1 + 3  # 12 periods in pieces of 4
+    assert data["parts"][1]["size_mm"][0] == pytest.approx(4 * P * 1000, rel=1e-9)
+    assert data["parts"][0]["fits_sheet"] is False and all(p["fits_sheet"] for p in data["parts"][1:])
+    assert data["sheets_at_least"] == math.ceil(data["sheet_area_m2"] / (0.6 * 0.25))
+    assert "does not fit" in (tmp_path / "s_cut_list.txt").read_text()

@@ -599,7 +599,7 @@ def export_drawings(pair, out_dir: str | Path, *, name: str, max_section_m: floa
                     joint_mark_m: float = 0.010, margin_m: float = MARGIN_M,
                     chord_tol_m: float = CHORD_TOL_M, kerf_m: float = 0.0,
                     axle_flat_m: float | None = None, dxf: bool = False, wheels: int = 1,
-                    strips: int = 1) -> list[Path]:
+                    strips: int = 1, sheet_m: Sequence[float] | None = None) -> list[Path]:
     """Write full-size cut files of the wheel and of the track, sections and point lists.
 
     Files (all written atomically), with ``NAME`` the sanitised ``name``:
@@ -654,6 +654,9 @@ def export_drawings(pair, out_dir: str | Path, *, name: str, max_section_m: floa
         Wheels to cut (cut list count).
     strips : int
         Copies of each track piece to cut (cut list count: one per rail).
+    sheet_m : pair of float, optional
+        Sheet size [m]: track pieces are no longer than its long side less two margins, and
+        the cut list gives the least number of sheets and the parts that do not fit.
 
     Returns
     -------
@@ -701,6 +704,13 @@ def export_drawings(pair, out_dir: str | Path, *, name: str, max_section_m: floa
                                                 wheel_thickness_m, len(wpts), None, pair.depth, tol),
                                   *_kerf_lines(kerf, axle_flat_m, "wheel"), *title_lines]))
 
+    sheet = None
+    if sheet_m is not None:
+        sheet = sorted((_positive("sheet_m", float(v)) for v in sheet_m), reverse=True)
+        room = sheet[0] - 2 * margin - kerf
+        if room <= 0:
+            raise InputError(f"sheet_m {sheet_m!r} leaves no room inside the {margin:g} m margins")
+        max_section_m = min(_positive("max_section_m", max_section_m), room)
     sections = track_sections(pair, max_section_m, periods)
     profs = [track_profile_mm(pair.track, a, b, tol) for a, b in sections]
     y_low = min(float(p[:, 1].min()) for p in profs)
@@ -739,6 +749,14 @@ def export_drawings(pair, out_dir: str | Path, *, name: str, max_section_m: floa
                       "count": int(strips), "size_mm": _bbox(cut), "cut_length_mm": _perimeter(cut)})
     usage = sum(p["count"] * p["size_mm"][0] * p["size_mm"][1] for p in parts) * 1e-6
     cut_total = sum(p["count"] * p["cut_length_mm"] for p in parts) * 1e-3
+    sheets = None
+    if sheet is not None:
+        inner = sorted(((sheet[0] - 2 * margin) * 1000, (sheet[1] - 2 * margin) * 1000), reverse=True)
+        for p in parts:
+            size = sorted(p["size_mm"], reverse=True)
+            p["fits_sheet"] = bool(size[0] <= inner[0] and size[1] <= inner[1])
+        # A lower bound: the parts' bounding boxes cannot share less area than their sum.
+        sheets = math.ceil(usage / (sheet[0] * sheet[1]) * (1 - 1e-12))
     cut_list = {
         "name": name,
         "units": "mm",
@@ -751,6 +769,8 @@ def export_drawings(pair, out_dir: str | Path, *, name: str, max_section_m: floa
         "track_periods": total / pair.track.period,
         "parts": parts,
         "sheet_area_m2": usage,
+        "sheet_m": None if sheet is None else [float(v) for v in sheet_m],
+        "sheets_at_least": sheets,
         "total_cut_length_m": cut_total,
     }
     notes = [
@@ -776,6 +796,9 @@ def export_drawings(pair, out_dir: str | Path, *, name: str, max_section_m: floa
         + (f"{wheel_thickness_m * 1000:.3f} mm" if wheel_thickness_m is not None else "not given")
         + f"; kerf {kerf * 1000:.3f} mm (cut lines offset {kerf * 500:.3f} mm into the waste)",
         f"  sheet usage (sum of bounding boxes) {usage:.4f} m^2; total cut length {cut_total:.3f} m",
+        *([] if sheet is None else [
+            f"  sheet {sheet_m[0] * 1000:.0f} x {sheet_m[1] * 1000:.0f} mm: at least {sheets} sheet(s)"
+            + "".join(f"; {p['part']} does not fit" for p in parts if not p["fits_sheet"])]),
         "",
         "CSV columns x_mm,y_mm: the parts at size (no kerf); wheel in the axle frame; track x along"
         " the axle path, y below the axle line (negative).",

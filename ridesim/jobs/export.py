@@ -72,5 +72,5 @@ def export_scenario(sc: Scenario, out: str | Path, *, section_m: float | None = 
         wheel_thickness_m=thick, title_lines=(sc.description,) if sc.description else (),
         axle_hole_m=ex.axle_hole_m, axle_flat_m=ex.axle_flat_m, kerf_m=ex.kerf_m,
         chord_tol_m=ex.chord_tolerance_m, periods=export_periods(sc, pair), dxf=dxf,
-        wheels=sc.vehicle.axles * ex.rails, strips=ex.rails)
+        wheels=sc.vehicle.axles * ex.rails, strips=ex.rails, sheet_m=ex.sheet_m)
     return {"files": [str(f) for f in files], "notes": notes}

@@ -505,6 +505,8 @@ class ExportSpec:
         Width across the flat of a D-bore in m; None: a round hole.
     kerf_m : float
         Cut width in m (lines offset by half of it into the waste).
+    sheet_m : (float, float) or None
+        Sheet size [width, height] in m; None: no sheet.
     rails : int
         Rails: wheels per axle and strips per track piece.
     """
@@ -516,6 +518,7 @@ class ExportSpec:
     axle_hole_m: float = default_of("export.axle_hole_m")
     axle_flat_m: float | None = default_of("export.axle_flat_m")
     kerf_m: float = default_of("export.kerf_m")
+    sheet_m: Point | None = default_of("export.sheet_m")
     rails: int = default_of("export.rails")
 
 

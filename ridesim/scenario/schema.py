@@ -420,6 +420,11 @@ KEYS: tuple[Key, ...] = (
         "width of the cut; cut lines are offset by half of it into the waste so the parts come"
         " out at size", ge=0, plausible=(0.0, 0.005),
         source="common practice: 0.1-0.3 mm laser, 1-3 mm router or waterjet"),
+    Key("export", "sheet_m", "pair", None, "m",
+        "sheet size [width, height]: track pieces are cut no longer than the sheet's long side"
+        " less the margins, and the cut list counts sheets and flags parts that do not fit;"
+        " unset: no sheet", gt=0, plausible=(0.1, 4.0),
+        source="common practice: 0.3 m laser beds to 1.5 x 3 m router and waterjet tables"),
     Key("export", "rails", "int", 2, "-",
         "rails the vehicle runs on: wheels per axle and strips per track piece in the cut list",
         ge=1, plausible=(1.0, 4.0), source="common practice: a cart runs on two rails"),
