@@ -131,23 +131,11 @@ def _cmd_render(sc, args) -> tuple[dict, str]:
 
 
 def _cmd_export(sc, args) -> tuple[dict, str]:
-    from ridesim.export.drawings import export_drawings
-    from ridesim.scenario.build import solve_scenario
+    from ridesim.jobs.export import export_scenario
 
     out = _need_out(args, "export")
-    pair = solve_scenario(sc)
-    if sc.path.is_hub:
-        from ridesim.export.drawings import export_hub_drawings
-
-        thick = sc.wheel.thickness_m
-        files = export_hub_drawings(pair, out, name=sc.name, thickness_m=thick,
-                                    title_lines=(sc.description,) if sc.description else ())
-        return {"files": [str(f) for f in files]}, "\n".join(str(f) for f in files)
-    thick = sc.wheel.thickness_m if sc.wheel is not None else None
-    files = export_drawings(pair, out, name=sc.name, max_section_m=args.section,
-                            wheel_thickness_m=thick, title_lines=(sc.description,) if sc.description else ())
-    data = {"files": [str(f) for f in files]}
-    return data, "\n".join(str(f) for f in files)
+    data = export_scenario(sc, out, section_m=args.section)
+    return data, "\n".join(data["files"] + data["notes"])
 
 
 def _cmd_report(sc, args) -> tuple[dict, str]:
@@ -161,6 +149,25 @@ def _cmd_report(sc, args) -> tuple[dict, str]:
     if progress is not None:
         sys.stderr.write("\n")
     return {"report": str(page), **figures}, f"report written: {page}"
+
+
+def _cmd_new(args) -> int:
+    from ridesim.export.results import write_text_atomic
+    from ridesim.scenario.template import scenario_template
+
+    name = args.name.strip()
+    if not name or Path(name).name != name or name.endswith(".toml"):
+        raise ScenarioError_(f"NAME must be a plain name without a folder or .toml, got {args.name!r}")
+    text = scenario_template(name, wheel=args.wheel, track=args.track)
+    path = Path(args.out or ".") / f"{name}.toml"
+    if path.exists():
+        raise ScenarioError_(f"{path} already exists; choose another NAME or remove it")
+    write_text_atomic(path, text)
+    if args.json:
+        sys.stdout.write(json.dumps({"scenario": str(path)}) + "\n")
+    else:
+        print(f"wrote {path}: edit it, then run ridesim check {path}")
+    return 0
 
 
 def _text_of(res) -> str:
@@ -277,7 +284,8 @@ _COMMANDS: dict[str, tuple[Callable, str]] = {
     "simulate": (_cmd_simulate, "rigid-body simulation: bounce, slip onset, torque"),
     "size-motor": (_cmd_size_motor, "motor torque, speed and power over a duty cycle"),
     "render": (_cmd_render, "plots (PNG, SVG on request) and a GIF clip into --out DIR"),
-    "export": (_cmd_export, "1:1 SVG and CSV cut files of the wheel and track into --out DIR"),
+    "export": (_cmd_export, "1:1 SVG, CSV and DXF cut files of the wheel and track, and a cut list,"
+                            " into --out DIR"),
     "report": (_cmd_report, "one self-contained HTML page: verdict, figures, pictures, cautions"),
 }
 
@@ -336,8 +344,19 @@ def _build_parser(commands: dict) -> _Parser:
                             help="list the whole-period wheelbases from MIN to MAX [m] (default:"
                             " one to five wheel diameters)")
         if name == "export":
-            sp.add_argument("--section", type=float, default=1.0,
-                            help="longest track section to cut [m]")
+            sp.add_argument("--section", type=float, default=None,
+                            help="longest track section to cut [m] (default: [export] section_length_m)")
+    nw = sub.add_parser("new", help="write a commented scenario NAME.toml with every key",
+                        description="Write NAME.toml: a scenario with the keys its shape needs set to"
+                        " an example and every other key commented out, each with its unit, default"
+                        " and range.")
+    nw.add_argument("name", metavar="NAME", help="scenario name (the file is NAME.toml)")
+    nw.add_argument("--wheel", metavar="SHAPE", default=None,
+                    help="wheel shape: polygon | ellipse | circle | polar | outline (default polygon)")
+    nw.add_argument("--track", metavar="SHAPE", default=None,
+                    help="track shape instead: wave | sawtooth | formula | points")
+    nw.add_argument("--out", metavar="DIR", help="folder for the file (default: here)")
+    nw.add_argument("--json", action="store_true", help="print exactly one JSON object")
     sw = sub.add_parser("sweep", help="run a design sweep or tolerance study (resumable)",
                         description="Run every case of a sweep file; rerun the same command to"
                         " resume an interrupted sweep.")
@@ -395,6 +414,8 @@ def main(argv: list[str] | None = None) -> int:
             return _cmd_sweep(args)
         if args.command == "design":
             return _cmd_design(args)
+        if args.command == "new":
+            return _cmd_new(args)
         sc = load_scenario(args.scenario)
         for line in sc.warnings:  # valid but outside real builds: most likely a unit slip
             print(f"warning: {line}", file=sys.stderr)

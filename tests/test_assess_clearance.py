@@ -244,14 +244,18 @@ def test_wave_and_sawtooth_wheels_clear():
 
 
 def test_many_sided_outline_clears():
-    """A 400-point outline of an ellipse about its focus rolls as the smooth ellipse does."""
+    """A 400-point outline of an ellipse about its focus rolls as the smooth ellipse does,
+    whether read as the 400-gon through the points (corners = "all": its vertices are the rim
+    points checked) or, by default, as the smooth curve through them."""
     phi = np.linspace(0.0, 2 * math.pi, 400, endpoint=False)
     a, e = 0.05, 0.6
     r = a * (1 - e * e) / (1 + e * np.cos(phi))
-    pair = rs.track_for(rs.Wheel.outline(np.column_stack([r * np.cos(phi), r * np.sin(phi)])))
+    pts = np.column_stack([r * np.cos(phi), r * np.sin(phi)])
+    pair = rs.track_for(rs.Wheel.outline(pts, corners="all"))
     res = clearance(pair)
     assert not res.interferes
     assert res.rim_points == 400
+    assert not clearance(rs.track_for(rs.Wheel.outline(pts))).interferes
 
 
 def test_result_to_dict_is_plain():
@@ -275,7 +279,7 @@ def test_bad_inputs():
 def _wobbly_outline(n, axle=(0.05, 0.03)):
     t = np.linspace(0.0, 2.0 * math.pi, n, endpoint=False)
     pts = np.column_stack([0.3 * np.cos(t), 0.2 * np.sin(t) * (1.0 + 0.1 * np.cos(3.0 * t))])
-    return rs.Wheel.outline(pts, axle=axle)
+    return rs.Wheel.outline(pts, axle=axle, corners="all")  # a many-vertex polygon, read as one
 
 
 @pytest.mark.parametrize("wheel", [

@@ -628,7 +628,7 @@ def test_to_dict_is_plain_and_omits_unset_keys():
     assert d["vehicle"]["seat_m"] == [0.0, 0.3]
     assert "driven_axles" not in d["vehicle"]
     assert set(d) == {"name", "description", "wheel", "vehicle", "drive", "surface", "run",
-                      "duty", "motor"}
+                      "duty", "motor", "export"}
 
 
 def test_to_dict_round_trip_for_many_shapes(tmp_path):

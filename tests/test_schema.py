@@ -24,6 +24,7 @@ SPECS = {
     "surface": scenario_module.SurfaceSpec, "run": scenario_module.RunSpec,
     "duty": scenario_module.DutySpec, "motor": scenario_module.MotorSpec,
     "path": scenario_module.PathSpec,
+    "export": scenario_module.ExportSpec,
 }
 
 # A valid base scenario for the keys of each wheel or track shape.
@@ -35,6 +36,10 @@ BASES = {
     ("track", "sawtooth"): {"track": {"shape": "sawtooth", "rise_m": 0.02, "run_m": 0.1}},
     ("track", "formula"): {"track": {"shape": "formula", "formula": "0.02*cos(2*pi*x/0.3)",
                                      "period_m": 0.3}},
+    ("wheel", "outline"): {"wheel": {"shape": "outline",
+                                     "points_m": [[0.1, 0.0], [0.0, 0.1], [-0.1, 0.0], [0.0, -0.1]]}},
+    ("track", "points"): {"track": {"shape": "points",
+                                    "points_m": [[0.0, 0.0], [0.1, -0.02], [0.3, 0.0]]}},
 }
 
 
@@ -183,7 +188,8 @@ def test_cli_prints_warnings_on_stderr_and_in_the_json_list(tmp_path, capsys):
 
 _SUFFIX_UNITS = (  # longest suffix first: the project's key naming rule (DEVELOPERS.md)
     ("_kg_m3", "kg/m^3"), ("_kg_m2", "kg m^2"), ("_rad_s", "rad/s"), ("_m_s2", "m/s^2"),
-    ("_m_s", "m/s"), ("_Nm", "N m"), ("_N", "N"), ("_rad", "rad"), ("_kg", "kg"), ("_s", "s"), ("_m", "m"),
+    ("_m_s", "m/s"), ("_Nm", "N m"), ("_N", "N"), ("_rad", "rad"), ("_deg", "deg"), ("_kg", "kg"),
+    ("_s", "s"), ("_m", "m"),
 )
 
 

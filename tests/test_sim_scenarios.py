@@ -25,7 +25,7 @@ from ridesim.sim.run import PymunkEngine
 from ridesim.sim.world import STANDARD_GRAVITY_M_S2 as G
 
 A = 0.3
-DEMOS = ["hexagon_trolley", "ellipse_pull_toy", "wave_track_sculpture"]
+DEMOS = ["hexagon_trolley", "ellipse_pull_toy", "wave_track_sculpture", "drawn_blob_cart"]
 
 
 def square(mu, seconds=2.0, **vehicle):
@@ -202,7 +202,10 @@ def test_torque_against_the_analytic_model(name):
     sim_b = np.array([ts[(xs >= a) & (xs < b)].mean() for a, b in zip(bins[:-1], bins[1:], strict=True)])
     an_b = np.array([ta[(xa >= a) & (xa < b)].mean() for a, b in zip(bins[:-1], bins[1:], strict=True)])
     np.testing.assert_allclose(np.std(sim_b), np.std(an_b), rtol=0.10)
-    np.testing.assert_allclose(an.torque_mean_Nm, 0.0, atol=1e-9)
+    # Zero by energy conservation, to the sampled mean's accuracy: spectral for the analytic
+    # demo wheels, algebraic for the drawn blob (a cubic spline: its third derivative jumps at
+    # each of its 90 points), so the bound is relative to the torque's size.
+    np.testing.assert_allclose(an.torque_mean_Nm, 0.0, atol=max(1e-9, 1e-5 * float(np.max(np.abs(ta)))))
     weight = (eng.world.body_mass_kg + len(eng.world.wheels) * mp.mass_kg) * G
     r_mean = pair.revolution_length / (2 * math.pi)
     share = weight / len(eng.world.wheels) * len(p.shaft_axles[shaft])

@@ -97,7 +97,7 @@ def test_many_vertex_outline_cusps_and_kinks_match_a_brute_force_reference():
     n = 2000
     t = np.linspace(0.0, TWO_PI, n, endpoint=False)
     pts = np.column_stack([0.3 * np.cos(t), 0.2 * np.sin(t) * (1.0 + 0.1 * np.cos(3.0 * t))])
-    w = rs.Wheel.outline(pts, axle=(0.05, 0.03))
+    w = rs.Wheel.outline(pts, axle=(0.05, 0.03), corners="all")  # a 2000-vertex polygon
     pair = rs.track_for(w)
     V = np.asarray(w.vertices)
     ang = np.arctan2(V[:, 1], V[:, 0])

@@ -67,13 +67,20 @@ def test_slope_accepts_a_scalar_position(track, x, expected):
 
 def test_points_profile_interpolates_and_repeats():
     pts = [(0.0, 0.0), (0.1, -0.02), (0.25, -0.01), (0.4, 0.0)]
-    t = rs.Track.points(pts)
+    t = rs.Track.points(pts, corners="all")
     assert t.period == pytest.approx(0.4, rel=1e-15)
     xs = np.array([0.05, 0.175, 0.325, 0.45, -0.35])
     # Linear interpolation between the nodes, repeated every 0.4 m.
     expected = np.array([-0.01, -0.015, -0.005, -0.01, -0.01])
     np.testing.assert_allclose(t.y(xs), expected, rtol=1e-13)
     np.testing.assert_allclose(t.kinks, [0.0, 0.1, 0.25], atol=1e-16)
+    # By default only the points where the profile turns by more than 10 degrees are
+    # corners: it turns by atan(0.2) + atan(1/15) = 15.1 degrees at x = 0 and 0.1 and not at
+    # all at 0.25 (the points on either side are on one line), where it stays straight: a
+    # cubic through collinear points is their line (de Boor 1978, ch. IV).
+    d = rs.Track.points(pts)
+    np.testing.assert_allclose(d.kinks, [0.0, 0.1], atol=1e-16)
+    np.testing.assert_allclose(d.y(xs), expected, rtol=1e-12, atol=1e-15)
 
 
 def test_points_with_a_longer_period_close_back_to_the_start():
@@ -84,7 +91,9 @@ def test_points_with_a_longer_period_close_back_to_the_start():
 
 
 def test_points_with_an_offset_start_keep_the_kinks_in_the_base_period():
-    t = rs.Track.points([(1.0, 0.0), (1.2, -0.01), (1.5, 0.0)])
+    # The profile turns by atan(0.05) + atan(1/30) = 4.8 degrees at each point: below the
+    # default corner angle, so it is given as straight segments explicitly.
+    t = rs.Track.points([(1.0, 0.0), (1.2, -0.01), (1.5, 0.0)], corners="all")
     assert t.start == 1.0
     np.testing.assert_allclose(t.kinks, [1.0, 1.2], atol=1e-15)
     np.testing.assert_allclose(t.y(np.array([1.1, 1.6, 0.6])), [-0.005, -0.005, -0.005], rtol=1e-12)

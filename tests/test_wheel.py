@@ -141,13 +141,20 @@ def test_dense_outline_far_from_the_origin_keeps_its_last_rim_point_and_its_symm
     phi = TWO_PI * np.arange(n) / n
     r = 0.1 + 0.02 * np.cos(3 * phi)
     pts = np.column_stack([r * np.cos(phi), r * np.sin(phi)]) + axle
+    # Read as the polygon through the points (every point a corner) and, by default, as the
+    # smooth curve through them (no corner: the points turn by 0.04 degrees each).
+    poly = rs.Wheel.outline(pts, axle=axle, corners="all")
+    assert len(poly.vertices) == n and poly.symmetry == 3
     w = rs.Wheel.outline(pts, axle=axle)
-    assert len(w.vertices) == n and w.symmetry == 3
-    pair = rs.track_for(w)
-    assert pair.lobes == 3
-    assert pair.track.period == pytest.approx(TWO_PI / 3 * 0.1, rel=1e-6)
+    assert w.params["points"] == n and w.params["corners"] == 0 and w.symmetry == 3
+    for wheel in (poly, w):
+        pair = rs.track_for(wheel)
+        assert pair.lobes == 3
+        assert pair.track.period == pytest.approx(TWO_PI / 3 * 0.1, rel=1e-6)
     # A closing point that repeats the first (to 1e-9 m) is still dropped.
-    assert len(rs.Wheel.outline(np.vstack([pts, pts[:1] + 1e-9]), axle=axle).vertices) == n
+    again = np.vstack([pts, pts[:1] + 1e-9])
+    assert len(rs.Wheel.outline(again, axle=axle, corners="all").vertices) == n
+    assert rs.Wheel.outline(again, axle=axle).params["points"] == n
 
 
 @pytest.mark.parametrize("a,b", [(0.05, 0.04), (0.3, 0.1), (0.1, 0.3), (1.0, 1.0)])

@@ -32,7 +32,7 @@ from pathlib import Path
 import numpy as np
 
 from ridesim.errors import InputError
-from ridesim.export.results import write_text_atomic
+from ridesim.export.results import write_json_atomic, write_text_atomic
 from ridesim.model.checks import positive as _positive
 
 __all__ = [
@@ -158,6 +158,8 @@ def wheel_outline_mm(wheel, tol_m: float = CHORD_TOL_M) -> np.ndarray:
     """
     if wheel.is_polygon:
         return np.array(wheel.vertices, dtype=float) * 1000.0
+    if getattr(wheel, "curve", None) is not None:  # an outline through points: its own spline
+        return wheel.curve.sample(tol_m) * 1000.0
     # Split at corners and at curvature breaks (a rounded polygon's flat-to-arc joints).
     splits = sorted(set(wheel.kinks) | set(wheel.breaks))
     kinks = [k for k in splits if 0.0 < k < TWO_PI]
@@ -365,8 +367,23 @@ def _mm(v_m: float) -> str:
     return f"{v_m * 1000:.3f}"
 
 
+def _kerf_lines(kerf_m: float, flat_m: float | None, part: str) -> list[str]:
+    out = []
+    if flat_m is not None:
+        out.append(f"D-bore: {_mm(flat_m)} across the flat (flat at the top of the hole)")
+    if kerf_m > 0:
+        where = ("outside the wheel and inside the axle hole" if part == "wheel"
+                 else "above the profile (the side the wheel rolls on) and outside the strip")
+        out.append(f"kerf {_mm(kerf_m)}: red cut lines run {_mm(0.5 * kerf_m)} into the waste, {where};"
+                   " the part comes out at the drawn size")
+    else:
+        out.append("kerf 0: red lines are the part's edges; the cut centre follows them")
+    return out
+
+
 def _wheel_lines(wheel, name: str, rmin: float, rmax: float, hole_m: float, thickness_m: float | None,
-                 n_points: int, com: np.ndarray | None, pair_depth: float) -> list[str]:
+                 n_points: int, com: np.ndarray | None, pair_depth: float,
+                 tol_m: float = CHORD_TOL_M) -> list[str]:
     p = wheel.params
     lines = [f"{name}: wheel, full size 1:1, all dimensions in mm"]
     if wheel.kind == "polygon" and "sides" in p:
@@ -385,8 +402,11 @@ def _wheel_lines(wheel, name: str, rmin: float, rmax: float, hole_m: float, thic
     elif wheel.kind == "solved":
         lines.append(f"solved for a {p.get('from_track', '?')} track, {p.get('lobes', '?')} lobes,"
                      f" track lowered by {_mm(pair_depth)}")
+    elif wheel.is_polygon:
+        lines.append(f"{wheel.kind} outline, {len(wheel.vertices)} vertices")
     else:
-        lines.append(f"{wheel.kind} outline, {len(wheel.vertices) if wheel.is_polygon else '?'} vertices")
+        lines.append(f"{wheel.kind} through {p.get('points', '?')} points, smooth between"
+                     f" {p.get('corners', 0)} corner(s)")
     lines.append(f"radius about the axle: r_min {_mm(rmin)}, r_max {_mm(rmax)}")
     hole = f"axle hole diameter {_mm(hole_m)}"
     if com is not None:
@@ -397,27 +417,99 @@ def _wheel_lines(wheel, name: str, rmin: float, rmax: float, hole_m: float, thic
     if wheel.is_polygon:
         lines.append(f"outline: {n_points} exact vertices")
     else:
-        lines.append(f"outline: {n_points} points, chords within {CHORD_TOL_M * 1000:.4f} mm"
+        lines.append(f"outline: {n_points} points, chords within {tol_m * 1000:.4f} mm"
                      " of the true curve")
     lines.append("red: cut; blue: score or mark; black: text")
     return lines
 
 
+def offset_closed_mm(points: np.ndarray, d_mm: float) -> np.ndarray:
+    """A closed polyline moved outward (away from the inside it encloses) by ``d_mm``.
+
+    Each edge moves along its outward normal; each vertex goes to where its two moved
+    edges meet (a mitred corner), so straight edges stay straight and sharp corners stay
+    sharp: the polyline of a part drawn at size, offset by half a kerf, is the path of
+    the cut's centre line (common practice for kerf compensation).
+
+    Parameters
+    ----------
+    points : ndarray, shape (N, 2)
+        Vertices [mm] in either orientation, no closing repeat.
+    d_mm : float
+        Offset [mm]; negative moves inward.
+
+    Returns
+    -------
+    ndarray, shape (N, 2)
+    """
+    p = np.asarray(points, dtype=float)
+    if d_mm == 0 or len(p) < 3:
+        return p.copy()
+    area2 = float(np.sum(p[:, 0] * np.roll(p[:, 1], -1) - np.roll(p[:, 0], -1) * p[:, 1]))
+    sgn = 1.0 if area2 > 0 else -1.0  # anticlockwise: outward normal of (dx, dy) is (dy, -dx)
+    e = np.roll(p, -1, axis=0) - p
+    L = np.maximum(np.hypot(e[:, 0], e[:, 1]), 1e-300)
+    n = sgn * np.column_stack([e[:, 1], -e[:, 0]]) / L[:, None]
+    n_in = np.roll(n, 1, axis=0)  # normal of the edge arriving at each vertex
+    c = np.maximum(1.0 + (n * n_in).sum(axis=1), 1e-6)
+    return p + d_mm * (n + n_in) / c[:, None]
+
+
+def bore_mm(hole_m: float, flat_m: float | None, kerf_m: float, tol_m: float) -> tuple[np.ndarray, dict]:
+    """Axle bore cut line [mm]: a circle, or a D (circle cut by a flat at the top).
+
+    Parameters
+    ----------
+    hole_m : float
+        Bore diameter [m].
+    flat_m : float or None
+        Width across the flat [m] (from the flat to the far side of the circle); None: round.
+    kerf_m : float
+        Cut width [m]; the line moves half of it into the hole (the waste).
+    tol_m : float
+        Chordal tolerance [m] of the drawn arc.
+
+    Returns
+    -------
+    points : ndarray, shape (N, 2)
+        Closed polyline [mm] of the cut line.
+    geometry : dict
+        ``radius_mm`` of the cut line and, for a D, ``flat_y_mm`` (height of the flat).
+    """
+    r = 0.5 * hole_m * 1000 - 0.5 * kerf_m * 1000
+    step = 2.0 * math.acos(max(-1.0, 1.0 - tol_m * 1000 / r)) if r > tol_m * 1000 else 0.5
+    if flat_m is None:
+        n = max(16, int(math.ceil(TWO_PI / step)))
+        a = TWO_PI * np.arange(n) / n
+        return np.column_stack([r * np.cos(a), r * np.sin(a)]), {"radius_mm": r}
+    f = (flat_m - 0.5 * hole_m) * 1000 - 0.5 * kerf_m * 1000  # centre to flat
+    alpha = math.asin(f / r)
+    sweep = math.pi + 2 * alpha  # the arc under the flat, from angle pi - alpha onward
+    n = max(8, int(math.ceil(sweep / step)))
+    a = math.pi - alpha + sweep * np.arange(n + 1) / n
+    return np.column_stack([r * np.cos(a), r * np.sin(a)]), {"radius_mm": r, "flat_y_mm": f}
+
+
 def _wheel_svg(pair, name: str, hole_m: float, thickness_m: float | None, title_lines: Sequence[str],
-               margin_m: float) -> tuple[str, np.ndarray]:
+               margin_m: float, tol_m: float = CHORD_TOL_M, kerf_m: float = 0.0,
+               flat_m: float | None = None) -> tuple[str, np.ndarray]:
     wheel = pair.wheel
-    pts = wheel_outline_mm(wheel)
+    pts = wheel_outline_mm(wheel, tol_m)
     rmin, rmax, _ = wheel.extremes()
     com = np.array(wheel.mass_properties(1.0, 1.0).com_m)
     off_axle = float(np.hypot(*com)) > 1e-6  # more than 1 um from the axle
     lines = _wheel_lines(wheel, name, rmin, rmax, hole_m, thickness_m, len(pts), com if off_axle else None,
-                         pair.depth)
+                         pair.depth, tol_m)
+    lines += _kerf_lines(kerf_m, flat_m, "wheel")
     lines += list(title_lines)
     sheet = _Sheet(pts[:, 0].min(), pts[:, 0].max(), pts[:, 1].min(), pts[:, 1].max(), lines,
                    margin_m * 1000)
-    sheet.path(pts, CUT, closed=True, ident="outline")
+    sheet.path(offset_closed_mm(pts, 0.5 * kerf_m * 1000), CUT, closed=True, ident="outline")
     rh = 0.5 * hole_m * 1000
-    sheet.circle(0.0, 0.0, rh, CUT, ident="axle-hole")
+    if flat_m is None:
+        sheet.circle(0.0, 0.0, rh - 0.5 * kerf_m * 1000, CUT, ident="axle-hole")
+    else:
+        sheet.path(bore_mm(hole_m, flat_m, kerf_m, tol_m)[0], CUT, closed=True, ident="axle-hole")
     arm = rh + min(5.0, 0.3 * rmin * 1000)
     sheet.path(np.array([[-arm, 0.0], [arm, 0.0]]), SCORE, closed=False, ident="axle-cross-x")
     sheet.path(np.array([[0.0, -arm], [0.0, arm]]), SCORE, closed=False, ident="axle-cross-y")
@@ -434,7 +526,7 @@ def _wheel_svg(pair, name: str, hole_m: float, thickness_m: float | None, title_
 
 def _section_svg(pair, name: str, k: int, sections: list[tuple[float, float]], prof: np.ndarray,
                  y_bottom_mm: float, cusps_mm: np.ndarray, title_lines: Sequence[str], margin_m: float,
-                 joint_mark_mm: float, strip_mm: float) -> str:
+                 joint_mark_mm: float, strip_mm: float, kerf_m: float = 0.0) -> str:
     n = len(sections)
     x0, x1 = prof[0, 0], prof[-1, 0]
     P = pair.track.period * 1000
@@ -459,10 +551,10 @@ def _section_svg(pair, name: str, k: int, sections: list[tuple[float, float]], p
         lines.append("joints: " + ", ".join(joints) + f"; ticks {joint_mark_mm:.0f} mm in from each joint,"
                      f" {2 * joint_mark_mm:.0f} mm apart when assembled")
     lines.append("red: cut; blue: score or mark; black: text")
+    lines += _kerf_lines(kerf_m, None, "track")
     lines += list(title_lines)
     sheet = _Sheet(x0, x1, y_bottom_mm, float(prof[:, 1].max()), lines, margin_m * 1000)
-    strip = np.vstack([prof, [[x1, y_bottom_mm], [x0, y_bottom_mm]]])
-    sheet.path(strip, CUT, closed=True, ident="strip")
+    sheet.path(strip_outline_mm(prof, y_bottom_mm, kerf_m), CUT, closed=True, ident="strip")
     tick = min(4.0, 0.4 * strip_mm)
     for c in (c for c in cusps_mm if x0 < c[0] < x1):
         sheet.path(np.array([[c[0], c[1]], [c[0], c[1] - tick]]), SCORE, closed=False)
@@ -483,22 +575,50 @@ def _section_svg(pair, name: str, k: int, sections: list[tuple[float, float]], p
     return sheet.render(f"{name} track section {k + 1} of {n}", desc)
 
 
+def strip_outline_mm(prof: np.ndarray, y_bottom_mm: float, kerf_m: float = 0.0) -> np.ndarray:
+    """Cut line [mm] of a track strip: the profile on top, a flat bottom edge, offset by half the kerf.
+
+    Parameters
+    ----------
+    prof : ndarray, shape (N, 2)
+        Profile points [mm], x increasing.
+    y_bottom_mm : float
+        Height [mm] of the strip's bottom edge.
+    kerf_m : float
+        Cut width [m]; the line moves half of it away from the strip (into the waste).
+
+    Returns
+    -------
+    ndarray, shape (N + 2, 2)
+    """
+    strip = np.vstack([prof, [[prof[-1, 0], y_bottom_mm], [prof[0, 0], y_bottom_mm]]])
+    return offset_closed_mm(strip, 0.5 * kerf_m * 1000)
+
+
 def export_drawings(pair, out_dir: str | Path, *, name: str, max_section_m: float = 1.0,
                     wheel_thickness_m: float | None = None, title_lines: Sequence[str] = (),
                     axle_hole_m: float = 0.010, strip_depth_m: float = 0.030, periods: int | None = None,
-                    joint_mark_m: float = 0.010, margin_m: float = MARGIN_M) -> list[Path]:
+                    joint_mark_m: float = 0.010, margin_m: float = MARGIN_M,
+                    chord_tol_m: float = CHORD_TOL_M, kerf_m: float = 0.0,
+                    axle_flat_m: float | None = None, dxf: bool = False, wheels: int = 1,
+                    strips: int = 1, sheet_m: Sequence[float] | None = None) -> list[Path]:
     """Write full-size cut files of the wheel and of the track, sections and point lists.
 
     Files (all written atomically), with ``NAME`` the sanitised ``name``:
 
-    * ``NAME_wheel.svg``, ``NAME_wheel.csv``: the wheel outline (axle frame, mm), the axle
-      hole with a cross-hair, the centre of mass of the plate when it is off the axle, a
-      scale bar and a title block;
-    * ``NAME_track_01.svg``, ``NAME_track_01.csv``, ...: the track for one wheel revolution
-      (or ``periods`` periods), cut at its highest points into pieces no longer than
-      ``max_section_m``; each SVG is a strip whose top edge is the profile, with ticks at the
-      cusps and alignment ticks labelled ``J1``, ``J2``, ... at both sides of every joint;
-    * ``NAME_cut_list.txt``: what each file holds and how the pieces join.
+    * ``NAME_wheel.svg``, ``NAME_wheel.csv`` (and ``NAME_wheel.dxf`` with ``dxf``): the wheel
+      outline (axle frame, mm), the axle hole (round or D) with a cross-hair, the centre of
+      mass of the plate when it is off the axle, a scale bar and a title block;
+    * ``NAME_track_01.svg``, ``NAME_track_01.csv`` (``.dxf``), ...: the track for one wheel
+      revolution (or ``periods`` periods), cut at its highest points into pieces no longer
+      than ``max_section_m``; each drawing is a strip whose top edge is the profile, with
+      ticks at the cusps and alignment ticks labelled ``J1``, ``J2``, ... at both sides of
+      every joint;
+    * ``NAME_cut_list.txt`` and ``NAME_cut_list.json``: the parts, their counts, the
+      material thickness, sheet usage and total cut length.
+
+    The CSV files hold the parts at size; the SVG and DXF cut lines are offset by half of
+    ``kerf_m`` into the waste (the drawings say so).
 
     Parameters
     ----------
@@ -511,7 +631,7 @@ def export_drawings(pair, out_dir: str | Path, *, name: str, max_section_m: floa
     max_section_m : float
         Longest track piece [m].
     wheel_thickness_m : float, optional
-        Plate thickness [m], stated in the wheel's title block.
+        Plate thickness [m], stated in the wheel's title block and the cut list.
     title_lines : sequence of str
         Extra lines for every title block (e.g. material, a caution).
     axle_hole_m : float
@@ -524,6 +644,21 @@ def export_drawings(pair, out_dir: str | Path, *, name: str, max_section_m: floa
         Distance [m] of each joint's alignment tick from the joint.
     margin_m : float
         Blank margin [m] around the geometry.
+    chord_tol_m : float
+        Largest chord-to-curve distance [m] of drawn curves.
+    kerf_m : float
+        Cut width [m]; 0 draws the parts' edges.
+    axle_flat_m : float, optional
+        D-bore: width [m] across the flat, between half the hole and the hole; None: round.
+    dxf : bool
+        Also write DXF (R2010, mm; needs the ``cad`` extra, ezdxf).
+    wheels : int
+        Wheels to cut (cut list count).
+    strips : int
+        Copies of each track piece to cut (cut list count: one per rail).
+    sheet_m : pair of float, optional
+        Sheet size [m]: track pieces are no longer than its long side less two margins, and
+        the cut list gives the least number of sheets and the parts that do not fit.
 
     Returns
     -------
@@ -535,6 +670,13 @@ def export_drawings(pair, out_dir: str | Path, *, name: str, max_section_m: floa
     strip = _positive("strip_depth_m", strip_depth_m)
     jm = _positive("joint_mark_m", joint_mark_m)
     margin = _positive("margin_m", margin_m)
+    tol = _positive("chord_tol_m", chord_tol_m)
+    kerf = float(kerf_m)
+    if not math.isfinite(kerf) or kerf < 0:
+        raise InputError(f"kerf_m must be >= 0, got {kerf_m!r}")
+    if axle_flat_m is not None and not 0.5 * hole < float(axle_flat_m) < hole:
+        raise InputError(f"axle_flat_m = {axle_flat_m!r} m must lie between half the axle hole"
+                         f" ({0.5 * hole:g} m) and the hole ({hole:g} m): it is the width across the flat")
     if wheel_thickness_m is not None:
         wheel_thickness_m = _positive("wheel_thickness_m", wheel_thickness_m)
     if isinstance(title_lines, str):
@@ -544,15 +686,35 @@ def export_drawings(pair, out_dir: str | Path, *, name: str, max_section_m: floa
     if hole >= 2 * rmin:
         raise InputError(f"axle_hole_m = {hole:g} m does not fit in the wheel (least radius {rmin:g} m);"
                          " give a smaller hole")
+    if dxf:
+        from ridesim.export.dxf import require_ezdxf
+
+        require_ezdxf()
     out = Path(out_dir)
     written: list[Path] = []
 
-    svg, wpts = _wheel_svg(pair, name, hole, wheel_thickness_m, title_lines, margin)
+    svg, wpts = _wheel_svg(pair, name, hole, wheel_thickness_m, title_lines, margin, tol, kerf, axle_flat_m)
     written.append(write_text_atomic(out / f"{stem}_wheel.svg", svg))
     written.append(write_text_atomic(out / f"{stem}_wheel.csv", _csv(wpts)))
+    bore, _ = bore_mm(hole, axle_flat_m, kerf, tol)
+    wheel_cut = offset_closed_mm(wpts, 0.5 * kerf * 1000)
+    if dxf:
+        from ridesim.export.dxf import wheel_dxf
 
+        written.append(wheel_dxf(out / f"{stem}_wheel.dxf", pair, wheel_cut, hole, axle_flat_m, kerf,
+                                 [*_wheel_lines(pair.wheel, name, *pair.wheel.extremes()[:2], hole,
+                                                wheel_thickness_m, len(wpts), None, pair.depth, tol),
+                                  *_kerf_lines(kerf, axle_flat_m, "wheel"), *title_lines]))
+
+    sheet = None
+    if sheet_m is not None:
+        sheet = sorted((_positive("sheet_m", float(v)) for v in sheet_m), reverse=True)
+        room = sheet[0] - 2 * margin - kerf
+        if room <= 0:
+            raise InputError(f"sheet_m {sheet_m!r} leaves no room inside the {margin:g} m margins")
+        max_section_m = min(_positive("max_section_m", max_section_m), room)
     sections = track_sections(pair, max_section_m, periods)
-    profs = [track_profile_mm(pair.track, a, b) for a, b in sections]
+    profs = [track_profile_mm(pair.track, a, b, tol) for a, b in sections]
     y_low = min(float(p[:, 1].min()) for p in profs)
     y_bottom = y_low - strip * 1000
     rev = pair.revolution_length
@@ -565,17 +727,60 @@ def export_drawings(pair, out_dir: str | Path, *, name: str, max_section_m: floa
                 cusps.append((xc * 1000, float(pair.track.y(xc)) * 1000,
                               1.0 if c.kind == "valley" else 0.0))
     cusps_mm = np.array(sorted(cusps)) if cusps else np.zeros((0, 3))
+    strip_cuts = []
     for k, prof in enumerate(profs):
         svg = _section_svg(pair, name, k, sections, prof, y_bottom, cusps_mm, title_lines, margin,
-                           jm * 1000, strip * 1000)
+                           jm * 1000, strip * 1000, kerf)
         written.append(write_text_atomic(out / f"{stem}_track_{k + 1:02d}.svg", svg))
         written.append(write_text_atomic(out / f"{stem}_track_{k + 1:02d}.csv", _csv(prof)))
+        cut = strip_outline_mm(prof, y_bottom, kerf)
+        strip_cuts.append(cut)
+        if dxf:
+            from ridesim.export.dxf import section_dxf
+
+            written.append(section_dxf(out / f"{stem}_track_{k + 1:02d}.dxf", k, len(profs), prof, cut,
+                                       cusps_mm, jm * 1000, [
+                                           f"{name}: track section {k + 1} of {len(profs)}, 1:1, mm",
+                                           *_kerf_lines(kerf, None, "track"), *title_lines]))
 
     total = sections[-1][1] - sections[0][0]
+    parts = [{"part": "wheel", "file": f"{stem}_wheel", "count": int(wheels),
+              "size_mm": _bbox(wheel_cut), "cut_length_mm": _perimeter(wheel_cut) + _perimeter(bore)}]
+    for k, cut in enumerate(strip_cuts):
+        parts.append({"part": f"track section {k + 1}", "file": f"{stem}_track_{k + 1:02d}",
+                      "count": int(strips), "size_mm": _bbox(cut), "cut_length_mm": _perimeter(cut)})
+    usage = sum(p["count"] * p["size_mm"][0] * p["size_mm"][1] for p in parts) * 1e-6
+    cut_total = sum(p["count"] * p["cut_length_mm"] for p in parts) * 1e-3
+    sheets = None
+    if sheet is not None:
+        inner = sorted(((sheet[0] - 2 * margin) * 1000, (sheet[1] - 2 * margin) * 1000), reverse=True)
+        for p in parts:
+            size = sorted(p["size_mm"], reverse=True)
+            p["fits_sheet"] = bool(size[0] <= inner[0] and size[1] <= inner[1])
+        # A lower bound: the parts' bounding boxes cannot share less area than their sum.
+        sheets = math.ceil(usage / (sheet[0] * sheet[1]) * (1 - 1e-12))
+    cut_list = {
+        "name": name,
+        "units": "mm",
+        "material_thickness_m": wheel_thickness_m,
+        "kerf_m": kerf,
+        "axle_hole_m": hole,
+        "axle_flat_m": axle_flat_m,
+        "chord_tolerance_m": tol,
+        "track_length_m": total,
+        "track_periods": total / pair.track.period,
+        "parts": parts,
+        "sheet_area_m2": usage,
+        "sheet_m": None if sheet is None else [float(v) for v in sheet_m],
+        "sheets_at_least": sheets,
+        "total_cut_length_m": cut_total,
+    }
     notes = [
         f"{name}: cut files (full size, millimetres)",
         "",
-        f"{stem}_wheel.svg / .csv: wheel outline in the axle frame; axle hole {hole * 1000:.3f} mm.",
+        f"{stem}_wheel.svg / .csv{' / .dxf' if dxf else ''}: wheel outline in the axle frame;"
+        f" axle hole {hole * 1000:.3f} mm" + (f", D-bore {axle_flat_m * 1000:.3f} mm across the flat"
+                                              if axle_flat_m is not None else "") + ".",
         f"track: {len(sections)} piece(s) covering {total * 1000:.3f} mm"
         f" ({total / pair.track.period:.4g} period(s)), each at most {max_section_m * 1000:.1f} mm,"
         " cut at the track's highest points.",
@@ -583,9 +788,22 @@ def export_drawings(pair, out_dir: str | Path, *, name: str, max_section_m: floa
     for k, (a, b) in enumerate(sections):
         notes.append(f"  {stem}_track_{k + 1:02d}: x = {a * 1000:.3f} to {b * 1000:.3f} mm"
                      + (f", joins piece {k + 2} at J{k + 1}" if k < len(sections) - 1 else ""))
+    notes += ["", "Cut list (bounding boxes of the cut lines, mm):"]
+    for p in parts:
+        w, h = p["size_mm"]
+        notes.append(f"  {p['count']} x {p['part']} ({p['file']}): {w:.1f} x {h:.1f}, cut length"
+                     f" {p['cut_length_mm']:.1f} each")
     notes += [
-        "CSV columns x_mm,y_mm: wheel in the axle frame; track x along the axle path, y below the axle"
-        " line (negative).",
+        "  material thickness "
+        + (f"{wheel_thickness_m * 1000:.3f} mm" if wheel_thickness_m is not None else "not given")
+        + f"; kerf {kerf * 1000:.3f} mm (cut lines offset {kerf * 500:.3f} mm into the waste)",
+        f"  sheet usage (sum of bounding boxes) {usage:.4f} m^2; total cut length {cut_total:.3f} m",
+        *([] if sheet is None else [
+            f"  sheet {sheet_m[0] * 1000:.0f} x {sheet_m[1] * 1000:.0f} mm: at least {sheets} sheet(s)"
+            + "".join(f"; {p['part']} does not fit" for p in parts if not p["fits_sheet"])]),
+        "",
+        "CSV columns x_mm,y_mm: the parts at size (no kerf); wheel in the axle frame; track x along"
+        " the axle path, y below the axle line (negative).",
         f"Strips stand {strip * 1000:.1f} mm below the lowest point; all share one flat bottom edge at"
         f" y = {y_bottom:.3f} mm, so mount them on one straight, level base.",
         "Check the printed scale bar before cutting. Where a wheel corner seats in a cusp the gap closes:",
@@ -595,6 +813,7 @@ def export_drawings(pair, out_dir: str | Path, *, name: str, max_section_m: floa
         "",
     ]
     written.append(write_text_atomic(out / f"{stem}_cut_list.txt", "\n".join(notes)))
+    written.append(write_json_atomic(out / f"{stem}_cut_list.json", cut_list))
     return written
 
 
@@ -717,3 +936,12 @@ def export_hub_drawings(pair, out_dir: str | Path, *, name: str, thickness_m: fl
     ]
     written.append(write_text_atomic(out / f"{stem}_cut_list.txt", "\n".join(notes)))
     return written
+
+
+def _bbox(points_mm: np.ndarray) -> list[float]:
+    return [float(np.ptp(points_mm[:, 0])), float(np.ptp(points_mm[:, 1]))]
+
+
+def _perimeter(points_mm: np.ndarray) -> float:
+    d = np.diff(np.vstack([points_mm, points_mm[:1]]), axis=0)
+    return float(np.hypot(d[:, 0], d[:, 1]).sum())

@@ -6,8 +6,10 @@ given by a user (:meth:`Track.profile`, :meth:`Track.wave`, :meth:`Track.sawtoot
 the track lies below the axle line ``y = 0``. Tracks solved for a wheel are already
 below the axle line, with ``x = 0`` at a highest point.
 
-Straight pieces (sawtooth, points) are kept as exact line segments; kinks are
-recorded so that every integral is taken piece by piece between them.
+Straight pieces (sawtooth, and points profiles whose every point is a corner) are kept
+as exact line segments; a points profile that turns gently is a smooth spline between
+its corners (:mod:`ridesim.model.outline`). Kinks are recorded so that every integral
+is taken piece by piece between them.
 """
 
 from __future__ import annotations
@@ -19,6 +21,7 @@ import numpy as np
 
 from ridesim.errors import GeometryError, InputError
 from ridesim.model.checks import positive as _positive
+from ridesim.model.outline import CORNER_ANGLE_DEG
 
 __all__ = ["Track"]
 
@@ -188,8 +191,21 @@ class Track:
                    params={"rise_m": h, "run_m": L, "up_fraction": u})
 
     @classmethod
-    def points(cls, points: Sequence[Sequence[float]], period: float | None = None) -> Track:
-        """Measured or drawn profile through points joined by straight segments.
+    def points(
+        cls,
+        points: Sequence[Sequence[float]],
+        period: float | None = None,
+        *,
+        corner_angle_deg: float = CORNER_ANGLE_DEG,
+        corners: str | Sequence[int] | None = None,
+    ) -> Track:
+        """Measured or drawn profile through points: smooth between its corners.
+
+        The profile is an interpolating cubic spline ``f(x)`` through the points (periodic
+        when there is no corner), broken at the corners: the points where the polyline
+        turns by more than ``corner_angle_deg`` (see :mod:`ridesim.model.outline`). When
+        every point is a corner the profile is the straight segments between them, kept
+        exact.
 
         Parameters
         ----------
@@ -198,12 +214,20 @@ class Track:
         period : float, optional
             Repeat length [m]. Default: the span of x, in which case the last point must
             be the first one shifted by the period (same height). With a period longer
-            than the span, a segment closes the profile back to the first point.
+            than the span, the profile runs on from the last point back to the first.
+        corner_angle_deg : float
+            A point is a corner where the polyline turns by more than this [deg]; default 10.
+        corners : "all", "none" or sequence of int, optional
+            Override the angle: every point a corner (straight segments), none (smooth all
+            through), or these indices into ``points`` (counted from 0; the closing point
+            is point 0).
 
         Returns
         -------
         Track
         """
+        from ridesim.model.outline import choose_corners, open_turns, profile_spline
+
         try:
             p = np.asarray(points, dtype=float)
         except (TypeError, ValueError):
@@ -238,8 +262,29 @@ class Track:
                 nodes = np.vstack([p, [p[0, 0] + P, p[0, 1]]])
         if len(nodes) < 3:
             raise InputError("points must describe at least two segments over one period")
-        return cls("points", P, nodes=nodes, x0=float(nodes[0, 0]),
-                   params={"points": len(p), "period_m": P})
+        n = len(nodes) - 1
+        if corners is not None and not isinstance(corners, str):
+            try:
+                corners = sorted({int(i) % n if int(i) == n else int(i) for i in corners})
+            except (TypeError, ValueError):
+                raise InputError('corners must be "all", "none" or a list of point indices,'
+                                 f" got {corners!r}") from None
+        cidx = choose_corners(open_turns(nodes), corner_angle_deg, corners)
+        params = {"points": len(p), "period_m": P}
+        if len(cidx) == n:
+            return cls("points", P, nodes=nodes, x0=float(nodes[0, 0]), params=params)
+        spline, x0 = profile_spline(nodes, cidx, P)
+        slope = spline.derivative()
+
+        def f(x: np.ndarray) -> np.ndarray:
+            return spline(np.asarray(x, dtype=float))
+
+        def df(x: np.ndarray) -> np.ndarray:
+            return slope(np.asarray(x, dtype=float))
+
+        params["corners"] = int(len(cidx))
+        return cls("points", P, f=f, df=df, kinks=tuple(float(k) for k in nodes[cidx, 0]),
+                   x0=x0, params=params)
 
     # ------------------------------------------------------------------ public API
     @property

@@ -23,6 +23,7 @@ from ridesim.errors import GeometryError, InputError
 from ridesim.model.checks import finite as _finite
 from ridesim.model.checks import point as _point
 from ridesim.model.checks import positive as _positive
+from ridesim.model.outline import CORNER_ANGLE_DEG
 
 __all__ = ["Wheel", "MassProperties"]
 
@@ -80,6 +81,7 @@ class Wheel:
         self._kind = kind
         self._breaks = tuple(sorted(float(b) % TWO_PI for b in breaks))
         self._rounding: tuple[np.ndarray, float] | None = None
+        self._curve = None
         self._params = dict(params or {})
         self._shape_offset = (float(shape_offset[0]), float(shape_offset[1]))
         if vertices is not None:
@@ -258,24 +260,76 @@ class Wheel:
         return w
 
     @classmethod
-    def outline(cls, points: Sequence[Sequence[float]], axle: Sequence[float] = (0.0, 0.0)) -> Wheel:
-        """Closed outline from points, each pair joined by a straight edge.
+    def outline(
+        cls,
+        points: Sequence[Sequence[float]],
+        axle: Sequence[float] = (0.0, 0.0),
+        *,
+        corner_angle_deg: float = CORNER_ANGLE_DEG,
+        corners: str | Sequence[int] | None = None,
+    ) -> Wheel:
+        """Closed outline through points: smooth between its corners, straight where it is a polygon.
+
+        The rim is an interpolating cubic spline through the points (periodic when there is
+        no corner), broken at the corners: the points where the polyline turns by more than
+        ``corner_angle_deg`` (see :mod:`ridesim.model.outline` for the default and why).
+        Between corners it is smooth, so its track is smooth there and has cusps only at
+        the corners. When every point is a corner the outline is the polygon through them.
 
         Parameters
         ----------
         points : array_like, shape (N, 2)
-            Outline points [m]; a repeated closing point is dropped.
+            Outline points [m], either orientation; a repeated closing point is dropped.
         axle : pair of float
             Axle position [m] in the points' frame.
+        corner_angle_deg : float
+            A point is a corner where the polyline turns by more than this [deg]; default 10.
+        corners : "all", "none" or sequence of int, optional
+            Override the angle: every point a corner (a polygon), none (smooth all round),
+            or these indices into ``points`` (counted from 0).
 
         Returns
         -------
         Wheel
         """
-        v = cls._vertex_array("points", points)
+        from ridesim.model.outline import ClosedSpline, choose_corners, closed_turns
+
+        v, idx = cls._vertex_array_idx("points", points)
         ax = _point("axle", axle)
+        if corners is not None and not isinstance(corners, str):
+            try:
+                given = [int(i) for i in corners]
+            except (TypeError, ValueError):
+                raise InputError('corners must be "all", "none" or a list of point indices,'
+                                 f" got {corners!r}") from None
+            n_in = len(np.asarray(points, dtype=float))
+            bad = [i for i in given if not 0 <= i < n_in]
+            if bad:
+                raise InputError(f"corners: point index {bad[0]} is outside 0..{n_in - 1};"
+                                 " count points from 0")
+            # Indices of the given points -> indices of the distinct ones (a dropped repeat
+            # or closing point is the point it repeats).
+            pos = np.clip(np.searchsorted(idx, given, side="right") - 1, 0, len(idx) - 1)
+            corners = sorted({int(p) for p in pos})
+        cidx = choose_corners(closed_turns(v), corner_angle_deg, corners)
         params = {"points": len(v), "axle_m": (float(ax[0]), float(ax[1]))}
-        return cls._from_vertices("outline", v - ax, params, shape_offset=-ax)
+        if len(cidx) == len(v):
+            return cls._from_vertices("outline", v - ax, params, shape_offset=-ax)
+        u = v - ax
+        if float(np.sum(u[:, 0] * np.roll(u[:, 1], -1) - np.roll(u[:, 0], -1) * u[:, 1])) < 0:
+            u = u[::-1].copy()  # clockwise: reverse to anticlockwise
+            cidx = np.sort((len(u) - 1 - cidx) % len(u))
+        curve = ClosedSpline.through(u, cidx)
+        rim = curve.polar()
+        pts = curve.points
+        ang = np.arctan2(pts[:, 1], pts[:, 0])
+        is_corner = np.zeros(len(pts), dtype=bool)
+        is_corner[curve.corners] = True
+        params["corners"] = int(is_corner.sum())
+        w = cls("outline", radius_fn=rim.radius, kinks=tuple(ang[is_corner]), params=params,
+                shape_offset=-ax, breaks=tuple(ang[~is_corner]))
+        w._curve = curve
+        return w
 
     @classmethod
     def ellipse(cls, semi_axes: Sequence[float], axle: Sequence[float] = (0.0, 0.0)) -> Wheel:
@@ -357,6 +411,11 @@ class Wheel:
     # ------------------------------------------------------------------ helpers
     @staticmethod
     def _vertex_array(name: str, points: Sequence[Sequence[float]]) -> np.ndarray:
+        return Wheel._vertex_array_idx(name, points)[0]
+
+    @staticmethod
+    def _vertex_array_idx(name: str, points: Sequence[Sequence[float]]) -> tuple[np.ndarray, np.ndarray]:
+        """Distinct points (repeats and a closing point dropped) and their indices in ``points``."""
         try:
             v = np.asarray(points, dtype=float)
         except (TypeError, ValueError):
@@ -373,17 +432,19 @@ class Wheel:
         # tolerance (numpy's allclose: 1e-5 of the coordinates) would take a densely sampled
         # outline's last rim point for a repeat when the points sit far from the origin.
         floor = 1e-12 * scale
+        idx = np.arange(len(v))
         steps = np.linalg.norm(np.diff(v, axis=0), axis=1)
-        v = v[np.concatenate(([True], steps > floor))]
+        first = np.concatenate(([True], steps > floor))
+        v, idx = v[first], idx[first]
         if len(v) >= 3:
             step = min(float(np.linalg.norm(v[1] - v[0])), float(np.linalg.norm(v[-1] - v[-2])))
             if float(np.linalg.norm(v[-1] - v[0])) <= max(floor, 1e-3 * step):
-                v = v[:-1]
+                v, idx = v[:-1], idx[:-1]
         keep = np.linalg.norm(np.diff(v, axis=0, append=v[:1]), axis=1) > floor
-        v = v[keep]
+        v, idx = v[keep], idx[keep]
         if len(v) < 3:
             raise InputError(f"{name} must have at least three distinct points")
-        return v
+        return v, idx
 
     @classmethod
     def _from_vertices(cls, kind: str, v: np.ndarray, params: dict, shape_offset) -> Wheel:
@@ -541,6 +602,14 @@ class Wheel:
         moved in by the radius and grown back out by it.
         """
         return self._rounding
+
+    @property
+    def curve(self):
+        """A smooth outline's spline through its points, or None for other wheels.
+
+        A :class:`ridesim.model.outline.ClosedSpline` in the axle frame, anticlockwise.
+        """
+        return self._curve
 
     @property
     def symmetry(self) -> int:

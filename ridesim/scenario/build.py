@@ -19,6 +19,7 @@ import numpy as np
 from ridesim.errors import RidesimError, ScenarioError
 from ridesim.model.track import Track
 from ridesim.model.wheel import MassProperties, Wheel
+from ridesim.scenario.drawing import is_drawing, read_drawing, read_profile_drawing
 from ridesim.scenario.load import Scenario, TrackSpec, WheelSpec
 from ridesim.solve.forward import track_for
 from ridesim.solve.hub import HubPair, hub_for
@@ -142,8 +143,26 @@ def wheel_from_spec(spec: WheelSpec) -> Wheel:
         return _wrap("wheel", Wheel.circle, spec.radius_m, axle=ax)
     if s == "polar":
         return _wrap("wheel.radius_formula", Wheel.polar, spec.radius_formula)
-    pts = spec.points_m if spec.points_m is not None else read_points_csv(spec.file, "wheel.file")
-    return _wrap("wheel", Wheel.outline, pts, axle=ax)
+    if spec.file is not None and is_drawing(spec.file):
+        drawn = read_drawing(spec.file, "wheel.file", layer=spec.layer, ident=spec.id, units=spec.units)
+        pts = drawn.points_m
+        if ax is None:
+            if drawn.axle_m is None:
+                raise ScenarioError(f"wheel.file: {Path(spec.file).name} has no circle inside the outline"
+                                    " to mark the axle; give wheel.axle_m = [x, y] (m, drawing frame)")
+            ax = drawn.axle_m
+    else:
+        pts = spec.points_m if spec.points_m is not None else read_points_csv(spec.file, "wheel.file")
+    if ax is None:
+        ax = (0.0, 0.0)
+    return _wrap("wheel", Wheel.outline, pts, axle=ax, **_corner_args(spec))
+
+
+def _corner_args(spec) -> dict:
+    out = {} if spec.corner_angle_deg is None else {"corner_angle_deg": spec.corner_angle_deg}
+    if spec.corners is not None:
+        out["corners"] = spec.corners if isinstance(spec.corners, str) else list(spec.corners)
+    return out
 
 
 def track_from_spec(spec: TrackSpec) -> Track:
@@ -166,8 +185,12 @@ def track_from_spec(spec: TrackSpec) -> Track:
         return _wrap("track", Track.sawtooth, spec.rise_m, spec.run_m)
     if s == "formula":
         return _wrap("track.formula", Track.profile, spec.formula, spec.period_m)
-    pts = spec.points_m if spec.points_m is not None else read_points_csv(spec.file, "track.file")
-    return _wrap("track", Track.points, pts, period=spec.period_m)
+    if spec.file is not None and is_drawing(spec.file):
+        pts = read_profile_drawing(spec.file, "track.file", layer=spec.layer, ident=spec.id,
+                                   units=spec.units)
+    else:
+        pts = spec.points_m if spec.points_m is not None else read_points_csv(spec.file, "track.file")
+    return _wrap("track", Track.points, pts, period=spec.period_m, **_corner_args(spec))
 
 
 def solve_scenario(sc: Scenario) -> RollingPair | HubPair:

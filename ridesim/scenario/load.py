@@ -58,6 +58,7 @@ __all__ = [
     "MAX_TIMESTEP_S",
     "WheelSpec",
     "TrackSpec",
+    "ExportSpec",
     "VehicleSpec",
     "DriveSpec",
     "SurfaceSpec",
@@ -155,10 +156,21 @@ class WheelSpec:
     points_m : tuple of (float, float) or None
         Outline given inline: points [x, y] in m, at least 3.
     file : str or None
-        Outline given as a CSV file of x, y in m: resolved absolute path.
-    axle_m : (float, float)
+        Outline given as a file: CSV points x, y (m, or mm under an ``x_mm,y_mm`` header), or
+        a DXF or SVG drawing; resolved absolute path.
+    layer, id : str or None
+        DXF layer or SVG element id of the outline, when the drawing holds several shapes.
+    units : str or None
+        Length unit of a DXF drawing whose header gives none (m, cm, mm, in, ft).
+    corner_angle_deg : float or None
+        Outline: a point is a corner where the outline turns by more than this (deg);
+        None: 10.
+    corners : str, tuple of int or None
+        Outline: "all", "none" or point indices overriding ``corner_angle_deg``.
+    axle_m : (float, float) or None
         Axle position [x, y] in m in the coordinates of the outline. Always
-        (0, 0) for ``polar``, whose radius is measured from the axle.
+        (0, 0) for ``polar``, whose radius is measured from the axle. None for a
+        drawn outline without it: the smallest circle inside the outline.
     thickness_m : float
         Plate thickness in m.
     density_kg_m3 : float
@@ -195,7 +207,12 @@ class WheelSpec:
     radius_formula: str | None = default_of("wheel.radius_formula")
     points_m: tuple[Point, ...] | None = default_of("wheel.points_m")
     file: str | None = default_of("wheel.file")
-    axle_m: Point = default_of("wheel.axle_m")
+    layer: str | None = default_of("wheel.layer")
+    id: str | None = default_of("wheel.id")
+    units: str | None = default_of("wheel.units")
+    corner_angle_deg: float | None = default_of("wheel.corner_angle_deg")
+    corners: str | tuple[int, ...] | None = default_of("wheel.corners")
+    axle_m: Point | None = default_of("wheel.axle_m")
     thickness_m: float = default_of("wheel.thickness_m")
     density_kg_m3: float = default_of("wheel.density_kg_m3")
     mass_kg: float | None = default_of("wheel.mass_kg")
@@ -232,6 +249,14 @@ class TrackSpec:
     file : str or None
         Points given as a CSV file of x, y in m (in mm under an ``x_mm,y_mm`` header):
         resolved absolute path.
+    layer, id : str or None
+        DXF layer or SVG element id of a drawn profile, when the drawing holds several curves.
+    units : str or None
+        Length unit of a DXF drawing whose header gives none (m, cm, mm, in, ft).
+    corner_angle_deg : float or None
+        Points: a point is a corner where the profile turns by more than this (deg); None: 10.
+    corners : str, tuple of int or None
+        Points: "all", "none" or point indices overriding ``corner_angle_deg``.
     lobes : int or None
         Track periods per wheel revolution (>= 1). None when ``depth_m`` is
         given instead; 1 when neither is given.
@@ -260,6 +285,11 @@ class TrackSpec:
     period_m: float | None = default_of("track.period_m")
     points_m: tuple[Point, ...] | None = default_of("track.points_m")
     file: str | None = default_of("track.file")
+    layer: str | None = default_of("track.layer")
+    id: str | None = default_of("track.id")
+    units: str | None = default_of("track.units")
+    corner_angle_deg: float | None = default_of("track.corner_angle_deg")
+    corners: str | tuple[int, ...] | None = default_of("track.corners")
     lobes: int | None = default_of("track.lobes")
     depth_m: float | None = default_of("track.depth_m")
     height_error_m: float = default_of("track.height_error_m")
@@ -492,6 +522,43 @@ class PathSpec:
 
 
 @dataclass(frozen=True)
+class ExportSpec:
+    """Validated ``[export]`` section: what the cut files hold and how they are drawn.
+
+    Attributes
+    ----------
+    section_length_m : float
+        Longest track piece in m.
+    track_length_m : float or None
+        Track length to draw in m (whole periods, rounded up); None: ``revolutions``.
+    revolutions : float or None
+        Wheel revolutions of track to draw; None with ``track_length_m`` unset: 1.
+    chord_tolerance_m : float
+        Largest chord-to-curve distance in m.
+    axle_hole_m : float
+        Axle hole diameter in m.
+    axle_flat_m : float or None
+        Width across the flat of a D-bore in m; None: a round hole.
+    kerf_m : float
+        Cut width in m (lines offset by half of it into the waste).
+    sheet_m : (float, float) or None
+        Sheet size [width, height] in m; None: no sheet.
+    rails : int
+        Rails: wheels per axle and strips per track piece.
+    """
+
+    section_length_m: float = default_of("export.section_length_m")
+    track_length_m: float | None = default_of("export.track_length_m")
+    revolutions: float | None = default_of("export.revolutions")
+    chord_tolerance_m: float = default_of("export.chord_tolerance_m")
+    axle_hole_m: float = default_of("export.axle_hole_m")
+    axle_flat_m: float | None = default_of("export.axle_flat_m")
+    kerf_m: float = default_of("export.kerf_m")
+    sheet_m: Point | None = default_of("export.sheet_m")
+    rails: int = default_of("export.rails")
+
+
+@dataclass(frozen=True)
 class Scenario:
     """A validated scenario: one build and how to run it.
 
@@ -539,6 +606,7 @@ class Scenario:
     duty: DutySpec = DutySpec()
     motor: MotorSpec = MotorSpec()
     path: PathSpec = PathSpec()
+    export: ExportSpec = ExportSpec()
     source: str = field(default="<dict>", compare=False)
     base_dir: str = field(default=".", compare=False)
 
@@ -590,6 +658,7 @@ class Scenario:
         out["motor"] = _spec_dict(self.motor)
         if self.path != PathSpec():
             out["path"] = _spec_dict(self.path)
+        out["export"] = _spec_dict(self.export)
         return out
 
     def replace(self, key: str, value: Any) -> Scenario:
@@ -855,6 +924,7 @@ def scenario_from_dict(
         duty=_parse_duty(data.get("duty", {})),
         motor=_parse_motor(data.get("motor", {})),
         path=path,
+        export=_parse_export(data.get("export", {})),
         source=source,
         base_dir=str(base),
     )
@@ -932,9 +1002,14 @@ def _parse_wheel(raw: Any, base: Path) -> WheelSpec:
         _point_source(t, "outline", values, base)
         if values["points_m"] is not None:
             _check_area("wheel.points_m", values["points_m"])
+        drawing = _drawing_keys(t, values)
+        values["corner_angle_deg"] = t.get("corner_angle_deg")
+        values["corners"] = _corners(t)
 
     if shape != "polar":
         values["axle_m"] = t.get("axle_m")
+        if shape == "outline" and drawing and not t.has("axle_m"):
+            values["axle_m"] = None  # the smallest circle inside the drawn outline
     values.update({name: t.get(name) for name in _WHEEL_MATERIAL})
     if shape == "polygon" and t.get("fit_track_to_corners"):
         if values["corner_radius_m"] <= 0:
@@ -995,6 +1070,9 @@ def _parse_track(raw: Any, base: Path) -> TrackSpec:
         values["period_m"] = t.get("period_m", required=req)
     else:  # points
         _point_source(t, "points", values, base)
+        _drawing_keys(t, values)
+        values["corner_angle_deg"] = t.get("corner_angle_deg")
+        values["corners"] = _corners(t)
         points = values["points_m"]
         if points is not None:
             for i in range(1, len(points)):
@@ -1040,6 +1118,39 @@ def _parse_track_build(raw: Any) -> TrackSpec:
                 f" shape); only {', '.join(_TRACK_BUILD)} are allowed"
             )
     return TrackSpec(shape=None, lobes=None, **_track_build_values(t))
+
+
+def _drawing_keys(t: _Table, values: dict[str, Any]) -> bool:
+    """Read ``layer``, ``id`` and ``units`` (DXF or SVG files only); True for a drawing."""
+    drawing = values["file"] is not None and Path(values["file"]).suffix.lower() in (".dxf", ".svg")
+    for name in ("layer", "id", "units"):
+        if t.has(name) and not drawing:
+            raise ScenarioError(f"{t.key(name)} applies to a DXF or SVG file only; remove it")
+        values[name] = t.get(name)
+    if values["units"] is not None and values["units"] not in ("m", "cm", "mm", "in", "ft"):
+        raise ScenarioError(f"{t.key('units')} must be one of m, cm, mm, in, ft,"
+                            f" got {_show(values['units'])}")
+    return drawing
+
+
+def _corners(t: _Table) -> str | tuple[int, ...] | None:
+    """Read ``corners``: "all", "none" or a list of point indices (from 0)."""
+    if not t.has("corners"):
+        return None
+    v = t.raw("corners")
+    if isinstance(v, str):
+        if v in ("all", "none"):
+            return v
+        raise ScenarioError(f'{t.key("corners")} must be "all", "none" or a list of point indices,'
+                            f" got {_show(v)}")
+    items = _as_list(t.key("corners"), v, "a list of point indices")
+    out = []
+    for i, item in enumerate(items):
+        k = _as_int(f"{t.key('corners')}[{i}]", item)
+        if k < 0:
+            raise ScenarioError(f"{t.key('corners')}[{i}] must be a point index >= 0, got {k}")
+        out.append(k)
+    return tuple(out)
 
 
 def _point_source(t: _Table, shape: str, values: dict[str, Any], base: Path) -> None:
@@ -1193,6 +1304,22 @@ def _parse_path(raw: Any) -> PathSpec:
     if kind == "hub" and spec.side == "inside" and spec.centre_distance_m is None and spec.ratio is None:
         raise ScenarioError("path.side = \"inside\" needs path.ratio (> 1) or path.centre_distance_m")
     return spec
+
+
+def _parse_export(raw: Any) -> ExportSpec:
+    """Validate the ``[export]`` section."""
+    t = _Table("export", raw)
+    t.only([f.name for f in fields(ExportSpec)])
+    if t.has("track_length_m") and t.has("revolutions"):
+        raise ScenarioError("export: give at most one of track_length_m, revolutions")
+    hole = t.get("axle_hole_m")
+    flat = t.get("axle_flat_m")
+    if flat is not None and not 0.5 * hole < flat < hole:
+        raise ScenarioError(
+            f"export.axle_flat_m must lie between axle_hole_m / 2 ({_show(0.5 * hole)}) and"
+            f" axle_hole_m ({_show(hole)}), got {_show(flat)}; it is the width across the flat"
+        )
+    return ExportSpec(**{f.name: t.get(f.name) for f in fields(ExportSpec)})
 
 
 def _parse_run(raw: Any) -> RunSpec:

@@ -81,7 +81,8 @@ PATH_KINDS = ("line", "hub")
 HUB_SIDES = ("outside", "inside")
 """Allowed values of ``path.side`` (the same as ``ridesim.model.path.HUB_SIDES``)."""
 
-SECTIONS = ("wheel", "track", "path", "vehicle", "drive", "surface", "run", "duty", "motor")
+SECTIONS = ("wheel", "track", "path", "vehicle", "drive", "surface", "run", "duty", "motor",
+            "export")
 """The scenario's sections, in the order of the reference."""
 
 
@@ -95,7 +96,7 @@ class _Required:
 REQUIRED: Any = _Required()
 """Default of a key that must be given; its spec field holds None until it is."""
 
-KINDS = ("real", "int", "bool", "str", "choice", "pair", "points", "file", "ints", "reals")
+KINDS = ("real", "int", "bool", "str", "choice", "pair", "points", "file", "ints", "reals", "corners")
 """Value types of :attr:`Key.kind`."""
 
 
@@ -204,8 +205,23 @@ KEYS: tuple[Key, ...] = (
         "outline points [x, y], at least 3 (give exactly one of points_m, file)",
         shapes=_OUTLINE),
     Key("wheel", "file", "file", REQUIRED, "m",
-        "CSV file of outline points x, y, relative to the scenario's folder"
+        "outline file relative to the scenario's folder: CSV points x, y, or a DXF or SVG drawing"
         " (give exactly one of points_m, file)", shapes=_OUTLINE),
+    Key("wheel", "layer", "str", None, "",
+        "DXF: the layer holding the outline (needed when the drawing holds several shapes)",
+        shapes=_OUTLINE),
+    Key("wheel", "id", "str", None, "",
+        "SVG: the id of the outline element (needed when the drawing holds several shapes)",
+        shapes=_OUTLINE),
+    Key("wheel", "units", "str", None, "",
+        "DXF: length unit (m, cm, mm, in, ft) of a drawing whose header gives none",
+        shapes=_OUTLINE),
+    Key("wheel", "corner_angle_deg", "real", None, "deg",
+        "a point of the outline is a corner where the outline turns by more than this (unset:"
+        " 10); between corners it is a smooth spline", ge=0, lt=180, shapes=_OUTLINE),
+    Key("wheel", "corners", "corners", None, "",
+        '"all" (a polygon), "none" (smooth all round) or a list of point indices; unset:'
+        " by corner_angle_deg", shapes=_OUTLINE),
     Key("wheel", "scale", "real", 1.0, "-",
         "as-built size over nominal size (1.002: cut 0.2 % large)",
         gt=0, plausible=(0.9, 1.1),
@@ -214,7 +230,8 @@ KEYS: tuple[Key, ...] = (
         "as-built axle hole position minus the nominal one [x, y]",
         plausible=(-0.05, 0.05), source=_ERROR_SRC),
     Key("wheel", "axle_m", "pair", (0.0, 0.0), "m",
-        "axle position [x, y] in the outline's coordinates (not for polar)"),
+        "axle position [x, y] in the outline's coordinates (not for polar); a DXF or SVG"
+        " outline: unset means the smallest circle inside it"),
     Key("wheel", "thickness_m", "real", 0.02, "m", "plate thickness",
         gt=0, plausible=(0.001, 0.3),
         source="common practice: 1 mm sheet to 30 cm solid wheels"),
@@ -251,8 +268,24 @@ KEYS: tuple[Key, ...] = (
         "profile points [x, y], x increasing, at least 3 (give exactly one of points_m, file)",
         shapes=("points",)),
     Key("track", "file", "file", REQUIRED, "m",
-        "CSV file of profile points x, y (mm under an x_mm,y_mm header)"
-        " (give exactly one of points_m, file)", shapes=("points",)),
+        "CSV file of profile points x, y (mm under an x_mm,y_mm header), or a DXF or SVG"
+        " drawing of one period as one open curve (give exactly one of points_m, file)",
+        shapes=("points",)),
+    Key("track", "layer", "str", None, "",
+        "DXF: the layer holding the profile (needed when the drawing holds several curves)",
+        shapes=("points",)),
+    Key("track", "id", "str", None, "",
+        "SVG: the id of the profile element (needed when the drawing holds several curves)",
+        shapes=("points",)),
+    Key("track", "units", "str", None, "",
+        "DXF: length unit (m, cm, mm, in, ft) of a drawing whose header gives none",
+        shapes=("points",)),
+    Key("track", "corner_angle_deg", "real", None, "deg",
+        "a point of the profile is a corner where it turns by more than this (unset: 10);"
+        " between corners it is a smooth spline", ge=0, lt=180, shapes=("points",)),
+    Key("track", "corners", "corners", None, "",
+        '"all" (straight segments), "none" (smooth throughout) or a list of point indices;'
+        " unset: by corner_angle_deg", shapes=("points",)),
     Key("track", "period_m", "real", None, "m",
         "period (required for formula; points: unset means the points' x span)",
         gt=0, plausible=_TRACK_LENGTH_M, source=_TRACK_SRC, shapes=("formula", "points")),
@@ -393,6 +426,39 @@ KEYS: tuple[Key, ...] = (
         ge=1, plausible=(1.0, 5.0), source="common practice: design margins of 1.2 to 3"),
     Key("motor", "inertia_kg_m2", "real", 0.0, "kg m^2",
         "rotor inertia (reflected to the wheel as i^2 J)", ge=0),
+    # ---------------------------------------------------------------- [export]
+    Key("export", "section_length_m", "real", 1.0, "m",
+        "longest track piece in the cut files (pieces end at the track's highest points)",
+        gt=0, plausible=(0.05, 3.0),
+        source="common practice: laser and router beds of 0.3 m to 3 m (1.2 x 2.4 m sheets)"),
+    Key("export", "track_length_m", "real", None, "m",
+        "length of track to draw, rounded up to whole periods; unset: revolutions",
+        gt=0, plausible=(0.01, 100.0), source="common practice: a test piece to a ride's loop"),
+    Key("export", "revolutions", "real", None, "-",
+        "wheel revolutions of track to draw (instead of track_length_m); unset: 1", gt=0),
+    Key("export", "chord_tolerance_m", "real", 1e-5, "m",
+        "largest distance of a drawn chord from the true curve",
+        gt=0, plausible=(1e-7, 1e-3),
+        source="common practice: machine resolutions of a few um; 0.01 mm is below laser and"
+               " router accuracy"),
+    Key("export", "axle_hole_m", "real", 0.010, "m",
+        "axle hole diameter (the 10 mm default fits a 10 mm shaft: ream to fit)",
+        gt=0, plausible=(0.001, 0.1), source="common practice: 3 mm toy shafts to 80 mm axles"),
+    Key("export", "axle_flat_m", "real", None, "m",
+        "D-bore: width across the flat (between axle_hole_m / 2 and axle_hole_m), so the"
+        " wheel cannot turn on a D-shaft; unset: a round hole", gt=0),
+    Key("export", "kerf_m", "real", 0.0, "m",
+        "width of the cut; cut lines are offset by half of it into the waste so the parts come"
+        " out at size", ge=0, plausible=(0.0, 0.005),
+        source="common practice: 0.1-0.3 mm laser, 1-3 mm router or waterjet"),
+    Key("export", "sheet_m", "pair", None, "m",
+        "sheet size [width, height]: track pieces are cut no longer than the sheet's long side"
+        " less the margins, and the cut list counts sheets and flags parts that do not fit;"
+        " unset: no sheet", gt=0, plausible=(0.1, 4.0),
+        source="common practice: 0.3 m laser beds to 1.5 x 3 m router and waterjet tables"),
+    Key("export", "rails", "int", 2, "-",
+        "rails the vehicle runs on: wheels per axle and strips per track piece in the cut list",
+        ge=1, plausible=(1.0, 4.0), source="common practice: a cart runs on two rails"),
 )
 """Every scenario key, grouped by section (the order of the reference)."""
 
@@ -542,7 +608,8 @@ def _show_bounds(k: Key) -> str:
 
 _KIND_TEXT = {"real": "number", "int": "integer", "bool": "true/false", "str": "text",
               "choice": "text", "pair": "[x, y]", "points": "list of [x, y]", "file": "path",
-              "ints": "list of integers", "reals": "list of numbers"}
+              "ints": "list of integers", "reals": "list of numbers",
+              "corners": "\"all\", \"none\" or list of integers"}
 
 
 def markdown_reference() -> str:

@@ -1,0 +1,169 @@
+"""DXF cut files (AutoCAD R2010 format, millimetres) for laser, router and waterjet shops.
+
+Written with ezdxf (the ``cad`` extra), imported only here and only when a DXF is asked
+for. Each drawing is 1:1 in millimetres (``$INSUNITS`` = 4, ``$MEASUREMENT`` = 1, metric)
+in the same frames as the SVG and CSV files (wheel: axle frame; track: x along the axle
+path, y below the axle line), with three layers:
+
+* ``CUT`` (red, ACI 1): cut lines, already offset by half the kerf into the waste;
+* ``MARK`` (blue, ACI 5): score or mark lines (axle cross-hair, cusp and joint ticks);
+* ``TEXT`` (white/black, ACI 7): notes to engrave or ignore.
+
+Curves are LWPOLYLINEs whose chords stay within the export's chord tolerance; a circular
+wheel and a round axle hole are CIRCLEs and the arc of a D-bore an exact arc (a polyline
+bulge).
+"""
+
+from __future__ import annotations
+
+import io
+import math
+from collections.abc import Sequence
+from pathlib import Path
+
+import numpy as np
+
+from ridesim.errors import InputError
+from ridesim.export.results import write_text_atomic
+
+__all__ = ["LAYERS", "require_ezdxf", "wheel_dxf", "section_dxf"]
+
+#: Layer name -> AutoCAD colour index (1 red, 5 blue, 7 white/black).
+LAYERS = {"CUT": 1, "MARK": 5, "TEXT": 7}
+TEXT_MM = 3.5
+LINE_MM = 5.0
+
+
+def require_ezdxf():
+    """Import ezdxf, or say in one line how to install it."""
+    try:
+        import ezdxf
+    except ImportError:
+        raise InputError('DXF export needs ezdxf: pip install "ridesim[cad]" (or pip install ezdxf)'
+                         ) from None
+    return ezdxf
+
+
+def _new_doc():
+    ezdxf = require_ezdxf()
+    from ezdxf import units
+
+    doc = ezdxf.new("R2010", setup=False)
+    doc.units = units.MM
+    doc.header["$MEASUREMENT"] = 1  # metric
+    for name, colour in LAYERS.items():
+        doc.layers.add(name, color=colour)
+    return doc
+
+
+def _text_block(msp, lines: Sequence[str], x: float, y_top: float) -> None:
+    y = y_top
+    for s in lines:
+        y -= LINE_MM
+        msp.add_text(str(s), height=TEXT_MM, dxfattribs={"layer": "TEXT", "insert": (x, y)})
+
+
+def _save(doc, path: Path) -> Path:
+    buf = io.StringIO()
+    doc.write(buf)
+    return write_text_atomic(path, buf.getvalue())
+
+
+def wheel_dxf(path: str | Path, pair, cut_mm: np.ndarray, hole_m: float, flat_m: float | None,
+              kerf_m: float, lines: Sequence[str]) -> Path:
+    """Write the wheel's DXF: outline and bore on CUT, cross-hair on MARK, notes on TEXT.
+
+    Parameters
+    ----------
+    path : str or Path
+        File to write (atomically).
+    pair : RollingPair
+        The solved pair (its wheel).
+    cut_mm : ndarray, shape (N, 2)
+        Outline cut line [mm], axle frame, kerf already applied.
+    hole_m : float
+        Bore diameter [m].
+    flat_m : float or None
+        Width across a D-bore's flat [m]; None: round.
+    kerf_m : float
+        Cut width [m] (the bore's line moves half of it into the hole).
+    lines : sequence of str
+        Notes for the TEXT layer.
+
+    Returns
+    -------
+    Path
+    """
+    doc = _new_doc()
+    msp = doc.modelspace()
+    wheel = pair.wheel
+    if wheel.kind == "circle":  # a circle stays a circle: its centre and radius, grown by half the kerf
+        c = np.asarray(wheel.shape_offset) * 1000
+        msp.add_circle((float(c[0]), float(c[1])), (wheel.params["radius_m"] + 0.5 * kerf_m) * 1000,
+                       dxfattribs={"layer": "CUT"})
+    else:
+        msp.add_lwpolyline([tuple(map(float, p)) for p in cut_mm], close=True, dxfattribs={"layer": "CUT"})
+    r = 0.5 * (hole_m - kerf_m) * 1000
+    if flat_m is None:
+        msp.add_circle((0.0, 0.0), r, dxfattribs={"layer": "CUT"})
+    else:
+        f = (flat_m - 0.5 * hole_m - 0.5 * kerf_m) * 1000
+        w = math.sqrt(r * r - f * f)
+        sweep = math.pi + 2 * math.asin(f / r)  # anticlockwise arc under the flat
+        msp.add_lwpolyline([(w, f, 0.0), (-w, f, math.tan(sweep / 4))], format="xyb", close=True,
+                           dxfattribs={"layer": "CUT"})
+    rmin = pair.wheel.extremes()[0] * 1000
+    arm = 0.5 * hole_m * 1000 + min(5.0, 0.3 * rmin)
+    msp.add_line((-arm, 0.0), (arm, 0.0), dxfattribs={"layer": "MARK"})
+    msp.add_line((0.0, -arm), (0.0, arm), dxfattribs={"layer": "MARK"})
+    _text_block(msp, lines, float(cut_mm[:, 0].min()), float(cut_mm[:, 1].min()) - LINE_MM)
+    return _save(doc, Path(path))
+
+
+def section_dxf(path: str | Path, k: int, n: int, prof_mm: np.ndarray, cut_mm: np.ndarray,
+                cusps_mm: np.ndarray, joint_mark_mm: float, lines: Sequence[str]) -> Path:
+    """Write one track section's DXF: strip on CUT, cusp and joint ticks on MARK, notes on TEXT.
+
+    Parameters
+    ----------
+    path : str or Path
+        File to write (atomically).
+    k, n : int
+        Section index (from 0) and number of sections.
+    prof_mm : ndarray, shape (M, 2)
+        Profile [mm] at size, track frame.
+    cut_mm : ndarray, shape (M + 2, 2)
+        Strip cut line [mm], kerf applied.
+    cusps_mm : ndarray, shape (C, 3)
+        Cusps ``(x, y, valley)`` [mm] along the whole track.
+    joint_mark_mm : float
+        Distance [mm] of each joint tick from the joint.
+    lines : sequence of str
+        Notes for the TEXT layer.
+
+    Returns
+    -------
+    Path
+    """
+    doc = _new_doc()
+    msp = doc.modelspace()
+    msp.add_lwpolyline([tuple(map(float, p)) for p in cut_mm], close=True, dxfattribs={"layer": "CUT"})
+    x0, x1 = float(prof_mm[0, 0]), float(prof_mm[-1, 0])
+    y_bottom = float(cut_mm[:, 1].min())
+    tick = min(4.0, 0.4 * (float(prof_mm[:, 1].min()) - y_bottom))
+    for c in cusps_mm:
+        if x0 < c[0] < x1:
+            msp.add_line((float(c[0]), float(c[1])), (float(c[0]), float(c[1]) - tick),
+                         dxfattribs={"layer": "MARK"})
+    ends = []
+    if k > 0:
+        ends.append((x0 + joint_mark_mm, f"J{k}"))
+    if k < n - 1:
+        ends.append((x1 - joint_mark_mm, f"J{k + 1}"))
+    for xj, label in ends:
+        yj = float(np.interp(xj, prof_mm[:, 0], prof_mm[:, 1]))
+        msp.add_line((xj, yj), (xj, yj - 1.5 * tick), dxfattribs={"layer": "MARK"})
+        msp.add_text(label, height=TEXT_MM,
+                     dxfattribs={"layer": "TEXT", "insert": (xj - TEXT_MM, yj - 1.5 * tick - LINE_MM)})
+    _text_block(msp, lines, x0, y_bottom - LINE_MM)
+    return _save(doc, Path(path))
