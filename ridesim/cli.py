@@ -16,6 +16,7 @@ import os
 import sys
 from collections.abc import Callable
 from pathlib import Path
+from typing import NoReturn
 
 from ridesim._version import __version__
 from ridesim.errors import RidesimError
@@ -29,7 +30,7 @@ class _ArgumentError(Exception):
 
 
 class _Parser(argparse.ArgumentParser):
-    def error(self, message: str) -> None:  # one line, exit code 2, no usage dump
+    def error(self, message: str) -> NoReturn:  # one line, exit code 2, no usage dump
         raise _ArgumentError(f"{self.prog}: {message}")
 
 
@@ -52,8 +53,8 @@ def _cmd_simulate(sc, args) -> tuple[dict, str]:
     if sc.path.is_hub:
         from ridesim.jobs.hub import simulate_hub
 
-        res = simulate_hub(sc)
-        return res.to_dict(), res.to_text()
+        hub_res = simulate_hub(sc)
+        return hub_res.to_dict(), hub_res.to_text()
     from ridesim.jobs.simulate import simulate, write_probes
 
     progress = None
@@ -197,13 +198,14 @@ def _cmd_sweep(args) -> int:
     if show:
         sys.stderr.write("\n")
     rows = read_table(outcome.table)
-    summary = {"cases": outcome.total, "done": outcome.done, "failed": outcome.failed,
+    summary: dict[str, object] = {"cases": outcome.total, "done": outcome.done, "failed": outcome.failed,
                "computed_now": outcome.computed, "table": str(outcome.table),
                "interrupted": outcome.interrupted, "warnings": warnings}
+    best: list[dict[str, object]] = []
     if args.best:
-        summary["best"] = [{"case": int(r["case"]), args.best: r[args.best],
-                            **{c: r[c] for c in plan.columns}}
-                           for r in best_cases(rows, args.best, highest=args.highest)]
+        best = [{"case": int(r["case"]), args.best: r[args.best], **{c: r[c] for c in plan.columns}}
+                for r in best_cases(rows, args.best, highest=args.highest)]
+        summary["best"] = best
     if args.plot:
         params = list(plan.columns[:2]) if not args.against else args.against.split(",")
         if not params:
@@ -215,7 +217,7 @@ def _cmd_sweep(args) -> int:
     else:
         print(f"sweep {plan.source}: {outcome.done}/{outcome.total} cases done"
               f" ({outcome.failed} failed, {outcome.computed} computed now) -> {outcome.table}")
-        for b in summary.get("best", []):
+        for b in best:
             print("  best: " + ", ".join(f"{k} = {v}" for k, v in b.items()))
         if "plot" in summary:
             print(f"  plot: {summary['plot']}")

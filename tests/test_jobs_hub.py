@@ -135,3 +135,20 @@ def test_render_writes_the_plot_and_the_clip(tmp_path):
     with Image.open(tmp_path / "clip.gif") as im:
         assert im.n_frames == 10 and im.size == (640, 360)
     assert "clip.gif" in (tmp_path / "index.md").read_text()
+
+
+def test_track_solve_refuses_a_hub_path():
+    # A job that needs a wheel on a track refuses a hub path with one line naming path.kind.
+    from ridesim.errors import ScenarioError
+    from ridesim.scenario.build import solve_track_scenario
+    from ridesim.solve.pair import RollingPair
+
+    with pytest.raises(ScenarioError, match="path.kind"):
+        solve_track_scenario(load_scenario(SCENARIOS / "elliptic_gear_pair.toml"))
+    # On a straight path: a square of apothem a rolls on catenary arches of period
+    # 2 a asinh(1) (Hall & Wagon, "Roads and Wheels", Math. Mag. 65 (1992) 283-301).
+    a = 0.3
+    pair = solve_track_scenario(scenario_from_dict(
+        {"wheel": {"shape": "polygon", "sides": 4, "apothem_m": a}}))
+    assert isinstance(pair, RollingPair)
+    assert pair.track.period == pytest.approx(2 * a * math.asinh(1.0), rel=1e-9)

@@ -114,7 +114,7 @@ _TREE_CHUNK_POSES = 2048  # poses per chunk through the disc hierarchy
 _TREE_FIRST_POSES = 16  # a small first chunk sets the running minimum early
 
 
-def _wrap_pi(a: np.ndarray) -> np.ndarray:
+def _wrap_pi(a: np.ndarray | float) -> np.ndarray | float:
     return (a + math.pi) % TWO_PI - math.pi
 
 
@@ -443,22 +443,21 @@ class _BoxTree:
         xl = np.minimum(np.minimum(X[0], X[1]), np.minimum(X[2], X[3]))
         xr = np.maximum(np.maximum(X[0], X[1]), np.maximum(X[2], X[3]))
         lines, wide = env.lines(xl, xr)
-        res = None
+        per_line: list[np.ndarray] = []
         for centre, yc, mc, pad in lines:
             u = [Y[j] - (yc + mc * (X[j] - centre)) for j in range(4)]
             v = np.minimum(np.minimum(u[0], u[1]), np.minimum(u[2], u[3]))
-            v = v - pad if lower else pad - v
-            if res is None:
-                res = v
-            else:
-                res = np.minimum(res, v) if lower else np.maximum(res, v)
+            per_line.append(v - pad if lower else pad - v)
+        res = per_line[0]  # env.lines gives two bins' lines per box
+        for v in per_line[1:]:
+            res = np.minimum(res, v) if lower else np.maximum(res, v)
         ylo = np.minimum(np.minimum(Y[0], Y[1]), np.minimum(Y[2], Y[3]))
         if lower:
             return np.where(wide, ylo - env.global_max, res)
         return np.where(wide, env.global_max - ylo, res)
 
     def candidates(self, x: np.ndarray, c: np.ndarray, s: np.ndarray, env: _LineEnvelope,
-                   thr: float, lower: bool = True, probe=None) -> tuple[np.ndarray, np.ndarray]:
+                   thr: float | np.ndarray, lower: bool = True, probe=None) -> tuple[np.ndarray, np.ndarray]:
         """(pose, element) pairs that no enclosing box rules out, sorted by pose then element.
 
         With ``lower``, a box goes when its bound on the least gap ``Y - track(X)`` is
@@ -473,20 +472,20 @@ class _BoxTree:
         runs = self.levels[top][0].shape[1]
         pi = np.repeat(np.arange(len(x)), runs)
         ni = np.tile(np.arange(runs), len(x))
-        thr = np.array(np.broadcast_to(np.asarray(thr, dtype=float), np.shape(x)))
+        thr_pose = np.array(np.broadcast_to(np.asarray(thr, dtype=float), np.shape(x)))
         for lev in range(top, -1, -1):
             bd = self.bounds(lev, ni, x[pi], c[pi], s[pi], env, lower)
-            keep = bd < thr[pi] if lower else bd >= thr[pi]
+            keep = bd < thr_pose[pi] if lower else bd >= thr_pose[pi]
             pi, ni, bd = pi[keep], ni[keep], bd[keep]
             if probe is not None and pi.size:
                 val = probe(pi, ni << lev)
                 heads = np.flatnonzero(np.concatenate(([True], pi[1:] != pi[:-1])))
                 if lower:
-                    thr[pi[heads]] = np.minimum(thr[pi[heads]], np.minimum.reduceat(val, heads))
-                    keep = bd < thr[pi]
+                    thr_pose[pi[heads]] = np.minimum(thr_pose[pi[heads]], np.minimum.reduceat(val, heads))
+                    keep = bd < thr_pose[pi]
                 else:
-                    thr[pi[heads]] = np.maximum(thr[pi[heads]], np.maximum.reduceat(val, heads))
-                    keep = bd >= thr[pi]
+                    thr_pose[pi[heads]] = np.maximum(thr_pose[pi[heads]], np.maximum.reduceat(val, heads))
+                    keep = bd >= thr_pose[pi]
                 pi, ni = pi[keep], ni[keep]
             if lev == 0:
                 break
@@ -626,8 +625,8 @@ class _Checker:
         self.rmin, self.rmax = rmin, rmax
         self.tol = INTERFERENCE_TOL_REL * rmax
         self.env = _Envelope(pair.track)
-        self.poly = None
-        self.smooth = None
+        self.poly: _PolygonRim | None = None
+        self.smooth: _SmoothRim | None = None
         self._poly_vertices = None
         if w.is_polygon:
             poly = _PolygonRim(pair)
@@ -643,16 +642,25 @@ class _Checker:
                 self._poly_vertices = V
         else:
             self.smooth = _SmoothRim(pair, n_rim)
-        self.n_points = len(self.poly.V) if self.poly is not None else len(self.smooth.P)
         if self.poly is not None:
+            self.n_points = len(self.poly.V)
             self.tree = _BoxTree(self.poly.V, edges=True)
             self._probe_phi = np.arctan2(self.poly.V[:, 1], self.poly.V[:, 0])
         else:
-            self.tree = _BoxTree(self.smooth.P, edges=False)
-            self._probe_phi = self.smooth.phi
+            sm = self._rim
+            self.n_points = len(sm.P)
+            self.tree = _BoxTree(sm.P, edges=False)
+            self._probe_phi = sm.phi
         # Finest line bins about as wide as a rim element's reach along the track.
         per_rev = max(1, int(round(pair.revolution_length / pair.track.period)))
         self.lines = _LineEnvelope(pair.track, min(1 << 17, 2 * self.n_points // per_rev + 1))
+
+    @property
+    def _rim(self) -> _SmoothRim:
+        """The sampled rim of a wheel not checked as a polygon."""
+        if self.smooth is None:
+            raise InputError("clearance: this wheel is checked as a polygon and has no sampled rim")
+        return self.smooth
 
     # -- one chunk of poses: per-pose least gap below ``thr`` (inf where none)
     def evaluate(self, x: np.ndarray, theta: np.ndarray, thr: float, prune: bool = True):
@@ -769,7 +777,7 @@ class _Checker:
 
     # -- smooth rim: refine the polar angle around a sample at one pose
     def refine_phi(self, xq: float, k: int) -> tuple[float, float]:
-        sm = self.smooth
+        sm = self._rim
         th = _at(self.pair.wheel_angle, xq)
         c, s = math.cos(th), math.sin(th)
         contact = th - HALF_PI
@@ -832,11 +840,11 @@ class _Checker:
             p = V + t * (W - V)
             return g, j, t, float(np.mod(math.atan2(p[1], p[0]), TWO_PI))
         if not math.isfinite(g):
-            return g, j, t, float(self.smooth.phi[j])
+            return g, j, t, float(self._rim.phi[j])
         g2, ph = self.refine_phi(xq, j)
         if g2 < g:
             return g2, j, t, float(np.mod(ph, TWO_PI))
-        return g, j, t, float(self.smooth.phi[j])
+        return g, j, t, float(self._rim.phi[j])
 
 
 def _per_pose_min(n_poses: int, pi: np.ndarray, ki: np.ndarray, gap: np.ndarray, t: np.ndarray):
@@ -1045,9 +1053,9 @@ def clearance(
                 bad_x.append(float(x[i1]))
         ends = iter(sharpen(np.array(clear_x), np.array(bad_x)).tolist() if clear_x else [])
         for i0, i1 in joined:
-            a = float(x[i0]) if i0 == 0 else next(ends)
-            b = float(x[i1]) if i1 == P - 1 else next(ends)
-            intervals.append((a, b))
+            xa = float(x[i0]) if i0 == 0 else next(ends)
+            xb = float(x[i1]) if i1 == P - 1 else next(ends)
+            intervals.append((xa, xb))
         first = intervals[0][0]
     return ClearanceResult(
         min_m=float(gmin), at_x_m=xbest, wheel_angle_rad=th_best, feature=feature,

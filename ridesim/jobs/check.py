@@ -23,7 +23,7 @@ from __future__ import annotations
 
 import math
 from dataclasses import dataclass, field
-from typing import Any
+from typing import TYPE_CHECKING, Any
 
 import numpy as np
 
@@ -41,8 +41,11 @@ from ridesim.assess.phasing import cart_phasing
 from ridesim.assess.wording import describe
 from ridesim.errors import InputError
 from ridesim.safety import SAFETY_CAUTIONS, caution_lines, with_safety
-from ridesim.scenario.build import resolve_wheelbase, solve_scenario, wheel_mass
+from ridesim.scenario.build import resolve_wheelbase, solve_track_scenario, wheel_mass
 from ridesim.scenario.load import Scenario
+
+if TYPE_CHECKING:
+    from ridesim.jobs.hub import HubCheckResult
 
 __all__ = ["CheckResult", "check_scenario", "SAFETY_CAUTIONS", "CHECK_CAUTIONS"]
 
@@ -292,7 +295,7 @@ class CheckResult:
         return "\n".join(lines)
 
 
-def check_scenario(sc: Scenario) -> CheckResult:
+def check_scenario(sc: Scenario) -> CheckResult | HubCheckResult:
     """Check whether the scenario's build will roll, and what it needs.
 
     Parameters
@@ -302,7 +305,8 @@ def check_scenario(sc: Scenario) -> CheckResult:
 
     Returns
     -------
-    CheckResult
+    CheckResult or HubCheckResult
+        A :class:`~ridesim.jobs.hub.HubCheckResult` for ``path.kind = "hub"``.
 
     Examples
     --------
@@ -317,7 +321,7 @@ def check_scenario(sc: Scenario) -> CheckResult:
         from ridesim.jobs.hub import check_hub
 
         return check_hub(sc)
-    pair = solve_scenario(sc)
+    pair = solve_track_scenario(sc)
     sc = resolve_wheelbase(sc, pair)
     cautions = with_safety(CHECK_CAUTIONS)
     avail = float(sc.surface.friction)

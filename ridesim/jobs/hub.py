@@ -69,6 +69,8 @@ def solve_hub_text(sc: Scenario, out: dict) -> str:
     -------
     str
     """
+    if sc.wheel is None:
+        raise ScenarioError("a hub needs a [wheel] with its shape")
     where = "around the hub" if out["side"] == "outside" else "inside the ring"
     lines = [f"scenario: {sc.name}",
              f"solved the {'hub' if out['side'] == 'outside' else 'ring'} for the"
@@ -276,16 +278,21 @@ def simulate_hub(sc: Scenario) -> HubSimResult:
     if sc.drive.mode == "torque":
         raise ScenarioError("simulate drives a gear pair at a constant shaft speed: use drive.mode ="
                             " \"shaft_speed\" (or \"speed\")")
+    if sc.wheel is None:
+        raise ScenarioError("a hub needs a [wheel] with its shape")
+    spec = sc.wheel
     pair = solve_hub_scenario(sc)
     if not pair.closed:
         raise ScenarioError("the hub does not close at path.centre_distance_m; give path.ratio")
     th = np.linspace(0.0, 2 * math.pi, 2048, endpoint=False)
     if sc.drive.mode == "shaft_speed":
+        if sc.drive.shaft_speed_rad_s is None:
+            raise ScenarioError("drive.shaft_speed_rad_s is missing: drive.mode = \"shaft_speed\" needs it")
         w = float(sc.drive.shaft_speed_rad_s)
     else:
         w = float(sc.drive.speed_m_s) / float(np.mean(pair.wheel_radius(th)))
     mw = wheel_mass(sc, pair.wheel)
-    mh = pair.hub.mass_properties(sc.wheel.thickness_m, sc.wheel.density_kg_m3)
+    mh = pair.hub.mass_properties(spec.thickness_m, spec.density_kg_m3)
     turns = float(sc.run.duration_s) * w / (2 * math.pi)
     load = float(sc.path.load_torque_Nm)
     preload = sc.path.preload_N if sc.path.preload_N is not None else mw.mass_kg * 9.80665

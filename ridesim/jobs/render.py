@@ -10,6 +10,8 @@ from pathlib import Path
 
 import numpy as np
 
+from ridesim.errors import InputError
+
 __all__ = ["render_scenario"]
 
 
@@ -54,7 +56,7 @@ def render_scenario(sc, out_dir: str | Path, *, svg: bool = False, simulate: boo
     from ridesim.model.vehicle import axle_offsets_m
     from ridesim.render.clip import render_clip
     from ridesim.render.plots import plot_series, render_solver_plots, write_index
-    from ridesim.scenario.build import resolve_wheelbase, solve_scenario, wheel_mass
+    from ridesim.scenario.build import resolve_wheelbase, solve_track_scenario, wheel_mass
 
     out = Path(out_dir)
     out.mkdir(parents=True, exist_ok=True)
@@ -63,7 +65,7 @@ def render_scenario(sc, out_dir: str | Path, *, svg: bool = False, simulate: boo
 
         return render_hub(sc, out, svg=svg, clip=clip, clip_s=clip_s, fps=fps, size=size,
                           progress=progress)
-    pair = solve_scenario(sc)
+    pair = solve_track_scenario(sc)
     sc = resolve_wheelbase(sc, pair)
     mp = wheel_mass(sc, pair.wheel)
     items = list(render_solver_plots(pair, out, mass=mp, svg=svg))
@@ -86,8 +88,11 @@ def render_scenario(sc, out_dir: str | Path, *, svg: bool = False, simulate: boo
     from ridesim.model.vehicle import motor_name
 
     tq = {}
+    motor_torque = steady.motor_torque_Nm
+    if motor_torque is None:
+        raise InputError("analyze_cycle gave no torque per motor to plot")
     for k, axles in enumerate(steady.motors):
-        tq[f"analytic: {motor_name(axles)}"] = (steady.t_s, steady.motor_torque_Nm[k])
+        tq[f"analytic: {motor_name(axles)}"] = (steady.t_s, motor_torque[k])
     items.append(plot_series(
         None, tq, out / "torque_analytic.png", "motor torque [N·m]",
         f"Torque per motor at a steady {v:.3g} m/s (analytic)", svg=svg,

@@ -27,8 +27,8 @@ def size_motor(sc: Scenario, *, dt_s: float | None = None) -> MotorSizing:
     MotorSizing
     """
     from ridesim.metrics.motor import motor_sizing
-    from ridesim.scenario.build import resolve_wheelbase, solve_scenario, wheel_mass
+    from ridesim.scenario.build import resolve_wheelbase, solve_track_scenario, wheel_mass
 
-    pair = solve_scenario(sc)
+    pair = solve_track_scenario(sc)
     sc = resolve_wheelbase(sc, pair)
     return motor_sizing(pair, sc, wheel_mass(sc, pair.wheel), dt_s=dt_s)

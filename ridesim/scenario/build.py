@@ -53,7 +53,7 @@ def read_points_csv(path: str | Path, key: str) -> np.ndarray:
     ndarray, shape (N, 2)
         Points [m].
     """
-    rows = []
+    rows: list[list[float]] = []
     scale = 1.0
     try:
         with open(path, newline="", encoding="utf-8") as fh:
@@ -89,7 +89,7 @@ def _header_scale(cells: list[str], path, key: str, lineno: int) -> float:
     The header's words are split at anything not a letter or digit (``x_mm``, ``x [mm]`` and
     ``x (mm)`` all name mm). Any other length unit is refused rather than read as metres.
     """
-    words = set()
+    words: set[str] = set()
     for c in cells[:2]:
         words.update(w for w in re.split(r"[^0-9a-z]+", c.lower()) if w)
     named = words & (set(_CSV_UNITS_M) | _OTHER_LENGTH_UNITS)
@@ -152,7 +152,12 @@ def wheel_from_spec(spec: WheelSpec) -> Wheel:
                                     " to mark the axle; give wheel.axle_m = [x, y] (m, drawing frame)")
             ax = drawn.axle_m
     else:
-        pts = spec.points_m if spec.points_m is not None else read_points_csv(spec.file, "wheel.file")
+        if spec.points_m is not None:
+            pts = spec.points_m
+        elif spec.file is not None:
+            pts = read_points_csv(spec.file, "wheel.file")
+        else:
+            raise ScenarioError("wheel: give its outline as wheel.points_m or wheel.file")
     if ax is None:
         ax = (0.0, 0.0)
     return _wrap("wheel", Wheel.outline, pts, axle=ax, **_corner_args(spec))
@@ -189,7 +194,12 @@ def track_from_spec(spec: TrackSpec) -> Track:
         pts = read_profile_drawing(spec.file, "track.file", layer=spec.layer, ident=spec.id,
                                    units=spec.units)
     else:
-        pts = spec.points_m if spec.points_m is not None else read_points_csv(spec.file, "track.file")
+        if spec.points_m is not None:
+            pts = spec.points_m
+        elif spec.file is not None:
+            pts = read_points_csv(spec.file, "track.file")
+        else:
+            raise ScenarioError("track: give its outline as track.points_m or track.file")
     return _wrap("track", Track.points, pts, period=spec.period_m, **_corner_args(spec))
 
 
@@ -209,8 +219,27 @@ def solve_scenario(sc: Scenario) -> RollingPair | HubPair:
     """
     if sc.path.is_hub:
         return solve_hub_scenario(sc)
+    return solve_track_scenario(sc)
+
+
+def solve_track_scenario(sc: Scenario) -> RollingPair:
+    """Solve the scenario's wheel and track on a straight path (no hub).
+
+    Parameters
+    ----------
+    sc : Scenario
+        Validated scenario with ``path.kind = "line"`` and a ``[wheel]`` shape or a ``[track]``.
+
+    Returns
+    -------
+    RollingPair
+    """
+    if sc.path.is_hub:
+        raise ScenarioError("path.kind = \"hub\" has no track to solve; use solve_hub_scenario")
     if sc.wheel is not None and sc.wheel.shape is not None:
         return _wrap("wheel", track_for, wheel_from_spec(sc.wheel))
+    if sc.track is None:
+        raise ScenarioError("the scenario needs a [wheel] with its shape or a [track]")
     t = track_from_spec(sc.track)
     if sc.track.depth_m is not None:
         return _wrap("track.depth_m", wheel_for, t, depth=sc.track.depth_m)

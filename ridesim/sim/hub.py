@@ -303,7 +303,7 @@ def run_carousel(pair, *, wheel_speed_rad_s: float = 2.0, turns: float = 1.0,
     carriage.angle = arm0
     wheel.angle = -spin0
     mu = math.sqrt(float(friction))
-    shapes = []
+    shapes: list[pymunk.Shape] = []
     for piece in _fan(_rim(pair.hub, rim_points)):
         if inside:  # a ring: its rim as segments, the inside open
             continue
@@ -313,9 +313,9 @@ def run_carousel(pair, *, wheel_speed_rad_s: float = 2.0, turns: float = 1.0,
     if inside:
         rim = _rim(pair.hub, 4 * rim_points)
         for p, q in zip(rim, np.roll(rim, -1, axis=0), strict=True):
-            sh = pymunk.Segment(static, (float(p[0]), float(p[1])), (float(q[0]), float(q[1])), 0.0)
-            sh.friction = mu
-            shapes.append(sh)
+            seg = pymunk.Segment(static, (float(p[0]), float(p[1])), (float(q[0]), float(q[1])), 0.0)
+            seg.friction = mu
+            shapes.append(seg)
     for piece in _fan(_rim(pair.wheel, rim_points)):
         sh = pymunk.Poly(wheel, [(float(x), float(y)) for x, y in piece])
         sh.friction = mu

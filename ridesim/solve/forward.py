@@ -13,7 +13,7 @@ import math
 
 import numpy as np
 
-from ridesim.errors import InputError
+from ridesim.errors import GeometryError, InputError
 from ridesim.model.track import Track
 from ridesim.model.wheel import Wheel
 from ridesim.solve.pair import CatenaryMap, Cusp, RollingPair, TableMap, make_cusps
@@ -113,6 +113,7 @@ def track_for(wheel: Wheel, *, path: str = "line") -> RollingPair:
     if wheel.is_round:
         k = 1
     round_wheel = wheel.is_round
+    rmap: CatenaryMap | TableMap
     if wheel.is_polygon:
         rmap = CatenaryMap(wheel, theta0)
         rev = rmap.x_span
@@ -128,6 +129,8 @@ def track_for(wheel: Wheel, *, path: str = "line") -> RollingPair:
         x_v = rmap.x_breaks[:-1]
         starts, _, _ = wheel.edge_lines()
         verts = wheel.vertices
+        if verts is None:
+            raise GeometryError("a polygon wheel needs its vertices")
         phis = np.mod(th_v - HALF_PI, TWO_PI)
         # Match each vertex by angle (the map list may be rotated).
         js = _nearest_angle(starts[:-1], th_v - HALF_PI)

@@ -28,6 +28,7 @@ tables of :mod:`ridesim.solve.table`.
 from __future__ import annotations
 
 import math
+from collections.abc import Callable
 
 import numpy as np
 
@@ -333,13 +334,13 @@ class HubPair:
         self._partner_body: Wheel | None = None  # built on first use
 
     # ---------------------------------------------------------------- angles
-    def _b(self, a: np.ndarray) -> np.ndarray:
+    def _b(self, a: np.ndarray | float) -> np.ndarray:
         m = self._map
         a = np.asarray(a, dtype=float)
         k = np.floor((a - m.a_lo) / m.a_span)
         return m.b_of_a(a - k * m.a_span) + k * m.b_span
 
-    def _a(self, b: np.ndarray) -> np.ndarray:
+    def _a(self, b: np.ndarray | float) -> np.ndarray:
         m = self._map
         b = np.asarray(b, dtype=float)
         k = np.floor((b - m.b_lo) / m.b_span)
@@ -597,6 +598,7 @@ def _closing_distance(own: Wheel, mode: str, target: float) -> float:
         lo_base, hi = 0.0, rmin
     scale = rmax
 
+    rules: list[Callable[[float], float]]
     if own.is_polygon:
         def turn(E: float) -> float:
             return _turn_closed_form(own, sgn * E, c1)
@@ -605,9 +607,12 @@ def _closing_distance(own: Wheel, mode: str, target: float) -> float:
         rules = []
         for level in range(8):
             rule = _TurnRule(own, level)
-            rules.append(lambda E, rule=rule: rule(sgn * E, c1))
 
-    root = None
+            def turn_by_rule(E: float, rule: _TurnRule = rule) -> float:
+                return rule(sgn * E, c1)
+            rules.append(turn_by_rule)
+
+    root: float | None = None
     for f in rules:
         def F(E: float, f=f) -> float:
             return f(E) - target
@@ -634,6 +639,8 @@ def _closing_distance(own: Wheel, mode: str, target: float) -> float:
         if root is not None and abs(new - root) <= 1e-14 * scale:
             return float(new)
         root = new
+    if root is None:  # not reached: rules holds at least one rule
+        raise ClosureError(f"no centre distance gives ratio {k:.9g}")
     return float(root)
 
 
@@ -646,7 +653,7 @@ def _build(own: Wheel, mode: str, E: float, target: float | None, *, swapped: bo
     a0 = (phi_min + HALF_PI + math.pi) % TWO_PI - math.pi  # as the line solve: in [-π, π)
     if own.is_round:
         a0 = 0.0  # any angle will do: start the count at zero
-        rmap = _RoundMap(rmax, c0 + c1 * rmax, a0)
+        rmap: _RoundMap | _EdgeMap | _TableMap = _RoundMap(rmax, c0 + c1 * rmax, a0)
     elif own.is_polygon:
         rmap = _EdgeMap(own, c0, c1, a0)
     else:

@@ -373,7 +373,7 @@ class RollingPair:
             ``closure_gap_rad``, ``solved_from`` (``wheel`` or ``track``) and ``wheel``.
         """
         dmin, dmax = self.depth_range()
-        out = {
+        out: dict[str, object] = {
             "solved_from": "track" if self.track.kind != "solved" else "wheel",
             "period_m": float(self.track.period),
             "revolution_length_m": float(self.revolution_length),

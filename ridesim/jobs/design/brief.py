@@ -78,6 +78,12 @@ class Variable:
         """True for a continuous range, False for discrete choices."""
         return self.low is not None
 
+    def bounds(self) -> tuple[float, float]:
+        """The ends ``(low, high)`` of a continuous range, in the key's unit."""
+        if self.low is None or self.high is None:
+            raise _fail(f"{self.key}: a list of choices has no range; give low and high")
+        return self.low, self.high
+
     def describe(self) -> str:
         """The variable as one line, e.g. ``wheel.apothem_m in [0.08, 0.2]``."""
         if self.continuous:
@@ -414,7 +420,7 @@ def _probe(base: Scenario, jobs: tuple[str, ...], variables: tuple[Variable, ...
 
     middle = {}
     for v in variables:
-        middle[v.key] = 0.5 * (v.low + v.high) if v.continuous else v.values[len(v.values) // 2]
+        middle[v.key] = 0.5 * sum(v.bounds()) if v.continuous else v.values[len(v.values) // 2]
     out = {}
     for job in jobs:
         for values in ({}, middle):

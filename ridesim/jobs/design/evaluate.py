@@ -18,7 +18,7 @@ import time
 from collections.abc import Callable
 from concurrent.futures import ProcessPoolExecutor
 from pathlib import Path
-from typing import Any
+from typing import Any, TextIO
 
 from ridesim._version import __version__
 from ridesim.errors import RidesimError, ScenarioError
@@ -121,8 +121,12 @@ class Evaluator:
         self.computed = 0
         self._journal_rows: dict[str, dict] = {}
         self._out = Path(out_dir) if out_dir is not None else None
-        self._journal = self._log = None
-        self._pool = self._client = self._local = None
+        self._journal: TextIO | None = None
+        self._log: TextIO | None = None
+        self._pool: ProcessPoolExecutor | None = None
+        # distributed.Client and LocalCluster once --cluster connects (Dask is optional, untyped)
+        self._client: Any = None
+        self._local: Any = None
         if self._out is not None:
             self._out.mkdir(parents=True, exist_ok=True)
             self._journal_rows = read_journal(self._out)
@@ -178,7 +182,7 @@ class Evaluator:
 
     def _record(self, row: dict) -> None:
         elapsed = row.pop("elapsed_s", 0.0)
-        if self._journal is not None:
+        if self._journal is not None and self._log is not None:  # both open with an out_dir
             self._journal.write(json.dumps(row, sort_keys=True) + "\n")
             self._journal.flush()
             os.fsync(self._journal.fileno())

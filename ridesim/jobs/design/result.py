@@ -20,6 +20,7 @@ from dataclasses import dataclass, field
 from pathlib import Path
 from typing import Any
 
+from ridesim.errors import InputError
 from ridesim.jobs.design.brief import Brief, load_brief
 from ridesim.jobs.design.evaluate import Evaluator
 from ridesim.jobs.design.search import Judged, SearchOutcome, run_search
@@ -70,7 +71,7 @@ def scenario_toml(data: dict, header: list[str]) -> str:
     return text
 
 
-def pareto_front(designs: list[Judged], sense: tuple[int, int]) -> list[Judged]:
+def pareto_front(designs: list[Judged], sense: tuple[int, ...]) -> list[Judged]:
     """The feasible designs no other feasible design beats on both goals.
 
     Parameters
@@ -85,6 +86,8 @@ def pareto_front(designs: list[Judged], sense: tuple[int, int]) -> list[Judged]:
     list of Judged
         The front, in increasing order of the first goal (as minimised).
     """
+    if len(sense) != 2:
+        raise InputError(f"pareto_front: sense needs one sign per goal for two goals, got {sense!r}")
     pts = []
     for d in designs:
         if d.feasible and all(isinstance(g, (int, float)) and math.isfinite(g) for g in d.goals):
@@ -161,7 +164,8 @@ class DesignResult:
         for v in self.brief.variables:
             a, b = d.values[v.key], e.values[v.key]
             if v.continuous:
-                if abs(a - b) > 0.05 * (v.high - v.low):
+                low, high = v.bounds()
+                if abs(a - b) > 0.05 * (high - low):
                     return False
             elif a != b:
                 return False

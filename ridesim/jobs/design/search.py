@@ -301,18 +301,21 @@ def _sample_and_refine(s: _Search, cont: list, disc: list) -> tuple[str, dict]:
         first.append(design(row[:len(cont)], choice))
     s.run(first)
     n_first = len(s.order)
-    goal_ids = list(range(len(brief.goals))) or [None]
+    goal_ids: list[int | None] = list(range(len(brief.goals))) or [None]
     refine = brief.search["refine"]
     xtol = brief.search["xtol"]
     step0 = min(0.25, 1.0 / (2 ** m) ** (1.0 / len(cont)))
     for gi in goal_ids:
-        ranked = sorted((s.judged[i] for i in s.order), key=lambda j, gi=gi: (s.key(j, gi), j.order))
+        def rank(j: Judged, gi: int | None = gi) -> tuple:
+            return (s.key(j, gi), j.order)
+
+        ranked = sorted((s.judged[i] for i in s.order), key=rank)
         starts, seen = [], set()
         for j in ranked:
-            choice = tuple(j.values[v.key] for v in disc)
-            if choice in seen:
+            picked = tuple(j.values[v.key] for v in disc)
+            if picked in seen:
                 continue
-            seen.add(choice)
+            seen.add(picked)
             starts.append(j)
             if len(starts) >= refine:
                 break

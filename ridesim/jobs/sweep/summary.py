@@ -62,9 +62,10 @@ def best_cases(rows: list[dict[str, str]], metric: str, n: int = 5, *,
         cols = [c for c in rows[0] if c not in ("case", "error")]
         raise ScenarioError(f"--best {metric!r} is not a column of the table; use one of "
                             + ", ".join(cols[:12]) + (" ..." if len(cols) > 12 else ""))
-    ok = [r for r in rows if not r.get("error") and _num(r.get(metric, "")) is not None]
-    ok.sort(key=lambda r: _num(r[metric]), reverse=highest)
-    return ok[:n]
+    scored = [(x, r) for r in rows
+              if not r.get("error") and (x := _num(r.get(metric, ""))) is not None]
+    scored.sort(key=lambda xr: xr[0], reverse=highest)
+    return [r for _, r in scored[:n]]
 
 
 def plot_metric(rows: list[dict[str, str]], metric: str, params: list[str], path: str | Path) -> Path:
@@ -97,14 +98,20 @@ def plot_metric(rows: list[dict[str, str]], metric: str, params: list[str], path
     for p in [metric, *params]:
         if rows and p not in rows[0]:
             raise ScenarioError(f"{p!r} is not a column of the sweep table")
-    ok = [r for r in rows if not r.get("error") and _num(r[metric]) is not None
-          and all(_num(r[p]) is not None for p in params)]
+    ok: list[dict[str, float]] = []  # the rows whose metric and parameters are all numbers
+    for r in rows:
+        if r.get("error"):
+            continue
+        got = {p: _num(r[p]) for p in [metric, *params]}
+        nums = {p: v for p, v in got.items() if v is not None}
+        if len(nums) == len(got):
+            ok.append(nums)
     fig = Figure(figsize=(6.4, 4.0), dpi=100)
     FigureCanvasAgg(fig)
     ax = fig.subplots()
     if len(params) == 1:
-        xs = sorted({_num(r[params[0]]) for r in ok})
-        groups = {x: [_num(r[metric]) for r in ok if _num(r[params[0]]) == x] for x in xs}
+        xs = sorted({r[params[0]] for r in ok})
+        groups = {x: [r[metric] for r in ok if r[params[0]] == x] for x in xs}
         ax.plot(xs, [sum(v) / len(v) for v in groups.values()], "o-", color="#1f5f8b")
         if any(len(v) > 1 for v in groups.values()):
             ax.fill_between(xs, [min(v) for v in groups.values()], [max(v) for v in groups.values()],
@@ -113,8 +120,8 @@ def plot_metric(rows: list[dict[str, str]], metric: str, params: list[str], path
         ax.set_xlabel(params[0])
         ax.set_ylabel(metric)
     else:
-        sc = ax.scatter([_num(r[params[0]]) for r in ok], [_num(r[params[1]]) for r in ok],
-                        c=[_num(r[metric]) for r in ok], cmap="viridis", s=60)
+        sc = ax.scatter([r[params[0]] for r in ok], [r[params[1]] for r in ok],
+                        c=[r[metric] for r in ok], cmap="viridis", s=60)
         fig.colorbar(sc, ax=ax, label=metric)
         ax.set_xlabel(params[0])
         ax.set_ylabel(params[1])
