@@ -17,7 +17,7 @@ import numpy as np
 
 from ridesim.errors import InputError
 from ridesim.export.results import write_bytes_atomic, write_text_atomic
-from ridesim.render.style import COLOURS, SERIES_COLOURS, new_figure, series_style, style_context
+from ridesim.render.style import COLOURS, DPI, SERIES_COLOURS, new_figure, series_style, style_context
 
 __all__ = [
     "plot_wheel",
@@ -131,7 +131,7 @@ def _wheel_title(wheel) -> str:
         return f"{what}, corners rounded to {p['corner_radius_m'] * 1000:.3g} mm"
     if wheel.kind == "ellipse":
         a, b = p["semi_axes_m"]
-        return f"ellipse {a * 1000:.1f} × {b * 1000:.1f} mm (semi-axes)"
+        return f"ellipse, semi-axes {a * 1000:.1f} × {b * 1000:.1f} mm"
     if wheel.kind == "circle":
         return f"circle, radius {p['radius_m'] * 1000:.1f} mm"
     if wheel.kind == "polar":
@@ -415,6 +415,47 @@ def _series_arrays(t_s, series: Mapping) -> list[tuple[str, np.ndarray, np.ndarr
     return out
 
 
+
+def _covered_by(tt, yy, kind: str, drawn) -> str | None:
+    """Label of an earlier series of the same kind that ``yy`` lies on (within 1 % of its range)."""
+    for label, k, t0, y0 in drawn:
+        if k != kind or len(t0) != len(tt) or not np.array_equal(t0, tt):
+            continue
+        span = float(np.ptp(y0)) if len(y0) else 0.0
+        if span > 0 and float(np.max(np.abs(np.asarray(yy) - np.asarray(y0)))) <= 0.01 * span:
+            return label.split(" (on ")[0]
+    return None
+
+
+def _bulk_limits(ax, data, kinds) -> None:
+    """Y limits from the bulk of the data (0.5-99.5 percentiles), outliers marked at the edge.
+
+    A single spike (a contact step at t = 0) would otherwise stretch the axis and squash the
+    rest; points beyond the limits are drawn as small triangles on the axis edge.
+    """
+    ys = [np.asarray(yy, float) for _, _, yy in data]
+    allv = np.concatenate([y[np.isfinite(y)] for y in ys]) if ys else np.zeros(0)
+    if allv.size < 20:
+        return
+    lo, hi = np.percentile(allv, [0.5, 99.5])
+    full_lo, full_hi = float(allv.min()), float(allv.max())
+    span = max(hi - lo, 1e-12)
+    pad = 0.12 * span
+    if full_hi - full_lo <= 1.6 * span + 2 * pad:
+        return  # no outlier worth clipping
+    lo, hi = lo - pad, hi + pad
+    ax.set_ylim(lo, hi)
+    n_out = 0
+    for _, tt, yy in data:
+        tt, yy = np.asarray(tt, float), np.asarray(yy, float)
+        for side, mask, marker in ((hi, yy > hi, "^"), (lo, yy < lo, "v")):
+            if mask.any():
+                n_out += int(mask.sum())
+                ax.plot(tt[mask], np.full(int(mask.sum()), side), linestyle="none", marker=marker,
+                        markersize=4, color=COLOURS["cusp"], clip_on=False, zorder=5)
+    ax.plot([], [], linestyle="none", marker="^", markersize=4, color=COLOURS["cusp"],
+            label=f"beyond the axis ({n_out} samples, to {full_lo:.3g} / {full_hi:.3g})")
+
 def plot_series(t_s, series: Mapping, path: str | Path, ylabel: str, title: str, *,
                 xlabel: str = "time [s]", kinds: Mapping[str, str] | None = None,
                 size_px: Sequence[int] = (1400, 750), svg: bool = False,
@@ -461,6 +502,7 @@ def plot_series(t_s, series: Mapping, path: str | Path, ylabel: str, title: str,
     with style_context():
         fig = new_figure(size)
         ax = fig.add_subplot()
+        drawn: list[tuple[str, str, np.ndarray, np.ndarray]] = []
         for label, tt, yy in data:
             kind = kinds.get(label)
             if kind is None:
@@ -470,7 +512,15 @@ def plot_series(t_s, series: Mapping, path: str | Path, ylabel: str, title: str,
             kw = series_style(kind)
             if kind == "limit":
                 kw["color"] = COLOURS["cusp"]
+            under = _covered_by(tt, yy, kind, drawn)
+            if under is not None:
+                # A series lying on an earlier one would hide it: draw it dashed and thinner on
+                # top, and say so in the legend, so both stay visible.
+                kw.update(linestyle=(0, (3, 3)), linewidth=max(0.8, 0.7 * kw.get("linewidth", 1.4)))
+                label = f"{label} (on {under})"
             ax.plot(tt, yy, label=label, **kw)
+            drawn.append((label, kind, tt, yy))
+        _bulk_limits(ax, data, kinds)
         seen = set()
         for a, b, label in spans:
             ax.axvspan(float(a), float(b), color="0.6", alpha=0.2, lw=0,
@@ -481,7 +531,11 @@ def plot_series(t_s, series: Mapping, path: str | Path, ylabel: str, title: str,
         ax.set_title(title)
         ax.margins(x=0)
         if len(data) > 1 or data[0][0] or spans:
-            fig.legend(loc="outside upper right", ncols=min(4, len(data)))
+            # As many legend columns as fit the figure's width (about 7 px a character).
+            _, labels = ax.get_legend_handles_labels()
+            widest = max((len(lab) for lab in labels), default=1) + 6
+            fit = max(1, int(size[0] / (7.5 * widest * DPI / 150)))
+            fig.legend(loc="outside upper right", ncols=max(1, min(4, len(labels), fit)))
         png = _save(fig, path, svg)
     if caption is None:
         caption = f"{title}: " + ", ".join(lab for lab, _, _ in data) + f" against {xlabel}."
