@@ -70,7 +70,8 @@ figure img{max-height:120mm;width:auto}
 
 #: What to look for in each picture, by file stem (added after the picture's own caption).
 LOOK_FOR = {
-    "wheel": "The wheel's outline and axle; corners (red) are where it meets the track's cusps.",
+    "wheel": "The wheel's outline, its axle and centre of mass: a centre of mass off the axle"
+             " makes the torque and the friction demand uneven.",
     "track": "The wheel in a few poses along the track: it should touch the track at one point"
              " and never cut into it; the axle (dashed) stays level on an ideal pair.",
     "roll": "The rolling contact: where the contact point sits on the wheel as it turns.",
@@ -86,7 +87,7 @@ LOOK_FOR = {
             " the contact solver, not the ride.",
     "comfort": "Where the vibration sits in frequency; the weighted bars count for comfort"
                " (ISO 2631-1 Wk peaks at 4-8 Hz).",
-    "clip": "The build rolling at its drive speed, with a scale bar and the time.",
+    "clip": "The build rolling at its drive speed: the axles should glide level over the track.",
 }
 
 # (suffix, unit shown, factor to the shown unit, most decimals shown). Longest suffixes
