@@ -18,6 +18,8 @@ MODULES = [
     "ridesim.model.expr",
     "ridesim.model.tolerance",
     "ridesim.roots",
+    "ridesim.render.report",
+    "ridesim.render.clip",
 ]
 
 

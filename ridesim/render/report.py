@@ -18,7 +18,8 @@ import html
 import math
 from pathlib import Path
 
-__all__ = ["report_page", "format_figure", "format_value", "flatten", "unit_of", "LOOK_FOR"]
+__all__ = ["report_page", "format_figure", "format_value", "flatten", "unit_of", "axis_label",
+           "LOOK_FOR"]
 
 _CSS = """
 *{box-sizing:border-box}
@@ -138,6 +139,36 @@ def unit_of(key: str) -> tuple[str, float, int]:
         if name.endswith(suffix):
             return unit, factor, decimals
     return "", 1.0, _PLAIN_DECIMALS
+
+
+def axis_label(key: str) -> tuple[str, float]:
+    """A readable axis label for a figure's key and the factor to its reading unit.
+
+    Parameters
+    ----------
+    key : str
+        Key or column name with its SI unit suffix (``wheel.apothem_m``).
+
+    Returns
+    -------
+    (str, float)
+        Label such as ``"wheel apothem [mm]"`` and the factor to multiply values by.
+
+    Examples
+    --------
+    >>> axis_label("wheel.apothem_m")
+    ('wheel apothem [mm]', 1000.0)
+    >>> axis_label("comfort.weighted_rms_m_s2")[0], axis_label("friction.required_peak")[0]
+    ('comfort weighted rms [m/s²]', 'friction required peak')
+    """
+    unit, factor, _ = unit_of(key)
+    name = key
+    for suffix, u, _, _ in _UNITS:
+        if u == unit and key.endswith(suffix):
+            name = key[: -len(suffix)]
+            break
+    words = name.replace(".", " ").replace("_", " ").strip()
+    return (f"{words} [{unit}]" if unit else words), factor
 
 
 def _number(x: float, max_decimals: int) -> str:
