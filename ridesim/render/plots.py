@@ -141,6 +141,17 @@ def _wheel_title(wheel) -> str:
     return f"{wheel.kind} outline"
 
 
+def _fit_title(ax, text: str, width_px: float, share: float = 1.0) -> None:
+    """Set a title wrapped to the width it has (11 pt bold: about 14 px a character at 150 dpi).
+
+    ``share`` is the fraction of the figure's width the axes' title may use.
+    """
+    import textwrap
+
+    per_line = max(20, int(share * width_px / (14.0 * DPI / 150.0)))
+    ax.set_title(textwrap.fill(text, per_line, break_on_hyphens=False))
+
+
 def _cusp_points(pair, x0: float, x1: float, kind: str = "valley") -> np.ndarray:
     """Track corners of one kind (see :class:`ridesim.solve.pair.Cusp`) between x0 and x1 [m]."""
     rev = pair.revolution_length
@@ -226,7 +237,7 @@ def plot_wheel(pair, path: str | Path, *, mass=None, size_px: Sequence[int] = (1
         ax.set_aspect("equal", adjustable="box")
         ax.set_xlabel("x in the wheel frame [mm]")
         ax.set_ylabel("y in the wheel frame [mm]")
-        ax.set_title(f"Wheel: {_wheel_title(w)}")
+        _fit_title(ax, f"Wheel: {_wheel_title(w)}", size[0], share=0.62)
         ext = hi - lo
         info = [f"r_min  {rmin * 1000:.1f} mm", f"r_max  {rmax * 1000:.1f} mm",
                 f"width  {ext[0]:.1f} mm", f"height {ext[1]:.1f} mm", "",
@@ -244,7 +255,7 @@ def plot_wheel(pair, path: str | Path, *, mass=None, size_px: Sequence[int] = (1
     return png, caption
 
 
-def plot_track(pair, path: str | Path, periods: float = 2.5, poses: int = 5, *,
+def plot_track(pair, path: str | Path, periods: float = 2.5, poses: int = 3, *,
                size_px: Sequence[int] | None = None, svg: bool = False) -> tuple[Path, str]:
     """The track over a few periods with its cusps, and the wheel at several poses.
 
@@ -255,9 +266,9 @@ def plot_track(pair, path: str | Path, periods: float = 2.5, poses: int = 5, *,
     path : str or Path
         PNG file to write.
     periods : float
-        Track periods to show (at least 2).
+        Track periods to show (at least 2); more when the poses need room not to overlap.
     poses : int
-        Number of wheel poses drawn (0 to 12).
+        Number of wheel poses drawn (0 to 12), spaced so that the wheels do not overlap.
     size_px : (int, int), optional
         Picture size [px]; default 1600 wide with a height that suits the geometry.
     svg : bool
@@ -276,7 +287,16 @@ def plot_track(pair, path: str | Path, periods: float = 2.5, poses: int = 5, *,
     P = pair.track.period
     L = periods * P
     rmin, rmax, _ = w.extremes()
-    xs = np.linspace(0.0, L, poses + 2)[1:-1] if poses else np.zeros(0)
+    # Poses side by side, clear of each other (wheels 2 r_max wide and a gap), each a further
+    # 1/poses of a period along so together they show the whole roll of one period.
+    if poses:
+        step = math.ceil(2.1 * rmax / P) * P + P / poses
+        first = math.ceil(1.05 * rmax / P) * P + 0.1 * P
+        xs = first + step * np.arange(poses)
+        L = max(L, float(xs[-1]) + 1.05 * rmax)
+        periods = L / P
+    else:
+        xs = np.zeros(0)
     x0 = min(0.0, float(xs.min() - rmax) if poses else 0.0)
     x1 = max(L, float(xs.max() + rmax) if poses else L)
     prof = pair.track.polyline(x0, x1, 4000)
@@ -305,7 +325,7 @@ def plot_track(pair, path: str | Path, periods: float = 2.5, poses: int = 5, *,
             wp = posed_outline(pts, float(x), th) * 1000
             wp = np.vstack([wp, wp[:1]])
             colour = SERIES_COLOURS[k % len(SERIES_COLOURS)]  # one hue per pose keeps crossings legible
-            _fill(ax, wp[:, 0], wp[:, 1], color=colour, alpha=0.07, lw=0, zorder=4)
+            _fill(ax, wp[:, 0], wp[:, 1], color=colour, alpha=0.16, lw=0, zorder=4)
             ax.plot(wp[:, 0], wp[:, 1], color=colour, lw=1.3, zorder=5,
                     label=f"wheel at x = {x * 1000:.0f} mm", gid=f"wheel-pose-{k}")
             sp = posed_outline(np.array([[0.0, 0.0], ref]), float(x), th) * 1000
@@ -328,15 +348,15 @@ def plot_track(pair, path: str | Path, periods: float = 2.5, poses: int = 5, *,
         ax.set_ylim(base * 1000, top * 1000)
         ax.set_xlabel("x along the track [mm]")
         ax.set_ylabel("height [mm] (axle line at 0)")
-        ax.set_title(f"Track and wheel ({_wheel_title(w)}): period {P * 1000:.1f} mm,"
-                     f" {pair.lobes} period{'s' if pair.lobes != 1 else ''} per revolution")
+        _fit_title(ax, f"Track and wheel ({_wheel_title(w)}): period {P * 1000:.1f} mm,"
+                       f" {pair.lobes} period{'s' if pair.lobes != 1 else ''} per revolution", size[0])
         handles, labels = ax.get_legend_handles_labels()
         order = sorted(range(len(labels)), key=lambda i: labels[i].startswith("wheel at"))  # marks first
         fig.legend([handles[i] for i in order], [labels[i] for i in order], loc="outside lower center",
                    ncols=5 if len(cusps) else 4, fontsize=8)
         png = _save(fig, path, svg)
     cusp_txt = f"{len(pair.cusps)} cusps per revolution" if pair.cusps else "no cusps"
-    caption = (f"Track over {periods:g} periods of {P * 1000:.1f} mm ({cusp_txt}), depth"
+    caption = (f"Track over {periods:.3g} periods of {P * 1000:.1f} mm ({cusp_txt}), depth"
                f" {rmin * 1000:.1f} to {rmax * 1000:.1f} mm below the axle line, wheel at {poses} poses.")
     return png, caption
 
@@ -528,7 +548,7 @@ def plot_series(t_s, series: Mapping, path: str | Path, ylabel: str, title: str,
             seen.add(label)
         ax.set_xlabel(xlabel)
         ax.set_ylabel(ylabel)
-        ax.set_title(title)
+        _fit_title(ax, title, size[0])
         ax.margins(x=0)
         if len(data) > 1 or data[0][0] or spans:
             # As many legend columns as fit the figure's width (about 7 px a character).
