@@ -20,6 +20,7 @@ MODULES = [
     "ridesim.roots",
     "ridesim.render.report",
     "ridesim.render.clip",
+    "ridesim.model.display",
 ]
 
 

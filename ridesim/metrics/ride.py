@@ -863,6 +863,62 @@ class SimResult:
             bounce_trend=trend, findings=findings,
         )
 
+    def to_dataframe(self):
+        """The probe time series as a pandas DataFrame, one row a step (columns as in probes.csv).
+
+        Returns
+        -------
+        pandas.DataFrame
+            Columns such as ``time_s``, ``axle0_y_m``, ``shaft0_torque_Nm`` (units in the names).
+
+        Raises
+        ------
+        InputError
+            pandas is not installed (the ``dataframe`` extra).
+        """
+        from ridesim.model.display import require_pandas
+
+        pd = require_pandas()
+        return pd.DataFrame({k: np.asarray(v) for k, v in self.probes.columns().items()})
+
+    def plot(self, ax=None):
+        """Plot each motor's torque [N m] and each axle's height [mm] against time [s].
+
+        Parameters
+        ----------
+        ax : matplotlib.axes.Axes, optional
+            Axes for the torque; the heights go on a twin axis. New axes (pyplot) when None.
+
+        Returns
+        -------
+        matplotlib.axes.Axes
+        """
+        if ax is None:
+            import matplotlib.pyplot as plt
+
+            _, ax = plt.subplots(figsize=(8, 3.5))
+        pr = self.probes
+        for j in range(pr.shaft_torque_Nm.shape[1]):
+            ax.plot(pr.time_s, pr.shaft_torque_Nm[:, j], lw=0.8, label=f"shaft {j} torque")
+        ax.set_xlabel("time [s]")
+        ax.set_ylabel("motor torque [N·m]")
+        ax2 = ax.twinx()
+        for i in range(pr.axle_y_m.shape[1]):
+            ax2.plot(pr.time_s, 1000 * pr.axle_y_m[:, i], lw=0.8, ls="--", color=f"C{i + 3}",
+                     label=f"axle {i} height")
+        ax2.set_ylabel("axle height [mm]")
+        ax.set_title(f"{self.name}: torque and axle heights")
+        h1, l1 = ax.get_legend_handles_labels()
+        h2, l2 = ax2.get_legend_handles_labels()
+        ax.legend(h1 + h2, l1 + l2, fontsize=8, loc="upper right")
+        return ax
+
+    def _repr_html_(self) -> str:
+        """The figures as a table, for Jupyter."""
+        from ridesim.model.display import html_table
+
+        return html_table(self.to_dict(), f"simulation: {self.name}")
+
     def to_dict(self) -> dict:
         """The JSON contract of a simulation result (plain Python types, SI units in key names).
 

@@ -18,6 +18,9 @@ import html
 import math
 from pathlib import Path
 
+from ridesim.model.display import UNITS as _UNITS
+from ridesim.model.display import _number, format_figure, unit_of
+
 __all__ = ["report_page", "format_figure", "format_value", "flatten", "unit_of", "axis_label",
            "LOOK_FOR"]
 
@@ -91,56 +94,6 @@ LOOK_FOR = {
     "clip": "The build rolling at its drive speed: the axles should glide level over the track.",
 }
 
-# (suffix, unit shown, factor to the shown unit, most decimals shown). Longest suffixes
-# first so ``_m_s2`` wins over ``_m_s`` and ``_m``.
-_UNITS = (
-    ("_kg_m2", "kg·m²", 1.0, 7),
-    ("_kg_m3", "kg/m³", 1.0, 1),
-    ("_m_s175", "m/s^1.75", 1.0, 4),
-    ("_m_s2", "m/s²", 1.0, 4),
-    ("_rad_s", "rad/s", 1.0, 3),
-    ("_m_s", "m/s", 1.0, 4),
-    ("_rpm", "rpm", 1.0, 1),
-    ("_Nm", "N·m", 1.0, 5),
-    ("_rad", "deg", 180.0 / math.pi, 3),
-    ("_pct", "%", 1.0, 2),
-    ("_hz", "Hz", 1.0, 2),
-    ("_kg", "kg", 1.0, 4),
-    ("_W", "W", 1.0, 4),
-    ("_m", "mm", 1000.0, 3),
-    ("_s", "s", 1.0, 3),
-)
-_PLAIN_DECIMALS = 4  # figures without a unit: friction coefficients, ratios, counts of periods
-
-
-def unit_of(key: str) -> tuple[str, float, int]:
-    """Unit a figure is shown in, from its key's unit suffix.
-
-    Parameters
-    ----------
-    key : str
-        Dotted key path, the unit in the last name (``clearance.min_m``).
-
-    Returns
-    -------
-    (str, float, int)
-        Unit shown (``""`` for a plain number), factor from the key's SI unit to it, and
-        the most decimals shown (the resolution that matters: 0.001 mm, 0.001 deg, ...).
-
-    Examples
-    --------
-    >>> unit_of("clearance.min_m")
-    ('mm', 1000.0, 3)
-    >>> unit_of("speed.mean_m_s")[0], unit_of("window_s")[0], unit_of("friction.available")[0]
-    ('m/s', 's', '')
-    """
-    name = key.split(".")[-1].split("[")[0]
-    for suffix, unit, factor, decimals in _UNITS:
-        if name.endswith(suffix):
-            return unit, factor, decimals
-    return "", 1.0, _PLAIN_DECIMALS
-
-
 def axis_label(key: str) -> tuple[str, float]:
     """A readable axis label for a figure's key and the factor to its reading unit.
 
@@ -169,72 +122,6 @@ def axis_label(key: str) -> tuple[str, float]:
             break
     words = name.replace(".", " ").replace("_", " ").strip()
     return (f"{words} [{unit}]" if unit else words), factor
-
-
-def _number(x: float, max_decimals: int) -> str:
-    """Fixed-point text of a number: four significant digits, at most ``max_decimals``."""
-    if not math.isfinite(x):
-        return "none"
-    ax = abs(x)
-    if ax >= 1000.0:
-        text = f"{x:,.0f}"
-    else:
-        decimals = max_decimals if ax == 0.0 else 3 - math.floor(math.log10(ax))
-        text = f"{x:.{min(max(decimals, 0), max_decimals)}f}"
-    if text.startswith("-") and not text.strip("-0.,"):
-        text = text[1:]  # a residue below the resolution: no "-0.000"
-    return text
-
-
-def format_figure(key: str, v) -> str:
-    """Text of one JSON figure as the report shows it: unit from the key, sensible digits.
-
-    Floats are shown fixed-point in the key's reading unit (metres as millimetres, radians
-    as degrees) with four significant digits, never finer than the unit's resolution, so a
-    floating-point residue reads as zero: a clearance of 6e-12 m is ``0.000 mm``.
-
-    Parameters
-    ----------
-    key : str
-        Dotted key path (gives the unit).
-    v : object
-        A JSON value.
-
-    Returns
-    -------
-    str
-
-    Examples
-    --------
-    >>> format_figure("clearance.min_m", 5.99998e-12)
-    '0.000 mm'
-    >>> format_figure("torque.mean_Nm", -1.23e-17), format_figure("speed_m_s", 0.4)
-    ('0.00000 N·m', '0.4000 m/s')
-    >>> format_figure("torque.by_phase.startup.window_s", [0.0, 2.0])
-    '0.000, 2.000 s'
-    """
-    if v is None:
-        return "none"
-    if isinstance(v, bool):
-        return "yes" if v else "no"
-    unit, factor, decimals = unit_of(key)
-    if isinstance(v, (list, tuple)):
-        if not v:
-            return "none"
-        if all(isinstance(x, (int, float)) and not isinstance(x, bool) for x in v):
-            body = ", ".join(_num_text(x, factor, decimals, unit) for x in v)
-            return f"{body} {unit}" if unit else body
-        return ", ".join(format_figure(key, x) for x in v)
-    if isinstance(v, (int, float)):
-        body = _num_text(v, factor, decimals, unit)
-        return f"{body} {unit}" if unit else body
-    return str(v)
-
-
-def _num_text(x, factor: float, decimals: int, unit: str) -> str:
-    if isinstance(x, int) and not unit:
-        return str(x)
-    return _number(float(x) * factor, decimals)
 
 
 def format_value(v) -> str:

@@ -8,7 +8,7 @@ from pathlib import Path
 
 from ridesim.errors import ScenarioError
 
-__all__ = ["read_table", "best_cases", "plot_metric"]
+__all__ = ["read_table", "read_results", "best_cases", "plot_metric"]
 
 
 def read_table(path: str | Path) -> list[dict[str, str]]:
@@ -130,3 +130,33 @@ def plot_metric(rows: list[dict[str, str]], metric: str, params: list[str], path
         buf = io.BytesIO()
         fig.savefig(buf, format="png")
     return write_bytes_atomic(path, buf.getvalue())
+
+
+def read_results(out_dir: str | Path):
+    """A sweep's results table (``results.csv`` in its output folder) as a pandas DataFrame.
+
+    Parameters
+    ----------
+    out_dir : str or Path
+        The sweep's output folder (or the ``results.csv`` itself).
+
+    Returns
+    -------
+    pandas.DataFrame
+        One row a case; numbers parsed, unit-suffixed column names as in the table.
+
+    Raises
+    ------
+    InputError
+        pandas is not installed (the ``dataframe`` extra), or there is no table.
+    """
+    from ridesim.errors import InputError
+    from ridesim.model.display import require_pandas
+
+    pd = require_pandas()
+    path = Path(out_dir)
+    if path.is_dir():
+        path = path / "results.csv"
+    if not path.is_file():
+        raise InputError(f"no sweep results table at {path}: run `ridesim sweep` with --out there")
+    return pd.read_csv(path)
