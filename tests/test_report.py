@@ -182,3 +182,18 @@ def test_renders_in_headless_chromium(report, tmp_path):
         assert im.size == (w, h)
         assert len(im.resize((w // 4, h // 4)).getcolors(maxcolors=1 << 16) or []) > 16  # drawn
         assert _has_colour(im, green), f"no verdict on the first {w}x{h} screen"
+
+
+def test_a_changed_scenario_is_shown_as_run_not_as_its_file(tmp_path):
+    """A scenario changed after loading is written from its values, and that TOML loads back."""
+    from ridesim.render.report import scenario_toml
+
+    sc = load_scenario(SCENARIO).replace("surface.friction", 0.9)
+    text = scenario_toml(sc)
+    assert "friction = 0.9" in text and "# Hexagon trolley" not in text
+    (tmp_path / "as_run.toml").write_text(text, encoding="utf-8")
+    again = load_scenario(tmp_path / "as_run.toml").to_dict()
+    mine = sc.to_dict()
+    again.pop("name"), mine.pop("name")  # the name comes from the file name
+    assert again == mine
+    assert scenario_toml(load_scenario(SCENARIO)) == SCENARIO.read_text(encoding="utf-8")

@@ -394,8 +394,24 @@ def _toml_value(v) -> str:
     return repr(v)
 
 
+def _as_written(sc) -> bool:
+    """True when the scenario is exactly what its file loads to (not changed since)."""
+    src = getattr(sc, "source", None)
+    if src is None or not Path(src).is_file():
+        return False
+    try:
+        from ridesim.scenario.load import load_scenario
+
+        return load_scenario(src).to_dict() == sc.to_dict()
+    except Exception:  # noqa: BLE001 -- a file that no longer loads is not the scenario shown
+        return False
+
+
 def scenario_toml(sc) -> str:
-    """The scenario as TOML: its file's own text when it came from a file.
+    """The scenario as TOML: its file's own text when it is exactly what the file loads to.
+
+    A scenario changed after loading (a sweep case, ``Scenario.replace``) is written out
+    from its values instead, so the page never shows a file that is not what was run.
 
     Parameters
     ----------
@@ -406,12 +422,8 @@ def scenario_toml(sc) -> str:
     -------
     str
     """
-    src = getattr(sc, "source", None)
-    if src is not None:
-        try:
-            return Path(src).read_text(encoding="utf-8")
-        except OSError:
-            pass
+    if _as_written(sc):
+        return Path(sc.source).read_text(encoding="utf-8")
     d = sc.to_dict()
     lines = [f"{k} = {_toml_value(v)}" for k, v in d.items()
              if not isinstance(v, dict) and v is not None and k != "name"]
@@ -482,7 +494,9 @@ def report_page(sc, figures: dict, items) -> str:
                          ("simulate", "Simulation")):
         if block in figures:
             parts.append(f"<h3>{title}</h3>" + _appendix_table(block, figures[block]))
-    parts.append("<h3>The scenario</h3>"
-                 + (f"<p class=muted>As written in {_e(Path(src).name)}.</p>" if src else "")
+    note = (f"As written in {_e(Path(src).name)}." if _as_written(sc) else
+            f"Changed from {_e(Path(src).name)}: as run, every key given." if src else
+            "As run, every key given.")
+    parts.append("<h3>The scenario</h3>" + f"<p class=muted>{note}</p>"
                  + "<pre>" + _e(scenario_toml(sc)) + "</pre></section></main></body></html>")
     return "\n".join(parts)
