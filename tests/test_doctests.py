@@ -22,6 +22,9 @@ MODULES = [
     "ridesim.assess.findings",
     "ridesim.assess.wording",
     "ridesim.roots",
+    "ridesim.render.report",
+    "ridesim.render.clip",
+    "ridesim.model.display",
 ]
 
 

@@ -329,6 +329,31 @@ def test_comfort_report_flags_shocks():
     assert any("shocks" in c for c in r.cautions)
 
 
+
+def test_record_from_rest_is_the_filter_started_at_rest():
+    """A record that starts from rest: the weighting started at rest is the true response.
+
+    Causality of a linear time-invariant filter (Oppenheim & Schafer, "Discrete-Time Signal
+    Processing", ch. 2): zeros before the record change nothing after it, so the figures of
+    the record equal those of the same record preceded by 10 s of rest and cut after them,
+    and no caution about a short settle_s is due.
+    """
+    t = T[:6000]
+    z = 0.3 * np.sin(TWO_PI * 5.0 * t) * np.minimum(t / 0.5, 1.0) + 0.1  # offset kept
+    x = 0.2 * np.sin(TWO_PI * 1.5 * t) * np.minimum(t / 0.5, 1.0)
+    r = rc.comfort_report(z, x, FS, settle_s=1.0, from_rest=True)
+    pad = np.zeros(int(10 * FS))
+    zz, xx = np.concatenate([pad, z]), np.concatenate([pad, x])
+    awz = rc.weight(zz, FS, "k", remove_mean=False)[pad.size + 1000:]
+    awx = rc.weight(xx, FS, "d", remove_mean=False)[pad.size + 1000:]
+    assert r.weighted_rms_m_s2 == pytest.approx(float(np.sqrt(np.mean(awz**2))), rel=1e-6)
+    assert r.weighted_rms_horizontal_m_s2 == pytest.approx(float(np.sqrt(np.mean(awx**2))),
+                                                           rel=1e-6)
+    assert not any("settle_s" in c for c in r.cautions)
+    cut = rc.comfort_report(z, x, FS, settle_s=1.0)  # a record cut from a longer motion
+    assert any("settle_s" in c for c in cut.cautions)
+
+
 # ----------------------------------------------------------------------------- spectrum
 
 

@@ -1,6 +1,8 @@
-"""The HTML report: self-contained, every JSON figure shown, renders in headless Chromium."""
+"""The HTML report: reads top-down, every JSON figure shown formatted, renders in headless Chromium."""
 
 import base64
+import html
+import math
 import re
 import shutil
 import subprocess
@@ -9,48 +11,119 @@ from pathlib import Path
 import pytest
 
 from ridesim.jobs.report import write_report
-from ridesim.render.report import flatten
+from ridesim.render.report import flatten, format_figure
 from ridesim.scenario.load import load_scenario
 
 ROOT = Path(__file__).resolve().parent.parent
+SCENARIO = ROOT / "scenarios" / "hexagon_trolley.toml"
+SENTENCES = ("cautions", "reasons", "notes")
+# A number in scientific notation (5.99998e-12, 1E+03): never in the page's own text.
+SCI = re.compile(r"\b\d+(?:\.\d+)?[eE][+-]?\d+\b")
+CHROMIUM = shutil.which("chromium") or shutil.which("chromium-browser")
 
 
 @pytest.fixture(scope="module")
 def report(tmp_path_factory):
     out = tmp_path_factory.mktemp("report")
-    sc = load_scenario(ROOT / "scenarios" / "hexagon_trolley.toml")
-    page, figures = write_report(sc, out, simulate=False, clip_s=1.0)
+    sc = load_scenario(SCENARIO)
+    page, figures = write_report(sc, out, simulate=True, clip_s=0.5)
     return page, figures, page.read_text(encoding="utf-8")
 
 
-def shown(v):
-    """How a figure must read in the page (six significant digits; yes/no; none)."""
-    if v is None:
-        return "none"
-    if isinstance(v, bool):
-        return "yes" if v else "no"
-    if isinstance(v, float):
-        return f"{v:.6g}"
-    if isinstance(v, list):
-        return ", ".join(shown(x) for x in v)
-    return str(v)
+# ----------------------------------------------------------------------------- formatting
 
 
-def test_every_json_figure_appears_in_the_page(report):
-    page, figures, text = report
-    text = text.replace("&#x27;", "'").replace("&quot;", '"').replace("&amp;", "&")
+@pytest.mark.parametrize("key, value, text", [
+    # The issue's own example: a floating-point residue of a touching contact reads as zero.
+    ("clearance.min_m", 5.99998e-12, "0.000 mm"),
+    ("torque.mean_Nm", 1.23e-17, "0.00000 N·m"),
+    ("torque.mean_Nm", -1.23e-17, "0.00000 N·m"),  # no "-0.00000"
+    # Unit conversions: 1 m = 1000 mm; pi/6 rad = 30 deg (definition of the radian).
+    ("pair.period_m", 0.13183347464017314, "131.8 mm"),
+    ("cusps.opening_angle_min_rad", math.pi / 6, "30.00 deg"),
+    ("speed_m_s", 0.4, "0.4000 m/s"),
+    ("max_shaft_speed_rpm", 31.830988618379084, "31.8 rpm"),
+    ("gears[3].motor_max_speed_rpm", 3183.098848597183, "3,183 rpm"),
+    ("window_s", [22.0, 23.0], "22.00, 23.00 s"),
+    ("friction.available", 0.7, "0.7000"),
+    ("cusps.count", 6, "6"),
+    ("clearance.interferes", False, "no"),
+    ("slip.onset_time_s", None, "none"),
+    ("gears[1].limits", [], "none"),
+])
+def test_format_figure(key, value, text):
+    assert format_figure(key, value) == text
+
+
+def test_format_figure_never_writes_scientific_notation():
+    for key in ("x_m", "x_Nm", "x_rad", "x_m_s2", "x_W", "x"):
+        for v in (1e-300, -3e-17, 6e-12, 1e-4, 123456.7, 9.99e8):
+            assert not SCI.search(format_figure(key, v)), (key, v)
+
+
+# ----------------------------------------------------------------------------- the page
+
+
+def _visible_text(page_html: str, keep_pre: bool = False) -> str:
+    body = page_html.split("<body", 1)[1]
+    body = re.sub(r"<style.*?</style>", " ", body, flags=re.S)
+    if not keep_pre:
+        body = re.sub(r"<pre>.*?</pre>", " ", body, flags=re.S)  # the user's own scenario text
+    body = re.sub(r"<[^>]+>", " ", body)
+    return html.unescape(body)
+
+
+def test_page_reads_top_down(report):
+    _, figures, text = report
+    order = ["id=verdict", "The build at a glance", "<h2>Pictures", "<h2>Motor sizing",
+             "<h2>Ride comfort", "<h2>Findings and cautions", "<h2>Appendix"]
+    where = [text.find(s) for s in order]
+    assert all(w >= 0 for w in where) and where == sorted(where), dict(zip(order, where, strict=True))
+    assert "It rolls as designed" in text
+    # Motor sizing: one row per motor, and the duty cycle's phases.
+    for m in figures["size_motor"]["motors"]:
+        assert f"<td>{m['name']}</td>" in text
+    for phase in figures["size_motor"]["by_phase"]:
+        assert f"<td>{phase}</td>" in text
+    # Comfort: its band is named and marked in the ISO 2631-1 Annex C table.
+    band = figures["simulate"]["comfort"]["band"]
+    assert f"<tr class=hit><td class=n>less than 0.315 m/s²</td><td>{band}</td>" in text
+    # Backticks of the findings become code, not literal backticks.
+    assert "`" not in _visible_text(text)
+
+
+def test_every_json_figure_appears_formatted(report):
+    _, figures, text = report
     missing = []
-    for block in ("check", "size_motor"):
+    for block in ("check", "size_motor", "simulate"):
         for key, v in flatten(figures[block]):
-            if key.split(".")[-1] in ("cautions", "reasons", "notes"):
-                for s in v:  # sentences are shown in the lists
-                    if s not in text:
+            if key.split(".")[-1] in SENTENCES:
+                for s in v:  # sentences are shown in the findings and cautions
+                    if html.escape(s.replace("`", "")) not in text.replace("<code>", "").replace(
+                            "</code>", ""):
                         missing.append((key, s[:40]))
                 continue
-            row = f"<th>{key}</th><td class=v>{shown(v)}</td>"
+            row = f"<tr><th>{html.escape(key)}</th><td>{html.escape(format_figure(key, v))}</td></tr>"
             if row not in text:
-                missing.append((key, shown(v)))
+                missing.append((key, format_figure(key, v)))
     assert not missing, missing[:5]
+
+
+def test_no_scientific_notation_and_the_scenario_as_written(report):
+    _, _, text = report
+    seen = _visible_text(text)
+    assert not SCI.findall(seen), SCI.findall(seen)[:5]
+    # The scenario is the user's TOML file, comments and all, not a JSON dump.
+    toml = SCENARIO.read_text(encoding="utf-8")
+    assert html.escape(toml) in text
+
+
+def test_default_settings_raise_no_caution_about_themselves(report):
+    """hexagon_trolley leaves run.settle_s and run.timestep_s at their defaults."""
+    _, figures, _ = report
+    for block in figures.values():
+        for c in block.get("cautions", []):
+            assert "settle_s" not in c and "timestep_s =" not in c, c
 
 
 def test_page_is_self_contained(report):
@@ -64,25 +137,63 @@ def test_page_is_self_contained(report):
         raw = base64.b64decode(data)
         assert raw[:4] in (b"\x89PNG", b"GIF8")
     assert "licensed engineer" in text  # the cautions are there
-    assert 'name=viewport' in text and "@media print" in text
+    assert 'name=viewport' in text and "@media print" in text and "break-before:page" in text
 
 
-@pytest.mark.skipif(shutil.which("chromium") is None and shutil.which("chromium-browser") is None,
-                    reason="headless Chromium is not installed here")
-def test_renders_in_headless_chromium(report, tmp_path):
-    page, _, _ = report
-    exe = shutil.which("chromium") or shutil.which("chromium-browser")
+# ----------------------------------------------------------------------------- in a browser
+
+
+def _chromium(tmp_path, *args):
     flags = ["--headless", "--no-sandbox", "--disable-gpu", "--disable-quic", "--no-first-run",
              "--disable-background-networking", "--disable-component-update", "--disable-sync",
-             f"--user-data-dir={tmp_path / 'profile'}"]
-    dom = subprocess.run([exe, *flags, "--dump-dom", page.as_uri()], capture_output=True,
-                         text=True, timeout=120)
-    assert "It rolls" in dom.stdout and "hexagon_trolley" in dom.stdout
-    shot = tmp_path / "phone.png"
-    subprocess.run([exe, *flags, "--window-size=412,900", f"--screenshot={shot}", page.as_uri()],
-                   capture_output=True, timeout=120)
+             "--hide-scrollbars", f"--user-data-dir={tmp_path / 'profile'}"]
+    return subprocess.run([CHROMIUM, *flags, *args], capture_output=True, text=True, timeout=120)
+
+
+def _has_colour(im, rgb, tol=6, least=400):
+    """At least ``least`` pixels within ``tol`` of ``rgb`` (the verdict box's background)."""
+    n = 0
+    for count, (r, g, b) in im.getcolors(maxcolors=1 << 24):
+        if abs(r - rgb[0]) <= tol and abs(g - rgb[1]) <= tol and abs(b - rgb[2]) <= tol:
+            n += count
+    return n >= least
+
+
+@pytest.mark.skipif(CHROMIUM is None, reason="headless Chromium is not installed here")
+def test_renders_in_headless_chromium(report, tmp_path):
     from PIL import Image
 
-    im = Image.open(shot).convert("RGB")
-    assert im.size == (412, 900)
-    assert len(im.resize((103, 225)).getcolors(maxcolors=1 << 16) or []) > 16  # not blank
+    page, figures, _ = report
+    dom = _chromium(tmp_path, "--dump-dom", page.as_uri()).stdout
+    assert "It rolls as designed" in dom and "hexagon_trolley" in dom
+    seen = _visible_text(dom)
+    assert not SCI.findall(seen), SCI.findall(seen)[:5]
+    flat = " ".join(seen.split())
+    for block in ("check", "size_motor", "simulate"):
+        for key, v in flatten(figures[block]):
+            if key.split(".")[-1] not in SENTENCES:
+                assert f"{key} {format_figure(key, v)}".strip() in flat, key
+    # The verdict (its green box) is on the first screen of a desktop and of a phone.
+    green = (0xDF, 0xF3, 0xE4)
+    for w, h in ((1280, 800), (412, 900)):
+        shot = tmp_path / f"first_{w}.png"
+        _chromium(tmp_path, f"--window-size={w},{h}", f"--screenshot={shot}", page.as_uri())
+        im = Image.open(shot).convert("RGB")
+        assert im.size == (w, h)
+        assert len(im.resize((w // 4, h // 4)).getcolors(maxcolors=1 << 16) or []) > 16  # drawn
+        assert _has_colour(im, green), f"no verdict on the first {w}x{h} screen"
+
+
+def test_a_changed_scenario_is_shown_as_run_not_as_its_file(tmp_path):
+    """A scenario changed after loading is written from its values, and that TOML loads back."""
+    from ridesim.render.report import scenario_toml
+
+    sc = load_scenario(SCENARIO).replace("surface.friction", 0.9)
+    text = scenario_toml(sc)
+    assert "friction = 0.9" in text and "# Hexagon trolley" not in text
+    (tmp_path / "as_run.toml").write_text(text, encoding="utf-8")
+    again = load_scenario(tmp_path / "as_run.toml").to_dict()
+    mine = sc.to_dict()
+    again.pop("name"), mine.pop("name")  # the name comes from the file name
+    assert again == mine
+    assert scenario_toml(load_scenario(SCENARIO)) == SCENARIO.read_text(encoding="utf-8")

@@ -187,6 +187,6 @@ def test_plot_metric_keeps_the_callers_matplotlib_backend(tmp_path):
         matplotlib.use(before)
     data = out.read_bytes()
     # PNG signature and IHDR size (PNG specification, ISO/IEC 15948, 5.2 and 11.2.2):
-    # 6.4 x 4.0 in at 100 dpi is 640 x 400 px.
+    # the house style's figure of 1100 x 700 px (ridesim.render.style.new_figure).
     assert data[:8] == b"\x89PNG\r\n\x1a\n"
-    assert struct.unpack(">II", data[16:24]) == (640, 400)
+    assert struct.unpack(">II", data[16:24]) == (1100, 700)

@@ -159,6 +159,40 @@ class CheckResult:
             out["accel_m_s2"] = float(ac.accel_m_s2)
         return out
 
+    def plot(self, ax=None):
+        """Plot each motor's analytic torque [N m] over one revolution at steady speed.
+
+        Parameters
+        ----------
+        ax : matplotlib.axes.Axes, optional
+            Axes to draw on; new axes (pyplot) when None.
+
+        Returns
+        -------
+        matplotlib.axes.Axes
+        """
+        if ax is None:
+            import matplotlib.pyplot as plt
+
+            _, ax = plt.subplots(figsize=(8, 3.5))
+        st = self.steady
+        if st is not None:
+            import numpy as np
+
+            for k in range(len(st.motors)):
+                ax.plot(st.t_s, np.asarray(st.motor_torque_Nm[k]), label=f"motor {k}")
+            ax.legend(fontsize=8)
+        ax.set_xlabel("time over one revolution [s]")
+        ax.set_ylabel("motor torque [N·m]")
+        ax.set_title(f"{self.name}: {'rolls' if self.rollable else 'does not roll'}")
+        return ax
+
+    def _repr_html_(self) -> str:
+        """The figures as a table, for Jupyter."""
+        from ridesim.model.display import html_table
+
+        return html_table(self.to_dict(), f"check: {'rolls' if self.rollable else 'does not roll'}")
+
     def to_dict(self) -> dict:
         """The JSON contract: plain floats, bools, None, strings and lists.
 

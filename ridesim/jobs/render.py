@@ -173,7 +173,8 @@ def _sim_plots(sc, steady, out: Path, svg: bool, res, pair, mp):
         out / "seat.png", "seat acceleration [m/s²]", "Seat-point acceleration (simulated)",
         kinds={"vertical, raw steps": "raw"}, svg=svg,
         caption="Seat-point acceleration, gravity excluded: the raw 1 kHz record (faint; its"
-                " single-step spikes are contact chatter) and 10 ms averages."))
+                " single-step spikes are contact chatter) and 10 ms averages; the axis shows the"
+                " bulk of the record and triangles on its edge mark the samples beyond it."))
     try:
         spec = cf.spectrum(pr.seat_ay_m_s2, 1.0 / pr.dt_s, "k", settle_s=pr.settle_s)
         items.append(plot_spectrum(

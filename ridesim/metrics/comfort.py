@@ -302,7 +302,8 @@ def weighting_gain(freq_hz: Any, weighting: str = "k") -> np.ndarray:
     return np.abs(weighting_response(freq_hz, weighting))
 
 
-def weight(accel_m_s2: Any, sample_rate_hz: float, weighting: str = "k") -> np.ndarray:
+def weight(accel_m_s2: Any, sample_rate_hz: float, weighting: str = "k", *,
+           remove_mean: bool = True) -> np.ndarray:
     """Frequency-weighted acceleration ``a_w(t)``: the record through ``Wk`` or ``Wd``.
 
     The record's mean is removed, then the record is weighted in the frequency
@@ -317,6 +318,9 @@ def weight(accel_m_s2: Any, sample_rate_hz: float, weighting: str = "k") -> np.n
         Sample rate [Hz], >= 16.
     weighting : {"k", "d"}
         ``"k"`` for ``Wk`` (vertical), ``"d"`` for ``Wd`` (horizontal).
+    remove_mean : bool
+        Remove the record's mean first (for a record cut from a longer motion). False for a
+        record that starts from rest, where the filter started at rest is the true response.
 
     Returns
     -------
@@ -338,7 +342,7 @@ def weight(accel_m_s2: Any, sample_rate_hz: float, weighting: str = "k") -> np.n
     m = fft.next_fast_len(n + math.ceil(_PAD_S * fs), real=True)
     f = fft.rfftfreq(m, d=1.0 / fs)
     resp = weighting_response(f, spec.name)
-    y = fft.irfft(fft.rfft(x - x.mean(), m) * resp, m)
+    y = fft.irfft(fft.rfft(x - x.mean() if remove_mean else x, m) * resp, m)
     return y[:n]
 
 
@@ -577,6 +581,8 @@ def comfort_report(
     seat_horizontal_m_s2: Any,
     sample_rate_hz: float,
     settle_s: float = 0.0,
+    *,
+    from_rest: bool = False,
 ) -> ComfortReport:
     """Grade ride comfort at the seat point from its vertical and fore-aft accelerations.
 
@@ -590,6 +596,12 @@ def comfort_report(
         Sample rate [Hz], >= 16 (160 or more covers the standard's 0.5-80 Hz range).
     settle_s : float
         Time [s] at the start left out (launch, weighting transient of about 2.6 s).
+    from_rest : bool
+        The record starts from a state with no seat acceleration (a simulation started at
+        rest or rolling steadily in its ideal pose), gravity excluded. The weighting then
+        starts at rest exactly as the analogue filter would: the mean is not removed and
+        its response to the first seconds is the rider's, not a start-up transient, so no
+        caution about ``settle_s`` applies.
 
     Returns
     -------
@@ -614,14 +626,14 @@ def comfort_report(
                 f"seat_horizontal_m_s2 has {x.size} samples but seat_vertical_m_s2 has {z.size}: "
                 "give both on the same clock"
             )
-    awz = weight(z, fs, "k")[i0:]
+    awz = weight(z, fs, "k", remove_mean=not from_rest)[i0:]
     span_s = awz.size / fs
     rms_z = float(np.sqrt(np.mean(awz**2)))
     vdv_z = float(np.sum(awz**4) / fs) ** 0.25
     crest_z = _crest(awz)
     rms_x = vdv_x = crest_x = None
     if x is not None:
-        awx = weight(x, fs, "d")[i0:]
+        awx = weight(x, fs, "d", remove_mean=not from_rest)[i0:]
         rms_x = float(np.sqrt(np.mean(awx**2)))
         vdv_x = float(np.sum(awx**4) / fs) ** 0.25
         crest_x = _crest(awx)
@@ -629,7 +641,7 @@ def comfort_report(
     ratio = vdv_z / (rms_z * span_s**0.25) if rms_z > 0 else math.nan
 
     cautions = with_safety(_STANDING_CAUTIONS)
-    if settle < FILTER_SETTLE_S:
+    if settle < FILTER_SETTLE_S and not from_rest:
         cautions.append(
             f"settle_s = {settle:g} s is shorter than the weighting's {FILTER_SETTLE_S:.1f} s start-up "
             "transient; the figures include it"

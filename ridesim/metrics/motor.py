@@ -143,6 +143,12 @@ class MotorSizing:
     best_ratio: float | None = None
     cautions: tuple[str, ...] = field(default_factory=tuple)
 
+    def _repr_html_(self) -> str:
+        """The figures as a table, for Jupyter."""
+        from ridesim.model.display import html_table
+
+        return html_table(self.to_dict(), "motor sizing, per motor")
+
     def to_dict(self) -> dict:
         """JSON contract of ``ridesim size-motor`` (per motor, SI).
 

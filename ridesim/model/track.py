@@ -385,6 +385,14 @@ class Track:
         t._offset = float(depth)
         return t
 
+    def _repr_svg_(self) -> str:
+        """A small drawing of two periods of the track, for Jupyter."""
+        from ridesim.model.display import svg_drawing
+
+        span = 2.0 * self.period if math.isfinite(self.period) else 1.0
+        return svg_drawing([(self.polyline(0.0, span, 400), "#6e5634", "none")],
+                           title=f"track, period {self.period * 1000:.1f} mm", width_px=420)
+
     def polyline(self, x_start: float, x_end: float, n: int) -> np.ndarray:
         """Points ``(x, y)`` [m] along the track from ``x_start`` to ``x_end``, kinks included.
 

@@ -646,6 +646,14 @@ class Wheel:
             raise InputError("edge_lines is only defined for polygon wheels")
         return self._vertex_angle0 + self._vertex_rel, self._edge_d.copy(), self._edge_alpha.copy()
 
+    def _repr_svg_(self) -> str:
+        """A small drawing of the outline about its axle, for Jupyter."""
+        from ridesim.model.display import svg_drawing
+
+        pts = self.outline_points(360)
+        return svg_drawing([(pts, "#1f4e79", "#a9c8e2")], marks=[(0.0, 0.0)],
+                           title=f"{self.kind} wheel, axle at the dot", width_px=240)
+
     def outline_points(self, n: int = 720) -> np.ndarray:
         """Points [m] on the rim in the axle frame, anticlockwise, shape (N, 2).
 

@@ -144,6 +144,21 @@ def _motion_ideal(pair, duration_s: float, fps: float, speed_m_s: float, offsets
                    offsets, "ideal")
 
 
+def _round_length(target_m: float) -> float:
+    """The largest of 1, 2 and 5 times a power of ten not above ``target_m`` [m].
+
+    Examples
+    --------
+    >>> _round_length(0.137), _round_length(2.4), _round_length(0.05)
+    (0.1, 2.0, 0.05)
+    """
+    p = 10.0 ** math.floor(math.log10(target_m))
+    for f in (5.0, 2.0, 1.0):
+        if f * p <= target_m * (1 + 1e-9):
+            return round(f * p, 12)
+    return p
+
+
 # ---------------------------------------------------------------------------- drawing
 class _Painter:
     """Draws frames of one clip; all geometry prepared once, per frame only transforms."""
@@ -320,7 +335,21 @@ class _Painter:
             if vals:
                 parts.append("T = " + " / ".join(f"{v:.2f}" for v in vals) + " N·m")
         d.text((8 * k, 5 * k), "   ".join(parts), fill=_IDX["ink"], font=self.font)
+        self._scale_bar(d)
         return im
+
+    def _scale_bar(self, d) -> None:
+        """A scale bar at the bottom left: a round length near a fifth of the frame's width."""
+        k, s = self.k, self.s
+        length = _round_length(0.2 * self.W / s)
+        x0, y = 10 * k, self.H - 10 * k
+        x1 = x0 + length * s
+        d.rectangle([x0 - 3 * k, y - 20 * k, x1 + 3 * k, y + 5 * k], fill=_IDX["sky"])
+        d.line([x0, y, x1, y], fill=_IDX["ink"], width=2 * k)
+        for x in (x0, x1):
+            d.line([x, y - 4 * k, x, y + 3 * k], fill=_IDX["ink"], width=k)
+        text = f"{length * 1000:g} mm" if length < 1.0 else f"{length:g} m"
+        d.text((0.5 * (x0 + x1), y - 5 * k), text, fill=_IDX["ink"], font=self.small, anchor="mb")
 
 
 def _render_frames(pair, *, frames_data, duration_s, fps, size, follow, speed_m_s, axle_offsets_m, x_start_m,

@@ -17,7 +17,7 @@ import numpy as np
 
 from ridesim.errors import InputError
 from ridesim.export.results import write_bytes_atomic, write_text_atomic
-from ridesim.render.style import COLOURS, SERIES_COLOURS, new_figure, series_style, style_context
+from ridesim.render.style import COLOURS, DPI, SERIES_COLOURS, new_figure, series_style, style_context
 
 __all__ = [
     "plot_wheel",
@@ -131,7 +131,7 @@ def _wheel_title(wheel) -> str:
         return f"{what}, corners rounded to {p['corner_radius_m'] * 1000:.3g} mm"
     if wheel.kind == "ellipse":
         a, b = p["semi_axes_m"]
-        return f"ellipse {a * 1000:.1f} × {b * 1000:.1f} mm (semi-axes)"
+        return f"ellipse, semi-axes {a * 1000:.1f} × {b * 1000:.1f} mm"
     if wheel.kind == "circle":
         return f"circle, radius {p['radius_m'] * 1000:.1f} mm"
     if wheel.kind == "polar":
@@ -139,6 +139,17 @@ def _wheel_title(wheel) -> str:
     if wheel.kind == "solved":
         return f"{p.get('lobes', '?')} lobes, solved for a {p.get('from_track', '?')} track"
     return f"{wheel.kind} outline"
+
+
+def _fit_title(ax, text: str, width_px: float, share: float = 1.0) -> None:
+    """Set a title wrapped to the width it has (11 pt bold: about 14 px a character at 150 dpi).
+
+    ``share`` is the fraction of the figure's width the axes' title may use.
+    """
+    import textwrap
+
+    per_line = max(20, int(share * width_px / (14.0 * DPI / 150.0)))
+    ax.set_title(textwrap.fill(text, per_line, break_on_hyphens=False))
 
 
 def _cusp_points(pair, x0: float, x1: float, kind: str = "valley") -> np.ndarray:
@@ -226,7 +237,7 @@ def plot_wheel(pair, path: str | Path, *, mass=None, size_px: Sequence[int] = (1
         ax.set_aspect("equal", adjustable="box")
         ax.set_xlabel("x in the wheel frame [mm]")
         ax.set_ylabel("y in the wheel frame [mm]")
-        ax.set_title(f"Wheel: {_wheel_title(w)}")
+        _fit_title(ax, f"Wheel: {_wheel_title(w)}", size[0], share=0.62)
         ext = hi - lo
         info = [f"r_min  {rmin * 1000:.1f} mm", f"r_max  {rmax * 1000:.1f} mm",
                 f"width  {ext[0]:.1f} mm", f"height {ext[1]:.1f} mm", "",
@@ -244,7 +255,7 @@ def plot_wheel(pair, path: str | Path, *, mass=None, size_px: Sequence[int] = (1
     return png, caption
 
 
-def plot_track(pair, path: str | Path, periods: float = 2.5, poses: int = 5, *,
+def plot_track(pair, path: str | Path, periods: float = 2.5, poses: int = 3, *,
                size_px: Sequence[int] | None = None, svg: bool = False) -> tuple[Path, str]:
     """The track over a few periods with its cusps, and the wheel at several poses.
 
@@ -255,9 +266,9 @@ def plot_track(pair, path: str | Path, periods: float = 2.5, poses: int = 5, *,
     path : str or Path
         PNG file to write.
     periods : float
-        Track periods to show (at least 2).
+        Track periods to show (at least 2); more when the poses need room not to overlap.
     poses : int
-        Number of wheel poses drawn (0 to 12).
+        Number of wheel poses drawn (0 to 12), spaced so that the wheels do not overlap.
     size_px : (int, int), optional
         Picture size [px]; default 1600 wide with a height that suits the geometry.
     svg : bool
@@ -276,7 +287,16 @@ def plot_track(pair, path: str | Path, periods: float = 2.5, poses: int = 5, *,
     P = pair.track.period
     L = periods * P
     rmin, rmax, _ = w.extremes()
-    xs = np.linspace(0.0, L, poses + 2)[1:-1] if poses else np.zeros(0)
+    # Poses side by side, clear of each other (wheels 2 r_max wide and a gap), each a further
+    # 1/poses of a period along so together they show the whole roll of one period.
+    if poses:
+        step = math.ceil(2.1 * rmax / P) * P + P / poses
+        first = math.ceil(1.05 * rmax / P) * P + 0.1 * P
+        xs = first + step * np.arange(poses)
+        L = max(L, float(xs[-1]) + 1.05 * rmax)
+        periods = L / P
+    else:
+        xs = np.zeros(0)
     x0 = min(0.0, float(xs.min() - rmax) if poses else 0.0)
     x1 = max(L, float(xs.max() + rmax) if poses else L)
     prof = pair.track.polyline(x0, x1, 4000)
@@ -305,7 +325,7 @@ def plot_track(pair, path: str | Path, periods: float = 2.5, poses: int = 5, *,
             wp = posed_outline(pts, float(x), th) * 1000
             wp = np.vstack([wp, wp[:1]])
             colour = SERIES_COLOURS[k % len(SERIES_COLOURS)]  # one hue per pose keeps crossings legible
-            _fill(ax, wp[:, 0], wp[:, 1], color=colour, alpha=0.07, lw=0, zorder=4)
+            _fill(ax, wp[:, 0], wp[:, 1], color=colour, alpha=0.16, lw=0, zorder=4)
             ax.plot(wp[:, 0], wp[:, 1], color=colour, lw=1.3, zorder=5,
                     label=f"wheel at x = {x * 1000:.0f} mm", gid=f"wheel-pose-{k}")
             sp = posed_outline(np.array([[0.0, 0.0], ref]), float(x), th) * 1000
@@ -328,15 +348,15 @@ def plot_track(pair, path: str | Path, periods: float = 2.5, poses: int = 5, *,
         ax.set_ylim(base * 1000, top * 1000)
         ax.set_xlabel("x along the track [mm]")
         ax.set_ylabel("height [mm] (axle line at 0)")
-        ax.set_title(f"Track and wheel ({_wheel_title(w)}): period {P * 1000:.1f} mm,"
-                     f" {pair.lobes} period{'s' if pair.lobes != 1 else ''} per revolution")
+        _fit_title(ax, f"Track and wheel ({_wheel_title(w)}): period {P * 1000:.1f} mm,"
+                       f" {pair.lobes} period{'s' if pair.lobes != 1 else ''} per revolution", size[0])
         handles, labels = ax.get_legend_handles_labels()
         order = sorted(range(len(labels)), key=lambda i: labels[i].startswith("wheel at"))  # marks first
         fig.legend([handles[i] for i in order], [labels[i] for i in order], loc="outside lower center",
                    ncols=5 if len(cusps) else 4, fontsize=8)
         png = _save(fig, path, svg)
     cusp_txt = f"{len(pair.cusps)} cusps per revolution" if pair.cusps else "no cusps"
-    caption = (f"Track over {periods:g} periods of {P * 1000:.1f} mm ({cusp_txt}), depth"
+    caption = (f"Track over {periods:.3g} periods of {P * 1000:.1f} mm ({cusp_txt}), depth"
                f" {rmin * 1000:.1f} to {rmax * 1000:.1f} mm below the axle line, wheel at {poses} poses.")
     return png, caption
 
@@ -415,6 +435,47 @@ def _series_arrays(t_s, series: Mapping) -> list[tuple[str, np.ndarray, np.ndarr
     return out
 
 
+
+def _covered_by(tt, yy, kind: str, drawn) -> str | None:
+    """Label of an earlier series of the same kind that ``yy`` lies on (within 1 % of its range)."""
+    for label, k, t0, y0 in drawn:
+        if k != kind or len(t0) != len(tt) or not np.array_equal(t0, tt):
+            continue
+        span = float(np.ptp(y0)) if len(y0) else 0.0
+        if span > 0 and float(np.max(np.abs(np.asarray(yy) - np.asarray(y0)))) <= 0.01 * span:
+            return label.split(" (on ")[0]
+    return None
+
+
+def _bulk_limits(ax, data, kinds) -> None:
+    """Y limits from the bulk of the data (0.5-99.5 percentiles), outliers marked at the edge.
+
+    A single spike (a contact step at t = 0) would otherwise stretch the axis and squash the
+    rest; points beyond the limits are drawn as small triangles on the axis edge.
+    """
+    ys = [np.asarray(yy, float) for _, _, yy in data]
+    allv = np.concatenate([y[np.isfinite(y)] for y in ys]) if ys else np.zeros(0)
+    if allv.size < 20:
+        return
+    lo, hi = np.percentile(allv, [0.5, 99.5])
+    full_lo, full_hi = float(allv.min()), float(allv.max())
+    span = max(hi - lo, 1e-12)
+    pad = 0.12 * span
+    if full_hi - full_lo <= 1.6 * span + 2 * pad:
+        return  # no outlier worth clipping
+    lo, hi = lo - pad, hi + pad
+    ax.set_ylim(lo, hi)
+    n_out = 0
+    for _, tt, yy in data:
+        tt, yy = np.asarray(tt, float), np.asarray(yy, float)
+        for side, mask, marker in ((hi, yy > hi, "^"), (lo, yy < lo, "v")):
+            if mask.any():
+                n_out += int(mask.sum())
+                ax.plot(tt[mask], np.full(int(mask.sum()), side), linestyle="none", marker=marker,
+                        markersize=4, color=COLOURS["cusp"], clip_on=False, zorder=5)
+    ax.plot([], [], linestyle="none", marker="^", markersize=4, color=COLOURS["cusp"],
+            label=f"beyond the axis ({n_out} samples, to {full_lo:.3g} / {full_hi:.3g})")
+
 def plot_series(t_s, series: Mapping, path: str | Path, ylabel: str, title: str, *,
                 xlabel: str = "time [s]", kinds: Mapping[str, str] | None = None,
                 size_px: Sequence[int] = (1400, 750), svg: bool = False,
@@ -461,6 +522,7 @@ def plot_series(t_s, series: Mapping, path: str | Path, ylabel: str, title: str,
     with style_context():
         fig = new_figure(size)
         ax = fig.add_subplot()
+        drawn: list[tuple[str, str, np.ndarray, np.ndarray]] = []
         for label, tt, yy in data:
             kind = kinds.get(label)
             if kind is None:
@@ -470,7 +532,15 @@ def plot_series(t_s, series: Mapping, path: str | Path, ylabel: str, title: str,
             kw = series_style(kind)
             if kind == "limit":
                 kw["color"] = COLOURS["cusp"]
+            under = _covered_by(tt, yy, kind, drawn)
+            if under is not None:
+                # A series lying on an earlier one would hide it: draw it dashed and thinner on
+                # top, and say so in the legend, so both stay visible.
+                kw.update(linestyle=(0, (3, 3)), linewidth=max(0.8, 0.7 * kw.get("linewidth", 1.4)))
+                label = f"{label} (on {under})"
             ax.plot(tt, yy, label=label, **kw)
+            drawn.append((label, kind, tt, yy))
+        _bulk_limits(ax, data, kinds)
         seen = set()
         for a, b, label in spans:
             ax.axvspan(float(a), float(b), color="0.6", alpha=0.2, lw=0,
@@ -478,10 +548,14 @@ def plot_series(t_s, series: Mapping, path: str | Path, ylabel: str, title: str,
             seen.add(label)
         ax.set_xlabel(xlabel)
         ax.set_ylabel(ylabel)
-        ax.set_title(title)
+        _fit_title(ax, title, size[0])
         ax.margins(x=0)
         if len(data) > 1 or data[0][0] or spans:
-            fig.legend(loc="outside upper right", ncols=min(4, len(data)))
+            # As many legend columns as fit the figure's width (about 7 px a character).
+            _, labels = ax.get_legend_handles_labels()
+            widest = max((len(lab) for lab in labels), default=1) + 6
+            fit = max(1, int(size[0] / (7.5 * widest * DPI / 150)))
+            fig.legend(loc="outside upper right", ncols=max(1, min(4, len(labels), fit)))
         png = _save(fig, path, svg)
     if caption is None:
         caption = f"{title}: " + ", ".join(lab for lab, _, _ in data) + f" against {xlabel}."

@@ -360,6 +360,21 @@ class RollingPair:
         x = self.axle_x(theta)
         return theta, x, self.track.y(x)
 
+    def _repr_svg_(self) -> str:
+        """A small drawing of the wheel on two periods of its track, for Jupyter."""
+        from ridesim.model.display import svg_drawing
+
+        P = self.track.period
+        x = 0.6 * P
+        th = float(self.wheel_angle(x))
+        pts = self.wheel.outline_points(360)
+        c, s = math.cos(th), math.sin(th)
+        posed = np.column_stack([x + c * pts[:, 0] + s * pts[:, 1], -s * pts[:, 0] + c * pts[:, 1]])
+        track = self.track.polyline(x - 1.2 * P, x + 1.2 * P, 400)
+        return svg_drawing([(track, "#6e5634", "none"), (posed, "#1f4e79", "#a9c8e2")],
+                           marks=[(x, 0.0)], width_px=420,
+                           title=f"{self.lobes} period(s) of {P * 1000:.1f} mm per revolution")
+
     def to_dict(self) -> dict:
         """Summary of the solve with SI units in every key (JSON-ready plain values).
 

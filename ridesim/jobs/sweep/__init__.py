@@ -2,5 +2,6 @@
 
 from ridesim.jobs.sweep.plan import Case, SweepPlan, load_sweep
 from ridesim.jobs.sweep.run import run_sweep
+from ridesim.jobs.sweep.summary import read_results
 
-__all__ = ["Case", "SweepPlan", "load_sweep", "run_sweep"]
+__all__ = ["Case", "SweepPlan", "load_sweep", "run_sweep", "read_results"]

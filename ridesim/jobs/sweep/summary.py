@@ -8,7 +8,7 @@ from pathlib import Path
 
 from ridesim.errors import ScenarioError
 
-__all__ = ["read_table", "best_cases", "plot_metric"]
+__all__ = ["read_table", "read_results", "best_cases", "plot_metric"]
 
 
 def read_table(path: str | Path) -> list[dict[str, str]]:
@@ -88,46 +88,76 @@ def plot_metric(rows: list[dict[str, str]], metric: str, params: list[str], path
     """
     import io
 
-    # A pyplot-free figure on its own Agg canvas: draws off-screen without switching the
-    # caller's backend (a notebook keeps its own) and without pyplot's figure registry.
-    from matplotlib.backends.backend_agg import FigureCanvasAgg
-    from matplotlib.figure import Figure
-
     from ridesim.export.results import write_bytes_atomic
+    from ridesim.render.report import axis_label
+    from ridesim.render.style import COLOURS, SERIES_COLOURS, new_figure, style_context
 
     for p in [metric, *params]:
         if rows and p not in rows[0]:
             raise ScenarioError(f"{p!r} is not a column of the sweep table")
-    ok: list[dict[str, float]] = []  # the rows whose metric and parameters are all numbers
-    for r in rows:
-        if r.get("error"):
-            continue
-        got = {p: _num(r[p]) for p in [metric, *params]}
-        nums = {p: v for p, v in got.items() if v is not None}
-        if len(nums) == len(got):
-            ok.append(nums)
-    fig = Figure(figsize=(6.4, 4.0), dpi=100)
-    FigureCanvasAgg(fig)
-    ax = fig.subplots()
-    if len(params) == 1:
-        xs = sorted({r[params[0]] for r in ok})
-        groups = {x: [r[metric] for r in ok if r[params[0]] == x] for x in xs}
-        ax.plot(xs, [sum(v) / len(v) for v in groups.values()], "o-", color="#1f5f8b")
-        if any(len(v) > 1 for v in groups.values()):
-            ax.fill_between(xs, [min(v) for v in groups.values()], [max(v) for v in groups.values()],
-                            color="#1f5f8b", alpha=0.2, label="range over other parameters")
-            ax.legend(frameon=False)
-        ax.set_xlabel(params[0])
-        ax.set_ylabel(metric)
-    else:
-        sc = ax.scatter([r[params[0]] for r in ok], [r[params[1]] for r in ok],
-                        c=[r[metric] for r in ok], cmap="viridis", s=60)
-        fig.colorbar(sc, ax=ax, label=metric)
-        ax.set_xlabel(params[0])
-        ax.set_ylabel(params[1])
-    ax.set_title(f"{metric} across the sweep ({len(ok)} cases)")
-    ax.grid(alpha=0.3)
-    fig.tight_layout()
-    buf = io.BytesIO()
-    fig.savefig(buf, format="png")
+    ok = [r for r in rows if not r.get("error") and _num(r[metric]) is not None
+          and all(_num(r[p]) is not None for p in params)]
+    m_label, m_f = axis_label(metric)
+    labels = [axis_label(p) for p in params]
+    # The house style, on a pyplot-free figure of its own Agg canvas (the caller's
+    # matplotlib backend is left alone).
+    with style_context():
+        fig = new_figure((1100, 700))
+        ax = fig.add_subplot()
+        if len(params) == 1:
+            (x_label, x_f) = labels[0]
+            xs = sorted({_num(r[params[0]]) for r in ok})
+            groups = {x: [_num(r[metric]) * m_f for r in ok if _num(r[params[0]]) == x] for x in xs}
+            xx = [x * x_f for x in xs]
+            ax.plot(xx, [sum(v) / len(v) for v in groups.values()], "o-", color=SERIES_COLOURS[0],
+                    label="mean over the other parameters")
+            if any(len(v) > 1 for v in groups.values()):
+                ax.fill_between(xx, [min(v) for v in groups.values()],
+                                [max(v) for v in groups.values()], color=SERIES_COLOURS[0],
+                                alpha=0.18, lw=0, label="range over the other parameters")
+                ax.legend()
+            ax.set_xlabel(x_label)
+            ax.set_ylabel(m_label)
+        else:
+            (x_label, x_f), (y_label, y_f) = labels[:2]
+            sc = ax.scatter([_num(r[params[0]]) * x_f for r in ok],
+                            [_num(r[params[1]]) * y_f for r in ok],
+                            c=[_num(r[metric]) * m_f for r in ok], cmap="viridis", s=70,
+                            edgecolors=COLOURS["ink"], linewidths=0.4)
+            fig.colorbar(sc, ax=ax, label=m_label)
+            ax.set_xlabel(x_label)
+            ax.set_ylabel(y_label)
+        ax.set_title(f"{m_label.split(' [')[0]} across the sweep ({len(ok)} cases)")
+        buf = io.BytesIO()
+        fig.savefig(buf, format="png")
     return write_bytes_atomic(path, buf.getvalue())
+
+
+def read_results(out_dir: str | Path):
+    """A sweep's results table (``results.csv`` in its output folder) as a pandas DataFrame.
+
+    Parameters
+    ----------
+    out_dir : str or Path
+        The sweep's output folder (or the ``results.csv`` itself).
+
+    Returns
+    -------
+    pandas.DataFrame
+        One row a case; numbers parsed, unit-suffixed column names as in the table.
+
+    Raises
+    ------
+    InputError
+        pandas is not installed (the ``dataframe`` extra), or there is no table.
+    """
+    from ridesim.errors import InputError
+    from ridesim.model.display import require_pandas
+
+    pd = require_pandas()
+    path = Path(out_dir)
+    if path.is_dir():
+        path = path / "results.csv"
+    if not path.is_file():
+        raise InputError(f"no sweep results table at {path}: run `ridesim sweep` with --out there")
+    return pd.read_csv(path)
