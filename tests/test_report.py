@@ -10,8 +10,9 @@ from pathlib import Path
 
 import pytest
 
+from ridesim.export.results import flatten
 from ridesim.jobs.report import write_report
-from ridesim.render.report import flatten, format_figure
+from ridesim.render.report import format_figure
 from ridesim.scenario.load import load_scenario
 
 ROOT = Path(__file__).resolve().parent.parent
@@ -96,7 +97,7 @@ def test_every_json_figure_appears_formatted(report):
     _, figures, text = report
     missing = []
     for block in ("check", "size_motor", "simulate"):
-        for key, v in flatten(figures[block]):
+        for key, v in flatten(figures[block], lists="index").items():
             if key.split(".")[-1] in SENTENCES:
                 for s in v:  # sentences are shown in the findings and cautions
                     if html.escape(s.replace("`", "")) not in text.replace("<code>", "").replace(
@@ -170,7 +171,7 @@ def test_renders_in_headless_chromium(report, tmp_path):
     assert not SCI.findall(seen), SCI.findall(seen)[:5]
     flat = " ".join(seen.split())
     for block in ("check", "size_motor", "simulate"):
-        for key, v in flatten(figures[block]):
+        for key, v in flatten(figures[block], lists="index").items():
             if key.split(".")[-1] not in SENTENCES:
                 assert f"{key} {format_figure(key, v)}".strip() in flat, key
     # The verdict (its green box) is on the first screen of a desktop and of a phone.

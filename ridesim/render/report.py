@@ -18,10 +18,11 @@ import html
 import math
 from pathlib import Path
 
+from ridesim.export.results import flatten
 from ridesim.model.display import UNITS as _UNITS
 from ridesim.model.display import _number, format_figure, unit_of
 
-__all__ = ["report_page", "format_figure", "format_value", "flatten", "unit_of", "axis_label",
+__all__ = ["report_page", "format_figure", "format_value", "unit_of", "axis_label",
            "LOOK_FOR"]
 
 _CSS = """
@@ -139,33 +140,6 @@ def format_value(v) -> str:
     return format_figure("", v)
 
 
-def flatten(d: dict, prefix: str = "") -> list[tuple[str, object]]:
-    """Leaf figures of a JSON dict as ``(dotted.key, value)``; lists of dicts are indexed.
-
-    Parameters
-    ----------
-    d : dict
-        JSON-ready data.
-    prefix : str
-        Key prefix.
-
-    Returns
-    -------
-    list of (str, object)
-    """
-    rows: list[tuple[str, object]] = []
-    for k, v in d.items():
-        key = f"{prefix}{k}"
-        if isinstance(v, dict):
-            rows += flatten(v, key + ".")
-        elif isinstance(v, list) and v and all(isinstance(x, dict) for x in v):
-            for i, x in enumerate(v):
-                rows += flatten(x, f"{key}[{i}].")
-        else:
-            rows.append((key, v))
-    return rows
-
-
 _SENTENCES = ("cautions", "reasons", "notes")
 
 
@@ -181,7 +155,7 @@ def _words(text: str) -> str:
 
 def _appendix_table(block: str, d: dict) -> str:
     rows = []
-    for key, v in flatten(d):
+    for key, v in flatten(d, lists="index").items():
         if key.split(".")[-1] in _SENTENCES:
             continue  # sentences are shown in the findings and cautions
         rows.append(f"<tr><th>{_e(key)}</th><td>{_e(format_figure(key, v))}</td></tr>")
