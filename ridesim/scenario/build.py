@@ -9,7 +9,6 @@ properties (explicit ``mass_kg``/``inertia_kg_m2`` override the plate model).
 
 from __future__ import annotations
 
-import csv
 import re
 from dataclasses import replace
 from pathlib import Path
@@ -39,6 +38,14 @@ def read_points_csv(path: str | Path, key: str) -> np.ndarray:
     ridesim's own cut files are written) is read in millimetres and converted. A header
     without a unit (``x,y``) means metres.
 
+    What can be read unambiguously is read: a UTF-8 byte-order mark (as spreadsheets write
+    it) is skipped, UTF-16 with its byte-order mark is decoded, bytes that are not UTF-8 are
+    tolerated inside ``#`` comments, cells may be separated by commas or tabs, and a third
+    column is ignored when it holds the same number on every line (a drawing's z = 0). The
+    rest is refused with one line saying what was found: a binary file, undecodable text, a
+    varying third column, more than :data:`~ridesim.scenario.schema.MAX_POINTS` points, a
+    file larger than :data:`~ridesim.scenario.schema.MAX_FILE_BYTES`.
+
     Parameters
     ----------
     path : str or Path
@@ -51,31 +58,94 @@ def read_points_csv(path: str | Path, key: str) -> np.ndarray:
     ndarray, shape (N, 2)
         Points [m].
     """
-    rows = []
-    scale = 1.0
+    from ridesim.scenario.schema import MAX_FILE_BYTES, MAX_LENGTH_M, MAX_POINTS
+
     try:
-        with open(path, newline="", encoding="utf-8") as fh:
-            for lineno, row in enumerate(csv.reader(fh), start=1):
-                cells = [c.strip() for c in row if c.strip()]
-                if not cells or cells[0].startswith("#"):
-                    continue
-                try:
-                    vals = [float(c) for c in cells[:2]]
-                except ValueError:
-                    if not rows:
-                        scale = _header_scale(cells, path, key, lineno)
-                        continue  # header row
-                    raise ScenarioError(
-                        f"{key}: line {lineno} of {path} is not two numbers x, y"
-                    ) from None
-                if len(vals) != 2:
-                    raise ScenarioError(f"{key}: line {lineno} of {path} needs two columns x, y")
-                rows.append(vals)
+        size = Path(path).stat().st_size
+        if size > MAX_FILE_BYTES:
+            raise ScenarioError(f"{key}: {path} is {size} bytes, larger than the limit of"
+                                f" {MAX_FILE_BYTES} bytes for a points file; thin the points"
+                                f" (at most {MAX_POINTS})")
+        with open(path, "rb") as fh:
+            data = fh.read()
     except OSError as exc:
         raise ScenarioError(f"{key}: cannot read {path}: {exc.strerror}") from None
+    lines = _decode_lines(data, path, key)
+    rows: list[list[float]] = []
+    thirds: list[tuple[int, float]] = []
+    scale = 1.0
+    for lineno, line in lines:
+        if line.lstrip().startswith("#") or not line.strip():
+            continue
+        sep = "," if "," in line else "\t"
+        cells = [c.strip() for c in line.split(sep) if c.strip()]
+        if sep == "\t" and len(cells) < 2 and ";" in line:
+            raise ScenarioError(f"{key}: line {lineno} of {path} separates its cells with ';'"
+                                " (a decimal comma?); write x, y with a decimal point,"
+                                " separated by a comma or a tab")
+        try:
+            vals = [float(c) for c in cells]
+        except ValueError:
+            if not rows:
+                scale = _header_scale(cells, path, key, lineno)
+                continue  # header row
+            raise ScenarioError(
+                f"{key}: line {lineno} of {path} is not two numbers x, y"
+            ) from None
+        if len(vals) < 2:
+            raise ScenarioError(f"{key}: line {lineno} of {path} needs two columns x, y"
+                                f" separated by a comma or a tab, found {len(vals)}")
+        if len(vals) > 3:
+            raise ScenarioError(f"{key}: line {lineno} of {path} has {len(vals)} columns;"
+                                " give two columns x, y")
+        if not all(np.isfinite(vals)) or max(abs(v) for v in vals[:2]) * scale > MAX_LENGTH_M:
+            raise ScenarioError(f"{key}: line {lineno} of {path} holds {cells[0]}, {cells[1]}:"
+                                f" coordinates must be finite and within {MAX_LENGTH_M:g} m")
+        if len(vals) == 3:
+            thirds.append((lineno, vals[2]))
+        rows.append(vals[:2])
+        if len(rows) > MAX_POINTS:
+            raise ScenarioError(f"{key}: {path} holds more than {MAX_POINTS} points, the limit;"
+                                " thin the points")
+    if thirds:
+        first = thirds[0][1]
+        varying = next(((n, z) for n, z in thirds if z != first), None)
+        if len(thirds) != len(rows) or varying is not None:
+            n, z = varying if varying is not None else (thirds[0][0], first)
+            raise ScenarioError(
+                f"{key}: {path} has a third column that is not the same on every line (line"
+                f" {n}: {z:g}); give two columns x, y (a constant z is ignored)")
     if len(rows) < 3:
-        raise ScenarioError(f"{key}: {path} holds {len(rows)} points; at least 3 are needed")
+        raise ScenarioError(f"{key}: {path} holds {len(rows)} points; at least 3 are needed"
+                            " (one x, y pair per line, separated by a comma or a tab)")
     return scale * np.array(rows)
+
+
+def _decode_lines(data: bytes, path, key: str) -> list[tuple[int, str]]:
+    """The numbered text lines of a points file's bytes (see :func:`read_points_csv`)."""
+    if data.startswith((b"\xff\xfe", b"\xfe\xff")):
+        try:
+            text = data.decode("utf-16")
+        except UnicodeDecodeError:
+            raise ScenarioError(f"{key}: {path} starts like UTF-16 text but does not decode as"
+                                " UTF-16; save it as UTF-8 text") from None
+        return list(enumerate(text.splitlines(), start=1))
+    if data.startswith(b"\xef\xbb\xbf"):
+        data = data[3:]
+    nul = data.find(b"\x00")
+    if nul >= 0:
+        raise ScenarioError(f"{key}: {path} is not a text file (it holds NUL bytes, at byte"
+                            f" {nul}); give a CSV text file of x, y lines")
+    out = []
+    for lineno, raw in enumerate(data.splitlines(), start=1):
+        try:
+            out.append((lineno, raw.decode("utf-8")))
+        except UnicodeDecodeError as exc:
+            if raw.lstrip().startswith(b"#"):
+                continue  # a comment in another encoding: nothing in it is read
+            raise ScenarioError(f"{key}: line {lineno} of {path} is not UTF-8 text (byte"
+                                f" 0x{raw[exc.start]:02x}); save the file as UTF-8") from None
+    return out
 
 
 _OTHER_LENGTH_UNITS = {"cm", "dm", "km", "um", "in", "inch", "inches", "ft", "feet", "foot"}
