@@ -411,6 +411,7 @@ def main(argv: list[str] | None = None) -> int:
         return int(exc.code or 0)
     try:
         from ridesim.export.results import json_ready, write_json_atomic
+        from ridesim.jobs import check_figures, numeric_warnings
         from ridesim.scenario.load import load_scenario
 
         if args.out:
@@ -421,8 +422,12 @@ def main(argv: list[str] | None = None) -> int:
         for line in sc.warnings:  # valid but outside real builds: most likely a unit slip
             print(f"warning: {line}", file=sys.stderr)
         fn = commands[args.command][0]
-        data, text = fn(sc, args)
-        data = json_ready({**data, "warnings": list(sc.warnings)})
+        with numeric_warnings() as trouble:  # library noise becomes one line each, below
+            data, text = fn(sc, args)
+        check_figures(args.command, data, sc)  # divergence is an error, not a result
+        for line in trouble:
+            print(f"warning: {line}", file=sys.stderr)
+        data = json_ready({**data, "warnings": list(sc.warnings) + trouble})
         if args.out:
             write_json_atomic(Path(args.out) / f"{args.command}.json", data)
         if args.json:

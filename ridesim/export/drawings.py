@@ -223,6 +223,10 @@ def _crest_x(track) -> float:
     return (xc - track.start) % track.period + track.start
 
 
+MAX_SECTIONS = 500
+"""Most track pieces one export cuts (each is an SVG and a CSV file)."""
+
+
 def track_sections(pair, max_section_m: float = 1.0, periods: int | None = None) -> list[tuple[float, float]]:
     """Split the track into pieces that start and end at its highest points.
 
@@ -255,6 +259,10 @@ def track_sections(pair, max_section_m: float = 1.0, periods: int | None = None)
         ends = np.concatenate(([0], np.cumsum(sizes))) * P
     else:
         parts = math.ceil(P / L * (1 - 1e-12))
+        if n_per * parts > MAX_SECTIONS:
+            raise InputError(f"max_section_m (--section) = {L:g} m cuts the track into"
+                             f" {n_per * parts:.3g} pieces, beyond the limit of {MAX_SECTIONS};"
+                             f" give a section of at least {n_per * P / MAX_SECTIONS:.3g} m")
         ends = np.arange(n_per * parts + 1) * (P / parts)
     ends = x0 + ends
     return [(float(a), float(b)) for a, b in zip(ends[:-1], ends[1:], strict=True)]
@@ -545,11 +553,11 @@ def export_drawings(pair, out_dir: str | Path, *, name: str, max_section_m: floa
     out = Path(out_dir)
     written: list[Path] = []
 
+    sections = track_sections(pair, max_section_m, periods)  # refused before anything is written
     svg, wpts = _wheel_svg(pair, name, hole, wheel_thickness_m, title_lines, margin)
     written.append(write_text_atomic(out / f"{stem}_wheel.svg", svg))
     written.append(write_text_atomic(out / f"{stem}_wheel.csv", _csv(wpts)))
 
-    sections = track_sections(pair, max_section_m, periods)
     profs = [track_profile_mm(pair.track, a, b) for a, b in sections]
     y_low = min(float(p[:, 1].min()) for p in profs)
     y_bottom = y_low - strip * 1000

@@ -74,23 +74,23 @@ def read_points_csv(path: str | Path, key: str) -> np.ndarray:
     rows: list[list[float]] = []
     thirds: list[tuple[int, float]] = []
     scale = 1.0
+    header_seen = False
     for lineno, line in lines:
         if line.lstrip().startswith("#") or not line.strip():
             continue
         sep = "," if "," in line else "\t"
         cells = [c.strip() for c in line.split(sep) if c.strip()]
-        if sep == "\t" and len(cells) < 2 and ";" in line:
-            raise ScenarioError(f"{key}: line {lineno} of {path} separates its cells with ';'"
-                                " (a decimal comma?); write x, y with a decimal point,"
-                                " separated by a comma or a tab")
         try:
             vals = [float(c) for c in cells]
         except ValueError:
-            if not rows:
+            if not rows and not header_seen:
+                header_seen = True
                 scale = _header_scale(cells, path, key, lineno)
                 continue  # header row
+            why = (" (cells separated by ';' with decimal commas?)" if ";" in line else "")
             raise ScenarioError(
-                f"{key}: line {lineno} of {path} is not two numbers x, y"
+                f"{key}: line {lineno} of {path} is not two numbers x, y{why}; write x, y with"
+                " a decimal point, separated by a comma or a tab"
             ) from None
         if len(vals) < 2:
             raise ScenarioError(f"{key}: line {lineno} of {path} needs two columns x, y"
@@ -252,11 +252,55 @@ def solve_scenario(sc: Scenario) -> RollingPair:
     RollingPair
     """
     if sc.wheel is not None and sc.wheel.shape is not None:
-        return _wrap("wheel", track_for, wheel_from_spec(sc.wheel))
+        wheel = wheel_from_spec(sc.wheel)
+        where = "wheel.radius_formula" if sc.wheel.shape == "polar" else "wheel"
+        _check_size(where, wheel)
+        return _check_pair(where, _wrap("wheel", track_for, wheel))
     t = track_from_spec(sc.track)
+    where = f"track ({sc.track.shape})"
     if sc.track.depth_m is not None:
-        return _wrap("track.depth_m", wheel_for, t, depth=sc.track.depth_m)
-    return _wrap("track.lobes", wheel_for, t, lobes=sc.track.lobes or 1)
+        pair = _wrap("track.depth_m", wheel_for, t, depth=sc.track.depth_m)
+    else:
+        pair = _wrap("track.lobes", wheel_for, t, lobes=sc.track.lobes or 1)
+    if pair.closed:  # an unclosed pair has no wheel; the check says so
+        _check_size(where, pair.wheel)
+    return _check_pair(where, pair)
+
+
+def _check_size(where: str, wheel: Wheel) -> None:
+    """Refuse a wheel whose radius is not finite or lies outside the sizes ridesim computes with.
+
+    The limits are :data:`~ridesim.scenario.schema.MIN_LENGTH_M` and
+    :data:`~ridesim.scenario.schema.MAX_LENGTH_M`, as for every length key: a formula or a
+    solved wheel can reach sizes no key would accept (``1e-300 + 1e-301*cos(phi)``).
+    """
+    from ridesim.scenario.schema import MAX_LENGTH_M, MIN_LENGTH_M
+
+    with np.errstate(all="ignore"):
+        r = np.asarray(wheel.radius(np.linspace(0.0, 2.0 * np.pi, 720, endpoint=False)), float)
+    if not np.all(np.isfinite(r)):
+        raise ScenarioError(f"{where}: the wheel's radius is not a finite number at every angle;"
+                            " check the formula or the values")
+    lo, hi = float(r.min()), float(r.max())
+    if lo < MIN_LENGTH_M * (1.0 - 1e-9) or hi > MAX_LENGTH_M * (1.0 + 1e-9):
+        raise ScenarioError(f"{where}: the wheel's radius runs from {lo:.3g} to {hi:.3g} m,"
+                            f" outside the sizes ridesim computes with ({MIN_LENGTH_M:g} to"
+                            f" {MAX_LENGTH_M:g} m); check the values and their units")
+
+
+def _check_pair(where: str, pair: RollingPair) -> RollingPair:
+    """Refuse a solved pair whose period or revolution length is not a finite usable length."""
+    from ridesim.scenario.schema import MAX_LENGTH_M, MIN_LENGTH_M
+
+    figures = [("track period", pair.track.period)]
+    if pair.closed:
+        figures.append(("revolution length", pair.revolution_length))
+    for name, v in figures:
+        v = float(v)
+        if not (np.isfinite(v) and MIN_LENGTH_M <= v <= 1000.0 * MAX_LENGTH_M):
+            raise ScenarioError(f"{where}: the solved {name} is {v:.3g} m, outside the lengths"
+                                " ridesim computes with; check the values and their units")
+    return pair
 
 
 def resolve_wheelbase(sc: Scenario, pair: RollingPair) -> Scenario:
@@ -280,6 +324,7 @@ def resolve_wheelbase(sc: Scenario, pair: RollingPair) -> Scenario:
     """
     veh = sc.vehicle
     if veh.wheelbase_periods is None:
+        _check_overlap(veh.axles, veh.wheelbase_m, pair)
         return sc
     period = float(pair.track.period)
     wb = float(veh.wheelbase_periods) * period
@@ -292,8 +337,30 @@ def resolve_wheelbase(sc: Scenario, pair: RollingPair) -> Scenario:
                 f" {wb:.6g} m) differ by {1000 * abs(veh.wheelbase_m - wb):.3g} mm, more than"
                 f" vehicle.wheelbase_tolerance_m = {1000 * tol:g} mm; give only one of them"
             )
+        _check_overlap(veh.axles, veh.wheelbase_m, pair)
         return sc
+    _check_overlap(veh.axles, wb, pair)
     return replace(sc, vehicle=replace(veh, wheelbase_m=wb))
+
+
+def _check_overlap(axles: int, wheelbase_m: float, pair: RollingPair) -> None:
+    """Refuse neighbouring wheels that must run into each other.
+
+    Each wheel turns through every angle, so at some moment a wheel's farthest rim point
+    (``r_max`` from its axle) faces the neighbouring axle and lies ``wheelbase - r_max`` from
+    it; below ``r_min + r_max`` that point is inside the neighbour's inscribed circle: the
+    wheels (in one plane, on one track) overlap.
+    """
+    if axles < 2:
+        return
+    with np.errstate(all="ignore"):
+        r = np.asarray(pair.wheel.radius(np.linspace(0.0, 2.0 * np.pi, 720, endpoint=False)))
+    reach = float(r.min() + r.max())
+    if wheelbase_m < reach:
+        raise ScenarioError(
+            f"vehicle.wheelbase_m = {wheelbase_m:.6g} m is less than r_min + r_max ="
+            f" {reach:.6g} m of the wheel: neighbouring wheels on one track would run into"
+            " each other; lengthen the wheelbase (a whole-period one from `ridesim solve`)")
 
 
 def wheel_mass(sc: Scenario, wheel: Wheel) -> MassProperties:

@@ -1449,8 +1449,8 @@ def _check_magnitude(path: str, value: float) -> None:
     unit = "" if key.unit in ("", "-") else f" {key.unit}"
     if key.most is not None and abs(value) > key.most:
         raise ScenarioError(f"{path} = {_show(value)}{unit} is beyond the limit of"
-                            f" {key.most:g}{unit} in magnitude (no build is that size, and the"
-                            " mathematics loses its meaning); check the value and its unit")
+                            f" {key.most:g}{unit} in magnitude (no real build comes near it, and"
+                            " the mathematics loses its meaning); check the value and its unit")
     floor = _schema.tiny_of(key)
     if floor is not None and 0.0 < abs(value) < floor:
         raise ScenarioError(f"{path} = {_show(value)}{unit} is too small to compute with (the"

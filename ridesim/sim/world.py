@@ -60,6 +60,7 @@ import pymunk.autogeometry
 from ridesim.errors import GeometryError, InputError
 from ridesim.model.tolerance import AsBuilt, joint_positions_m
 from ridesim.model.vehicle import axle_offsets_m
+from ridesim.sim.budget import check_simulation_budget
 
 __all__ = [
     "WorldOptions",
@@ -1135,7 +1136,11 @@ def build_world(scenario, pair, mass, options: WorldOptions | None = None) -> Wo
         back, fwd = travel_bounds_m(scenario, r_lo, r_hi, total_mass, opt.grade_rad, gmag)
     x_lo = float(offsets[0]) - r_hi - back - 0.1 * r_hi
     x_hi = float(offsets[-1]) + r_hi + fwd + 0.1 * r_hi
-    # Nearly straight stretches may use segments up to half the least radius long.
+    # Nearly straight stretches may use segments up to half the least radius long. The work
+    # is estimated from one period before the whole reach is built (refused over budget).
+    x_p = float(pair.track.pieces()[0][0])
+    one, _ = track_vertices(pair.track, x_p, x_p + float(pair.track.period), tol, 0.5 * r_min)
+    check_simulation_budget(scenario, pair.track, x_lo, x_hi, max(len(one) - 1, 1), r_min)
     xy, terr = track_vertices(pair.track, x_lo, x_hi, tol, 0.5 * r_min)
     joints = None
     if track_ab:
