@@ -265,6 +265,9 @@ def _cmd_sweep(args) -> int:
                         progress=progress)
     if show:
         sys.stderr.write("\n")
+    for line in outcome.warnings:  # journal lines skipped, by number
+        print(f"warning: {line}", file=sys.stderr)
+    warnings = warnings + list(outcome.warnings)
     rows = read_table(outcome.table)
     summary = {"cases": outcome.total, "done": outcome.done, "failed": outcome.failed,
                "computed_now": outcome.computed, "table": str(outcome.table),
@@ -295,7 +298,7 @@ def _sweep_warnings(plan) -> list[str]:
     """Plausibility warnings of a sweep: the base's unvaried keys, then one line per varied key."""
     from ridesim.scenario.schema import KEYS, value_warnings
 
-    lines: list[str] = []
+    lines: list[str] = list(getattr(plan, "warnings", ()))
     for k in KEYS:
         spec = getattr(plan.base, k.section)
         if k.path not in plan.columns and spec is not None:
