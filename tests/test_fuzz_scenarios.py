@@ -201,8 +201,9 @@ REPRODUCERS = [
      "wheel.points_m[3][1]"),
     ('[wheel]\nshape = "polar"\nradius_formula = "1e-300 + 1e-301*cos(phi)"\n',
      "wheel.radius_formula"),
-    # overlapping wheels
+    # overlapping wheels; a corner rounded larger than the wheel ("the 999000 mm corner radius")
     (HEXT + "[vehicle]\naxles = 3\nwheelbase_m = 0.001\n", "vehicle.wheelbase_m"),
+    (HEXT + "corner_radius_m = 999\n", "wheel.corner_radius_m"),
     # names
     ('name = "a\\u0001b"\n' + HEXT, "name"),
     ('name = "' + "n" * 300 + '"\n' + HEXT, "name"),

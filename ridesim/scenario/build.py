@@ -254,7 +254,7 @@ def solve_scenario(sc: Scenario) -> RollingPair:
     if sc.wheel is not None and sc.wheel.shape is not None:
         wheel = wheel_from_spec(sc.wheel)
         where = "wheel.radius_formula" if sc.wheel.shape == "polar" else "wheel"
-        _check_size(where, wheel)
+        _check_size(where, wheel, sc.wheel.corner_radius_m)
         return _check_pair(where, _wrap("wheel", track_for, wheel))
     t = track_from_spec(sc.track)
     where = f"track ({sc.track.shape})"
@@ -263,11 +263,11 @@ def solve_scenario(sc: Scenario) -> RollingPair:
     else:
         pair = _wrap("track.lobes", wheel_for, t, lobes=sc.track.lobes or 1)
     if pair.closed:  # an unclosed pair has no wheel; the check says so
-        _check_size(where, pair.wheel)
+        _check_size(where, pair.wheel, sc.wheel.corner_radius_m if sc.wheel is not None else None)
     return _check_pair(where, pair)
 
 
-def _check_size(where: str, wheel: Wheel) -> None:
+def _check_size(where: str, wheel: Wheel, corner_radius_m: float | None = None) -> None:
     """Refuse a wheel whose radius is not finite or lies outside the sizes ridesim computes with.
 
     The limits are :data:`~ridesim.scenario.schema.MIN_LENGTH_M` and
@@ -286,6 +286,10 @@ def _check_size(where: str, wheel: Wheel) -> None:
         raise ScenarioError(f"{where}: the wheel's radius runs from {lo:.3g} to {hi:.3g} m,"
                             f" outside the sizes ridesim computes with ({MIN_LENGTH_M:g} to"
                             f" {MAX_LENGTH_M:g} m); check the values and their units")
+    if corner_radius_m is not None and corner_radius_m >= lo:
+        raise ScenarioError(f"wheel.corner_radius_m = {corner_radius_m:g} m is not smaller than the"
+                            f" wheel's least radius {lo:.4g} m: a rounded corner must fit inside"
+                            " the wheel; give a radius of a few per cent of it (0: the default)")
 
 
 def _check_pair(where: str, pair: RollingPair) -> RollingPair:
