@@ -172,6 +172,10 @@ def _need_out(args, what: str) -> Path:
     return Path(args.out)
 
 
+MAX_CLIP_FRAMES = 3000
+"""Most frames a clip may hold (2 minutes at 25 frames per second)."""
+
+
 def _cmd_render(sc, args) -> tuple[dict, str]:
     from ridesim.jobs.render import render_scenario
 
@@ -184,8 +188,15 @@ def _cmd_render(sc, args) -> tuple[dict, str]:
     except ValueError:
         raise ScenarioError_(f"--size must be WIDTHxHEIGHT in pixels, e.g. 640x360, got"
                              f" {args.size!r}") from None
-    if args.seconds <= 0 or args.fps <= 0:
+    if not (args.seconds > 0 and args.fps > 0):
         raise ScenarioError_(f"--seconds and --fps must be > 0, got {args.seconds} and {args.fps}")
+    frames = args.seconds * args.fps
+    if not args.no_clip and frames > MAX_CLIP_FRAMES:
+        raise ScenarioError_(f"--seconds {args.seconds:g} at --fps {args.fps:g} is {frames:.3g}"
+                             f" frames, beyond the budget of {MAX_CLIP_FRAMES}; shorten the clip"
+                             " or lower the frame rate")
+    if not (16 <= w <= 4096 and 16 <= h <= 4096):
+        raise ScenarioError_(f"--size must be 16 to 4096 pixels each way, got {w}x{h}")
     items = render_scenario(sc, out, svg=args.svg, simulate=args.simulate, clip=not args.no_clip,
                             clip_s=args.seconds, fps=args.fps, size=(w, h),
                             follow=not args.fixed_camera, progress=progress)

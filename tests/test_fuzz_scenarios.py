@@ -323,3 +323,11 @@ def test_budget_error_type_is_bad_input():
 
     with pytest.raises(InputError, match="3.6e\\+07 steps, beyond the budget of 5000000"):
         check_simulation_budget(sc, _T(), 0.0, 1.0, 40, 0.12)
+
+
+def test_a_clip_over_budget_is_refused_before_drawing(tmp_path):
+    f = tmp_path / "s.toml"
+    f.write_text(HEXT)
+    out = tmp_path / "out"
+    assert main(["render", str(f), "--out", str(out), "--seconds", "1e6"]) == 2
+    assert not any(p.is_file() for p in out.rglob("*"))
