@@ -13,6 +13,7 @@ from __future__ import annotations
 import argparse
 import json
 import os
+import shutil
 import sys
 from collections.abc import Callable
 from pathlib import Path
@@ -23,6 +24,10 @@ from ridesim.errors import RidesimError
 from ridesim.errors import ScenarioError as ScenarioError_
 
 __all__ = ["main"]
+
+
+_SET_COMMANDS = ("render", "export", "report")
+"""Commands that write a set of files: staged, then swapped in whole (export/results.py)."""
 
 
 class _ArgumentError(Exception):
@@ -106,6 +111,10 @@ def _need_out(args, what: str) -> Path:
     return Path(args.out)
 
 
+MAX_CLIP_FRAMES = 3000
+"""Most frames a clip may hold (2 minutes at 25 frames per second)."""
+
+
 def _cmd_render(sc, args) -> tuple[dict, str]:
     from ridesim.jobs.render import render_scenario
 
@@ -118,8 +127,15 @@ def _cmd_render(sc, args) -> tuple[dict, str]:
     except ValueError:
         raise ScenarioError_(f"--size must be WIDTHxHEIGHT in pixels, e.g. 640x360, got"
                              f" {args.size!r}") from None
-    if args.seconds <= 0 or args.fps <= 0:
+    if not (args.seconds > 0 and args.fps > 0):
         raise ScenarioError_(f"--seconds and --fps must be > 0, got {args.seconds} and {args.fps}")
+    frames = args.seconds * args.fps
+    if not args.no_clip and frames > MAX_CLIP_FRAMES:
+        raise ScenarioError_(f"--seconds {args.seconds:g} at --fps {args.fps:g} is {frames:.3g}"
+                             f" frames, beyond the budget of {MAX_CLIP_FRAMES}; shorten the clip"
+                             " or lower the frame rate")
+    if not (16 <= w <= 4096 and 16 <= h <= 4096):
+        raise ScenarioError_(f"--size must be 16 to 4096 pixels each way, got {w}x{h}")
     items = render_scenario(sc, out, svg=args.svg, simulate=args.simulate, clip=not args.no_clip,
                             clip_s=args.seconds, fps=args.fps, size=(w, h),
                             follow=not args.fixed_camera, progress=progress)
@@ -197,6 +213,9 @@ def _cmd_sweep(args) -> int:
                         progress=progress)
     if show:
         sys.stderr.write("\n")
+    for line in outcome.warnings:  # journal lines skipped, by number
+        print(f"warning: {line}", file=sys.stderr)
+    warnings = warnings + list(outcome.warnings)
     rows = read_table(outcome.table)
     summary: dict[str, object] = {"cases": outcome.total, "done": outcome.done, "failed": outcome.failed,
                "computed_now": outcome.computed, "table": str(outcome.table),
@@ -253,7 +272,7 @@ def _sweep_warnings(plan) -> list[str]:
     """Plausibility warnings of a sweep: the base's unvaried keys, then one line per varied key."""
     from ridesim.scenario.schema import KEYS, value_warnings
 
-    lines: list[str] = []
+    lines: list[str] = list(getattr(plan, "warnings", ()))
     for k in KEYS:
         spec = getattr(plan.base, k.section)
         if k.path not in plan.columns and spec is not None:
@@ -407,7 +426,8 @@ def main(argv: list[str] | None = None) -> int:
     except SystemExit as exc:  # --help / --version
         return int(exc.code or 0)
     try:
-        from ridesim.export.results import json_ready, write_json_atomic
+        from ridesim.export.results import begin_set, commit_set, json_ready, write_json_atomic
+        from ridesim.jobs import check_figures, numeric_warnings
         from ridesim.scenario.load import load_scenario
 
         if args.out:
@@ -425,9 +445,26 @@ def main(argv: list[str] | None = None) -> int:
 
         require_line(sc, args.command)
         fn = commands[args.command][0]
-        data, text = fn(sc, args)
-        data = json_ready({**data, "warnings": list(sc.warnings)})
-        if args.out:
+        staged = args.out and args.command in _SET_COMMANDS
+        stage = begin_set(args.out, args.command) if staged else None
+        try:
+            with numeric_warnings() as trouble:  # library noise becomes one line each, below
+                data, text = fn(sc, argparse.Namespace(**{**vars(args), "out": str(stage)})
+                                if staged else args)
+            check_figures(args.command, data, sc)  # divergence is an error, not a result
+            data = json_ready({**data, "warnings": list(sc.warnings) + trouble})
+            if staged:  # the set names its final place
+                data = json.loads(json.dumps(data).replace(json.dumps(str(stage))[1:-1],
+                                                           json.dumps(str(Path(args.out)))[1:-1]))
+                text = text.replace(str(stage), str(Path(args.out)))
+                write_json_atomic(stage / f"{args.command}.json", data)
+                commit_set(args.out, stage, args.command)
+        finally:
+            if stage is not None and stage.exists():
+                shutil.rmtree(stage, ignore_errors=True)  # not committed: the old set stays
+        for line in trouble:
+            print(f"warning: {line}", file=sys.stderr)
+        if args.out and not staged:
             write_json_atomic(Path(args.out) / f"{args.command}.json", data)
         if args.json:
             sys.stdout.write(json.dumps(data) + "\n")

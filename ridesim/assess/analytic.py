@@ -773,6 +773,10 @@ class DutyRun:
     windows_s: dict
 
 
+MAX_DUTY_SAMPLES = 2_000_000
+"""Most time samples (times motors) a duty cycle is followed with (about 1 GB of work arrays)."""
+
+
 def duty_run(model: TorqueModel, *, top_speed_m_s: float, accel_m_s2: float, brake_m_s2: float,
              cruise_s: float, rest_s: float = 0.0, dt_s: float | None = None,
              grade_rad: float = 0.0) -> DutyRun:
@@ -800,6 +804,15 @@ def duty_run(model: TorqueModel, *, top_speed_m_s: float, accel_m_s2: float, bra
     v_top = float(top_speed_m_s)
     if dt_s is None:
         dt_s = min(0.01, model.pair.track.period / (64.0 * v_top))
+    total = v_top / accel_m_s2 + cruise_s + v_top / brake_m_s2 + rest_s
+    n_est = total / dt_s * max(len(model.motors), 1)
+    if not n_est <= MAX_DUTY_SAMPLES:
+        raise InputError(
+            f"size-motor: the duty cycle of {total:.4g} s (ramps at {accel_m_s2:g} and"
+            f" {brake_m_s2:g} m/s^2, duty.cruise_s = {cruise_s:g} s, duty.rest_s = {rest_s:g} s)"
+            f" sampled every {dt_s:.3g} s for {len(model.motors)} motor(s) is about {n_est:.3g}"
+            f" samples, beyond the budget of {MAX_DUTY_SAMPLES}; shorten duty.cruise_s or raise"
+            " the accelerations")
     t, v, a = duty_profile(v_top, accel_m_s2, brake_m_s2, cruise_s, rest_s, dt_s)
     h = t[1] - t[0]
     x = np.cumsum(v) * h - 0.5 * v * h  # position of the chassis origin [m]

@@ -226,6 +226,10 @@ def _crest_x(track) -> float:
     return (xc - track.start) % track.period + track.start
 
 
+MAX_SECTIONS = 500
+"""Most track pieces one export cuts (each is an SVG and a CSV file)."""
+
+
 def track_sections(pair, max_section_m: float = 1.0, periods: int | None = None) -> list[tuple[float, float]]:
     """Split the track into pieces that start and end at its highest points.
 
@@ -258,6 +262,10 @@ def track_sections(pair, max_section_m: float = 1.0, periods: int | None = None)
         ends = np.concatenate(([0], np.cumsum(sizes))) * P
     else:
         parts = math.ceil(P / L * (1 - 1e-12))
+        if n_per * parts > MAX_SECTIONS:
+            raise InputError(f"max_section_m (--section) = {L:g} m cuts the track into"
+                             f" {n_per * parts:.3g} pieces, beyond the limit of {MAX_SECTIONS};"
+                             f" give a section of at least {n_per * P / MAX_SECTIONS:.3g} m")
         ends = np.arange(n_per * parts + 1) * (P / parts)
     ends = x0 + ends
     return [(float(a), float(b)) for a, b in zip(ends[:-1], ends[1:], strict=True)]

@@ -18,6 +18,7 @@ from __future__ import annotations
 
 import io
 import math
+import re
 from collections.abc import Sequence
 from pathlib import Path
 
@@ -64,9 +65,29 @@ def _text_block(msp, lines: Sequence[str], x: float, y_top: float) -> None:
 
 
 def _save(doc, path: Path) -> Path:
+    """Write a drawing whose bytes depend on its geometry only.
+
+    ezdxf stamps the save time and fresh GUIDs into the header unless told to write fixed
+    metadata; identical inputs must give identical files (a shop's file comparison, and
+    re-exports that change nothing must not look changed).
+    """
+    import ezdxf
+
+    # The CLASSES section is filled from a set (its order follows Python's string hashing,
+    # which changes from process to process): fill it now and order it by name.
+    doc.classes.add_required_classes(doc.dxfversion)
+    doc.classes.classes = dict(sorted(doc.classes.classes.items(), key=lambda kv: str(kv[0])))
     buf = io.StringIO()
-    doc.write(buf)
-    return write_text_atomic(path, buf.getvalue())
+    before = ezdxf.options.write_fixed_meta_data_for_testing
+    ezdxf.options.write_fixed_meta_data_for_testing = True
+    try:
+        doc.write(buf)
+    finally:
+        ezdxf.options.write_fixed_meta_data_for_testing = before
+    # ezdxf's own "created by / written by" markers carry a clock time: keep the version only.
+    text = re.sub(r"^(\d+\.\d+\.\d+\S*) @ \d{4}-\d\d-\d\dT[0-9:.+\-]+$", r"\1", buf.getvalue(),
+                  flags=re.M)
+    return write_text_atomic(path, text)
 
 
 def wheel_dxf(path: str | Path, pair, cut_mm: np.ndarray, hole_m: float, flat_m: float | None,

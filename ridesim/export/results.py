@@ -17,7 +17,8 @@ import numpy as np
 
 from ridesim.errors import InputError
 
-__all__ = ["write_text_atomic", "write_bytes_atomic", "write_json_atomic", "json_ready", "flatten"]
+__all__ = ["write_text_atomic", "write_bytes_atomic", "write_json_atomic", "json_ready", "flatten",
+           "begin_set", "commit_set", "recover_sets"]
 
 
 def _umask() -> int:
@@ -165,3 +166,137 @@ def flatten(d: dict, *, lists: str = "skip", prefix: str = "") -> dict[str, Any]
         else:
             out[key] = v
     return out
+
+
+# ---------------------------------------------------------------------------- output sets
+STAGING_PREFIX = ".staging-"
+"""Name prefix of the folder (inside the output folder) a command writes its set into."""
+
+_DONE = ".complete"
+_SET = ".set-{label}.json"
+
+
+def begin_set(out: str | Path, label: str) -> Path:
+    """Start writing a command's set of files: the staging folder to write into.
+
+    A set is written whole into ``out/.staging-LABEL/`` and moved into ``out`` by
+    :func:`commit_set`. A staging folder left by a killed run is finished first when it was
+    complete (its files are moved in, :func:`recover_sets`), removed otherwise: the folder
+    then holds the previous complete set.
+
+    Parameters
+    ----------
+    out : str or Path
+        The output folder (created if missing).
+    label : str
+        The command (``render``, ``export``, ``report``).
+
+    Returns
+    -------
+    Path
+        The empty staging folder.
+    """
+    import shutil
+
+    out = Path(out)
+    out.mkdir(parents=True, exist_ok=True)
+    recover_sets(out)
+    stage = out / f"{STAGING_PREFIX}{label}"
+    if stage.exists():
+        shutil.rmtree(stage)
+    stage.mkdir()
+    return stage
+
+
+def _files_of(folder: Path) -> list[str]:
+    return sorted(p.relative_to(folder).as_posix() for p in folder.rglob("*")
+                  if p.is_file() and p.name != _DONE and not p.name.endswith(".tmp"))
+
+
+def commit_set(out: str | Path, stage: str | Path, label: str) -> list[str]:
+    """Move a complete staged set into the output folder and remove the previous set's leftovers.
+
+    The staged set is first marked complete (a file written atomically, listing the new
+    set and the previous one), so that a kill at any later moment is finished by the next
+    :func:`begin_set` or :func:`recover_sets`: files of the previous set that the new set
+    does not hold (stale track sections, pictures no longer drawn) are removed, and the
+    record of the set (``.set-LABEL.json``) is written last.
+
+    Parameters
+    ----------
+    out : str or Path
+        The output folder.
+    stage : str or Path
+        Its staging folder from :func:`begin_set`, holding the whole new set.
+    label : str
+        The command.
+
+    Returns
+    -------
+    list of str
+        The set's file names relative to ``out``.
+    """
+    out, stage = Path(out), Path(stage)
+    new = _files_of(stage)
+    previous: list[str] = []
+    record = out / _SET.format(label=label)
+    try:
+        previous = list(json.loads(record.read_text(encoding="utf-8"))["files"])
+    except (OSError, ValueError, KeyError, TypeError):
+        previous = []
+    write_json_atomic(stage / _DONE, {"label": label, "files": new, "previous": previous})
+    _finish(out, stage)
+    return new
+
+
+def _finish(out: Path, stage: Path) -> None:
+    import shutil
+
+    info = json.loads((stage / _DONE).read_text(encoding="utf-8"))
+    new = list(info["files"])
+    for rel in new:
+        src = stage / rel
+        if src.exists():
+            (out / rel).parent.mkdir(parents=True, exist_ok=True)
+            os.replace(src, out / rel)
+    keep = set(new)
+    for rel in info["previous"]:
+        p = out / rel
+        if rel not in keep and ".." not in Path(rel).parts and p.is_file():
+            p.unlink()
+    write_json_atomic(out / _SET.format(label=info["label"]), {"files": new})
+    shutil.rmtree(stage)
+
+
+def recover_sets(out: str | Path) -> list[str]:
+    """Finish or discard the staged sets a killed run left in an output folder.
+
+    Parameters
+    ----------
+    out : str or Path
+        The output folder.
+
+    Returns
+    -------
+    list of str
+        Labels of the sets that were finished (complete when the run was killed).
+    """
+    import shutil
+
+    out = Path(out)
+    done = []
+    if not out.is_dir():
+        return done
+    for stage in sorted(out.glob(f"{STAGING_PREFIX}*")):
+        if not stage.is_dir():
+            continue
+        try:
+            complete = (stage / _DONE).is_file()
+            if complete:
+                _finish(out, stage)
+                done.append(stage.name[len(STAGING_PREFIX):])
+                continue
+        except (OSError, ValueError, KeyError):
+            pass
+        shutil.rmtree(stage, ignore_errors=True)
+    return done

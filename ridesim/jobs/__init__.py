@@ -17,11 +17,106 @@ the same figures. Each layer is imported only when its job runs.
 
 from __future__ import annotations
 
-from collections.abc import Callable
+import contextlib
+import math
+import os
+import warnings
+from collections.abc import Callable, Iterator
 
 from ridesim.scenario.load import Scenario
 
-__all__ = ["JOBS", "run_job"]
+__all__ = ["JOBS", "run_job", "numeric_warnings", "check_figures"]
+
+
+def _non_finite(data, path: str = "") -> tuple[str, float] | None:
+    """The first number of a result that is not finite, with its dotted path; None: none."""
+    stack = [(data, path)]
+    while stack:
+        value, where = stack.pop()
+        if isinstance(value, dict):
+            stack.extend((v, f"{where}.{k}" if where else str(k)) for k, v in value.items())
+        elif isinstance(value, (list, tuple)):
+            stack.extend((v, f"{where}[{i}]") for i, v in enumerate(value))
+        elif isinstance(value, float) and not math.isfinite(value):
+            return where, value
+        elif hasattr(value, "dtype") and getattr(value, "size", 0):
+            import numpy as np
+
+            arr = np.asarray(value)
+            if arr.dtype.kind == "f" and not np.all(np.isfinite(arr)):
+                return where, float(arr[~np.isfinite(arr)].ravel()[0])
+    return None
+
+
+def check_figures(name: str, data: dict, sc: Scenario) -> None:
+    """Refuse a job's figures that are divergence rather than a result.
+
+    A figure that is not finite, or (simulate) an axle bounce larger than the wheel's
+    greatest radius, means the computation ran away: it is an error, never a clean result.
+
+    Parameters
+    ----------
+    name : str
+        Job name (``simulate``, ``size-motor``, ...).
+    data : dict
+        The job's result as a dict (before JSON conversion).
+    sc : Scenario
+        The scenario it ran.
+
+    Raises
+    ------
+    SimulationError
+        One line naming the figure, its value and what to change.
+    """
+    from ridesim.errors import SimulationError
+
+    bad = _non_finite(data)
+    if bad is not None:
+        raise SimulationError(f"{name}: the figure {bad[0]} came out {bad[1]} (not a finite"
+                              " number): the computation diverged; check the scenario's"
+                              " magnitudes (speeds, sizes, masses) and run.timestep_s")
+    bounce = data.get("axle_bounce_m") if name == "simulate" else None
+    if isinstance(bounce, (int, float)):
+        from ridesim.scenario.build import solve_scenario
+
+        r_max = float(solve_scenario(sc).depth_range()[1])
+        if bounce > r_max:
+            raise SimulationError(
+                f"simulate: axle bounce {1000 * bounce:.1f} mm is larger than the wheel (greatest"
+                f" radius {1000 * r_max:.1f} mm): the simulation diverged, not a ride; lower the"
+                " drive speed or torque, or shorten run.timestep_s")
+
+
+@contextlib.contextmanager
+def numeric_warnings() -> Iterator[list[str]]:
+    """Collect the numerical warnings (overflow, division by zero, invalid values) of a job.
+
+    Library warnings raised inside the block are not printed; the context yields a list
+    that, after the block, holds one line per distinct warning naming where it arose, for
+    the job's ``warnings`` (figures computed through such a step may be unreliable).
+
+    Yields
+    ------
+    list of str
+        Filled when the block ends.
+    """
+    lines: list[str] = []
+    with warnings.catch_warnings(record=True) as caught:
+        warnings.simplefilter("always")
+        try:
+            yield lines
+        finally:
+            seen = set()
+            for w in caught:
+                if not issubclass(w.category, RuntimeWarning):
+                    continue
+                where = os.path.relpath(w.filename, os.path.dirname(os.path.dirname(__file__)))
+                where = where if not where.startswith("..") else os.path.basename(w.filename)
+                text = (f"numerical trouble in {where}: {w.message}; figures computed through"
+                        " it may be unreliable (check the scenario's magnitudes)")
+                if text not in seen:
+                    seen.add(text)
+                    lines.append(text)
 
 
 def _solve(sc: Scenario, progress=None) -> dict:
@@ -82,4 +177,9 @@ def run_job(name: str, sc: Scenario, progress=None) -> dict:
     from ridesim.jobs.hub import require_line
 
     require_line(sc, name)
-    return json_ready(JOBS[name](sc, progress=progress))
+    with numeric_warnings() as trouble:
+        out = JOBS[name](sc, progress=progress)
+    check_figures(name, out, sc)
+    if trouble:
+        out = {**out, "warnings": list(out.get("warnings", [])) + trouble}
+    return json_ready(out)

@@ -9,7 +9,6 @@ properties (explicit ``mass_kg``/``inertia_kg_m2`` override the plate model).
 
 from __future__ import annotations
 
-import csv
 import re
 from dataclasses import replace
 from pathlib import Path
@@ -41,6 +40,14 @@ def read_points_csv(path: str | Path, key: str) -> np.ndarray:
     ridesim's own cut files are written) is read in millimetres and converted. A header
     without a unit (``x,y``) means metres.
 
+    What can be read unambiguously is read: a UTF-8 byte-order mark (as spreadsheets write
+    it) is skipped, UTF-16 with its byte-order mark is decoded, bytes that are not UTF-8 are
+    tolerated inside ``#`` comments, cells may be separated by commas or tabs, and a third
+    column is ignored when it holds the same number on every line (a drawing's z = 0). The
+    rest is refused with one line saying what was found: a binary file, undecodable text, a
+    varying third column, more than :data:`~ridesim.scenario.schema.MAX_POINTS` points, a
+    file larger than :data:`~ridesim.scenario.schema.MAX_FILE_BYTES`.
+
     Parameters
     ----------
     path : str or Path
@@ -53,31 +60,94 @@ def read_points_csv(path: str | Path, key: str) -> np.ndarray:
     ndarray, shape (N, 2)
         Points [m].
     """
-    rows: list[list[float]] = []
-    scale = 1.0
+    from ridesim.scenario.schema import MAX_FILE_BYTES, MAX_LENGTH_M, MAX_POINTS
+
     try:
-        with open(path, newline="", encoding="utf-8") as fh:
-            for lineno, row in enumerate(csv.reader(fh), start=1):
-                cells = [c.strip() for c in row if c.strip()]
-                if not cells or cells[0].startswith("#"):
-                    continue
-                try:
-                    vals = [float(c) for c in cells[:2]]
-                except ValueError:
-                    if not rows:
-                        scale = _header_scale(cells, path, key, lineno)
-                        continue  # header row
-                    raise ScenarioError(
-                        f"{key}: line {lineno} of {path} is not two numbers x, y"
-                    ) from None
-                if len(vals) != 2:
-                    raise ScenarioError(f"{key}: line {lineno} of {path} needs two columns x, y")
-                rows.append(vals)
+        size = Path(path).stat().st_size
+        if size > MAX_FILE_BYTES:
+            raise ScenarioError(f"{key}: {path} is {size} bytes, larger than the limit of"
+                                f" {MAX_FILE_BYTES} bytes for a points file; thin the points"
+                                f" (at most {MAX_POINTS})")
+        with open(path, "rb") as fh:
+            data = fh.read()
     except OSError as exc:
         raise ScenarioError(f"{key}: cannot read {path}: {exc.strerror}") from None
+    lines = _decode_lines(data, path, key)
+    rows: list[list[float]] = []
+    thirds: list[tuple[int, float]] = []
+    scale = 1.0
+    header_seen = False
+    for lineno, line in lines:
+        if line.lstrip().startswith("#") or not line.strip():
+            continue
+        sep = "," if "," in line else "\t"
+        cells = [c.strip() for c in line.split(sep) if c.strip()]
+        try:
+            vals = [float(c) for c in cells]
+        except ValueError:
+            if not rows and not header_seen:
+                header_seen = True
+                scale = _header_scale(cells, path, key, lineno)
+                continue  # header row
+            why = (" (cells separated by ';' with decimal commas?)" if ";" in line else "")
+            raise ScenarioError(
+                f"{key}: line {lineno} of {path} is not two numbers x, y{why}; write x, y with"
+                " a decimal point, separated by a comma or a tab"
+            ) from None
+        if len(vals) < 2:
+            raise ScenarioError(f"{key}: line {lineno} of {path} needs two columns x, y"
+                                f" separated by a comma or a tab, found {len(vals)}")
+        if len(vals) > 3:
+            raise ScenarioError(f"{key}: line {lineno} of {path} has {len(vals)} columns;"
+                                " give two columns x, y")
+        if not all(np.isfinite(vals)) or max(abs(v) for v in vals[:2]) * scale > MAX_LENGTH_M:
+            raise ScenarioError(f"{key}: line {lineno} of {path} holds {cells[0]}, {cells[1]}:"
+                                f" coordinates must be finite and within {MAX_LENGTH_M:g} m")
+        if len(vals) == 3:
+            thirds.append((lineno, vals[2]))
+        rows.append(vals[:2])
+        if len(rows) > MAX_POINTS:
+            raise ScenarioError(f"{key}: {path} holds more than {MAX_POINTS} points, the limit;"
+                                " thin the points")
+    if thirds:
+        first = thirds[0][1]
+        varying = next(((n, z) for n, z in thirds if z != first), None)
+        if len(thirds) != len(rows) or varying is not None:
+            n, z = varying if varying is not None else (thirds[0][0], first)
+            raise ScenarioError(
+                f"{key}: {path} has a third column that is not the same on every line (line"
+                f" {n}: {z:g}); give two columns x, y (a constant z is ignored)")
     if len(rows) < 3:
-        raise ScenarioError(f"{key}: {path} holds {len(rows)} points; at least 3 are needed")
+        raise ScenarioError(f"{key}: {path} holds {len(rows)} points; at least 3 are needed"
+                            " (one x, y pair per line, separated by a comma or a tab)")
     return scale * np.array(rows)
+
+
+def _decode_lines(data: bytes, path, key: str) -> list[tuple[int, str]]:
+    """The numbered text lines of a points file's bytes (see :func:`read_points_csv`)."""
+    if data.startswith((b"\xff\xfe", b"\xfe\xff")):
+        try:
+            text = data.decode("utf-16")
+        except UnicodeDecodeError:
+            raise ScenarioError(f"{key}: {path} starts like UTF-16 text but does not decode as"
+                                " UTF-16; save it as UTF-8 text") from None
+        return list(enumerate(text.splitlines(), start=1))
+    if data.startswith(b"\xef\xbb\xbf"):
+        data = data[3:]
+    nul = data.find(b"\x00")
+    if nul >= 0:
+        raise ScenarioError(f"{key}: {path} is not a text file (it holds NUL bytes, at byte"
+                            f" {nul}); give a CSV text file of x, y lines")
+    out = []
+    for lineno, raw in enumerate(data.splitlines(), start=1):
+        try:
+            out.append((lineno, raw.decode("utf-8")))
+        except UnicodeDecodeError as exc:
+            if raw.lstrip().startswith(b"#"):
+                continue  # a comment in another encoding: nothing in it is read
+            raise ScenarioError(f"{key}: line {lineno} of {path} is not UTF-8 text (byte"
+                                f" 0x{raw[exc.start]:02x}); save the file as UTF-8") from None
+    return out
 
 
 _OTHER_LENGTH_UNITS = {"cm", "dm", "km", "um", "in", "inch", "inches", "ft", "feet", "foot"}
@@ -237,13 +307,61 @@ def solve_track_scenario(sc: Scenario) -> RollingPair:
     if sc.path.is_hub:
         raise ScenarioError("path.kind = \"hub\" has no track to solve; use solve_hub_scenario")
     if sc.wheel is not None and sc.wheel.shape is not None:
-        return _wrap("wheel", track_for, wheel_from_spec(sc.wheel))
+        wheel = wheel_from_spec(sc.wheel)
+        where = "wheel.radius_formula" if sc.wheel.shape == "polar" else "wheel"
+        _check_size(where, wheel, sc.wheel.corner_radius_m)
+        return _check_pair(where, _wrap("wheel", track_for, wheel))
     if sc.track is None:
         raise ScenarioError("the scenario needs a [wheel] with its shape or a [track]")
     t = track_from_spec(sc.track)
+    where = f"track ({sc.track.shape})"
     if sc.track.depth_m is not None:
-        return _wrap("track.depth_m", wheel_for, t, depth=sc.track.depth_m)
-    return _wrap("track.lobes", wheel_for, t, lobes=sc.track.lobes or 1)
+        pair = _wrap("track.depth_m", wheel_for, t, depth=sc.track.depth_m)
+    else:
+        pair = _wrap("track.lobes", wheel_for, t, lobes=sc.track.lobes or 1)
+    if pair.closed:  # an unclosed pair has no wheel; the check says so
+        _check_size(where, pair.wheel, sc.wheel.corner_radius_m if sc.wheel is not None else None)
+    return _check_pair(where, pair)
+
+
+def _check_size(where: str, wheel: Wheel, corner_radius_m: float | None = None) -> None:
+    """Refuse a wheel whose radius is not finite or lies outside the sizes ridesim computes with.
+
+    The limits are :data:`~ridesim.scenario.schema.MIN_LENGTH_M` and
+    :data:`~ridesim.scenario.schema.MAX_LENGTH_M`, as for every length key: a formula or a
+    solved wheel can reach sizes no key would accept (``1e-300 + 1e-301*cos(phi)``).
+    """
+    from ridesim.scenario.schema import MAX_LENGTH_M, MIN_LENGTH_M
+
+    with np.errstate(all="ignore"):
+        r = np.asarray(wheel.radius(np.linspace(0.0, 2.0 * np.pi, 720, endpoint=False)), float)
+    if not np.all(np.isfinite(r)):
+        raise ScenarioError(f"{where}: the wheel's radius is not a finite number at every angle;"
+                            " check the formula or the values")
+    lo, hi = float(r.min()), float(r.max())
+    if lo < MIN_LENGTH_M * (1.0 - 1e-9) or hi > MAX_LENGTH_M * (1.0 + 1e-9):
+        raise ScenarioError(f"{where}: the wheel's radius runs from {lo:.3g} to {hi:.3g} m,"
+                            f" outside the sizes ridesim computes with ({MIN_LENGTH_M:g} to"
+                            f" {MAX_LENGTH_M:g} m); check the values and their units")
+    if corner_radius_m is not None and corner_radius_m >= lo:
+        raise ScenarioError(f"wheel.corner_radius_m = {corner_radius_m:g} m is not smaller than the"
+                            f" wheel's least radius {lo:.4g} m: a rounded corner must fit inside"
+                            " the wheel; give a radius of a few per cent of it (0: the default)")
+
+
+def _check_pair(where: str, pair: RollingPair) -> RollingPair:
+    """Refuse a solved pair whose period or revolution length is not a finite usable length."""
+    from ridesim.scenario.schema import MAX_LENGTH_M, MIN_LENGTH_M
+
+    figures = [("track period", pair.track.period)]
+    if pair.closed:
+        figures.append(("revolution length", pair.revolution_length))
+    for name, v in figures:
+        v = float(v)
+        if not (np.isfinite(v) and MIN_LENGTH_M <= v <= 1000.0 * MAX_LENGTH_M):
+            raise ScenarioError(f"{where}: the solved {name} is {v:.3g} m, outside the lengths"
+                                " ridesim computes with; check the values and their units")
+    return pair
 
 
 def solve_hub_scenario(sc: Scenario) -> HubPair:
@@ -289,6 +407,7 @@ def resolve_wheelbase(sc: Scenario, pair: RollingPair) -> Scenario:
     """
     veh = sc.vehicle
     if veh.wheelbase_periods is None:
+        _check_overlap(veh.axles, veh.wheelbase_m, pair)
         return sc
     period = float(pair.track.period)
     wb = float(veh.wheelbase_periods) * period
@@ -301,8 +420,30 @@ def resolve_wheelbase(sc: Scenario, pair: RollingPair) -> Scenario:
                 f" {wb:.6g} m) differ by {1000 * abs(veh.wheelbase_m - wb):.3g} mm, more than"
                 f" vehicle.wheelbase_tolerance_m = {1000 * tol:g} mm; give only one of them"
             )
+        _check_overlap(veh.axles, veh.wheelbase_m, pair)
         return sc
+    _check_overlap(veh.axles, wb, pair)
     return replace(sc, vehicle=replace(veh, wheelbase_m=wb))
+
+
+def _check_overlap(axles: int, wheelbase_m: float, pair: RollingPair) -> None:
+    """Refuse neighbouring wheels that must run into each other.
+
+    Each wheel turns through every angle, so at some moment a wheel's farthest rim point
+    (``r_max`` from its axle) faces the neighbouring axle and lies ``wheelbase - r_max`` from
+    it; below ``r_min + r_max`` that point is inside the neighbour's inscribed circle: the
+    wheels (in one plane, on one track) overlap.
+    """
+    if axles < 2:
+        return
+    with np.errstate(all="ignore"):
+        r = np.asarray(pair.wheel.radius(np.linspace(0.0, 2.0 * np.pi, 720, endpoint=False)))
+    reach = float(r.min() + r.max())
+    if wheelbase_m < reach:
+        raise ScenarioError(
+            f"vehicle.wheelbase_m = {wheelbase_m:.6g} m is less than r_min + r_max ="
+            f" {reach:.6g} m of the wheel: neighbouring wheels on one track would run into"
+            " each other; lengthen the wheelbase (a whole-period one from `ridesim solve`)")
 
 
 def wheel_mass(sc: Scenario, wheel: Wheel) -> MassProperties:

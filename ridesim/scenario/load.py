@@ -40,6 +40,10 @@ from ridesim.scenario import schema as _schema
 from ridesim.scenario.schema import (
     DRIVE_MODES,
     KEY,
+    MAX_DESCRIPTION_CHARS,
+    MAX_FILE_BYTES,
+    MAX_NAME_CHARS,
+    MAX_NESTING,
     MAX_TIMESTEP_S,
     SECTIONS,
     TRACK_SHAPES,
@@ -70,6 +74,7 @@ __all__ = [
     "load_scenario",
     "scenario_from_dict",
     "scenario_keys",
+    "check_nesting",
 ]
 
 DEFAULT_WHEEL_THICKNESS_M = default_of("wheel.thickness_m")
@@ -819,8 +824,15 @@ def load_scenario(path: str | Path) -> Scenario:
     if p.is_dir():
         raise ScenarioError(f"scenario path is a folder, not a file: {p}")
     try:
+        size = p.stat().st_size
+        if size > MAX_FILE_BYTES:
+            raise ScenarioError(f"{p}: scenario file of {size} bytes is larger than the limit of"
+                                f" {MAX_FILE_BYTES} bytes; give long point lists in a points file")
         with p.open("rb") as fh:
             data = tomllib.load(fh)
+    except RecursionError:
+        raise ScenarioError(f"{p}: tables or lists nested too deep to read; a scenario nests at"
+                            f" most {MAX_NESTING} deep") from None
     except tomllib.TOMLDecodeError as exc:
         raise ScenarioError(f"{p}: TOML syntax error: {_one_line(str(exc))}") from exc
     except UnicodeDecodeError as exc:
@@ -869,14 +881,18 @@ def scenario_from_dict(
         raise ScenarioError(
             f"{source}: a scenario must be a table of keys, got {_show(data)} ({_type(data)})"
         )
+    check_nesting(data, source)
     data = _drop_none(data)
     for key in data:
         if key not in _TOP_KEYS:
             raise _unknown("", str(key), _TOP_KEYS)
 
     default_name = "unnamed" if source.startswith("<") else Path(source).stem
-    name = _as_str("name", data.get("name", default_name), nonempty=True)
-    description = _as_str("description", data.get("description", ""), nonempty=False)
+    name = _check_text("name", _as_str("name", data.get("name", default_name), nonempty=True),
+                       MAX_NAME_CHARS, allow="")
+    description = _check_text(
+        "description", _as_str("description", data.get("description", ""), nonempty=False),
+        MAX_DESCRIPTION_CHARS, allow="\n\t")
 
     has_wheel, has_track = "wheel" in data, "track" in data
     material_only = (
@@ -1205,6 +1221,9 @@ def _parse_vehicle(raw: Any) -> VehicleSpec:
                 f"vehicle.phase_offsets_rad must give one angle per axle ({axles}), got {len(items)}"
             )
         phases = tuple(_as_float(f"vehicle.phase_offsets_rad[{i}]", v) for i, v in enumerate(items))
+        for i, v in enumerate(phases):
+            _check_range(f"vehicle.phase_offsets_rad[{i}]", v,
+                         **KEY["vehicle.phase_offsets_rad"].bounds)
     return VehicleSpec(
         body_mass_kg=t.get("body_mass_kg"),
         body_inertia_kg_m2=t.get("body_inertia_kg_m2"),
@@ -1466,7 +1485,8 @@ class _Table:
             raise ScenarioError(
                 f"{path} must list at least 3 [x, y] points, got {len(items)}"
             )
-        return tuple(_as_pair(f"{path}[{i}]", item) for i, item in enumerate(items))
+        bounds = KEY[path].bounds
+        return tuple(_as_pair(f"{path}[{i}]", item, **bounds) for i, item in enumerate(items))
 
     def file(self, name: str, base: Path) -> str:
         path = self.key(name)
@@ -1478,6 +1498,54 @@ class _Table:
                 f"read from the scenario's folder {base})"
             )
         return str(target)
+
+
+def check_nesting(data: Any, source: str = "<dict>", limit: int | None = None) -> None:
+    """Refuse data nested deeper than :data:`~ridesim.scenario.schema.MAX_NESTING`.
+
+    Walks the tables and lists without recursion, so that any depth gets one line.
+
+    Parameters
+    ----------
+    data : object
+        Parsed file contents (tables, lists and values).
+    source : str, optional
+        Label of the file for the message.
+    limit : int, optional
+        Deepest nesting allowed; default :data:`~ridesim.scenario.schema.MAX_NESTING`.
+
+    Raises
+    ------
+    ScenarioError
+        When a table or list lies deeper than the limit.
+    """
+    limit = MAX_NESTING if limit is None else limit
+    stack: list[tuple[Any, int, str]] = [(data, 0, "")]
+    while stack:
+        value, depth, where = stack.pop()
+        if isinstance(value, Mapping):
+            children = [(v, f"{where}.{k}" if where else str(k)) for k, v in value.items()]
+        elif isinstance(value, (list, tuple)):
+            children = [(v, f"{where}[{i}]") for i, v in enumerate(value)]
+        else:
+            continue
+        if depth >= limit:
+            where = where if len(where) <= 60 else where[:57] + "..."
+            raise ScenarioError(f"{where or source}: tables or lists nested deeper than the limit"
+                                f" of {limit}; a scenario needs at most 4 (section, list, point)")
+        stack.extend((v, depth + 1, w) for v, w in children)
+
+
+def _check_text(path: str, text: str, limit: int, allow: str) -> str:
+    """Refuse text longer than ``limit`` characters or holding control characters."""
+    if len(text) > limit:
+        raise ScenarioError(f"{path} is {len(text)} characters long, more than the limit of"
+                            f" {limit}; shorten it")
+    for i, ch in enumerate(text):
+        if (ord(ch) < 32 or 0x7f <= ord(ch) < 0xa0) and ch not in allow:
+            raise ScenarioError(f"{path} holds the control character U+{ord(ch):04X} at"
+                                f" position {i}; remove it")
+    return text
 
 
 def _drop_none(raw: Mapping[str, Any]) -> dict[str, Any]:
@@ -1517,6 +1585,10 @@ def _as_list(path: str, value: Any, what: str) -> list[Any]:
         value = value.tolist()
     if not isinstance(value, (list, tuple)):
         raise ScenarioError(f"{path} must be {what}, got {_show(value)} ({_type(value)})")
+    k = KEY.get(path)
+    if k is not None and k.max_len is not None and len(value) > k.max_len:
+        raise ScenarioError(f"{path} lists {len(value)} items, more than the limit of"
+                            f" {k.max_len}; give at most {k.max_len}")
     return list(value)
 
 
@@ -1552,6 +1624,7 @@ def _check_range(
         and (le is None or value <= le)
     )
     if ok:
+        _check_magnitude(path, value)
         return
     parts = [
         f"{op} {bound:g}"
@@ -1559,6 +1632,27 @@ def _check_range(
         if bound is not None
     ]
     raise ScenarioError(f"{path} must be {' and '.join(parts)}, got {_show(value)}")
+
+
+def _check_magnitude(path: str, value: float) -> None:
+    """Refuse a value beyond its key's magnitude limit, or positive but too small to compute with.
+
+    The key is the path without its index suffix (``wheel.points_m[3][0]`` is
+    ``wheel.points_m``); paths that are not keys of the table are not checked.
+    """
+    key = KEY.get(path.split("[")[0])
+    if key is None:
+        return
+    unit = "" if key.unit in ("", "-") else f" {key.unit}"
+    if key.most is not None and abs(value) > key.most:
+        raise ScenarioError(f"{path} = {_show(value)}{unit} is beyond the limit of"
+                            f" {key.most:g}{unit} in magnitude (no real build comes near it, and"
+                            " the mathematics loses its meaning); check the value and its unit")
+    floor = _schema.tiny_of(key)
+    if floor is not None and 0.0 < abs(value) < floor:
+        raise ScenarioError(f"{path} = {_show(value)}{unit} is too small to compute with (the"
+                            f" smallest accepted is {floor:g}{unit}); check the value and its"
+                            " unit")
 
 
 def _check_area(path: str, points: tuple[Point, ...]) -> None:

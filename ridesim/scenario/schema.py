@@ -38,6 +38,7 @@ Examples
 from __future__ import annotations
 
 import argparse
+import math
 import numbers
 import sys
 from collections.abc import Iterable
@@ -51,6 +52,15 @@ __all__ = [
     "PATH_KINDS",
     "HUB_SIDES",
     "MAX_TIMESTEP_S",
+    "MIN_LENGTH_M",
+    "MAX_LENGTH_M",
+    "TINY",
+    "tiny_of",
+    "MAX_POINTS",
+    "MAX_FILE_BYTES",
+    "MAX_NESTING",
+    "MAX_NAME_CHARS",
+    "MAX_DESCRIPTION_CHARS",
     "REQUIRED",
     "Key",
     "KEYS",
@@ -74,6 +84,35 @@ DRIVE_MODES = ("speed", "shaft_speed", "torque")
 
 MAX_TIMESTEP_S = 0.02
 """Largest accepted ``run.timestep_s`` in s."""
+
+MIN_LENGTH_M = 1e-6
+"""Smallest accepted size (a wheel, a track feature, a step) in m: 1 um, below any build."""
+
+TINY = {"m": MIN_LENGTH_M, "kg m^2": 1e-15, "": 1e-9}
+"""Smallest value a key that must be > 0 accepts, by unit (key ``""``: every other unit), in
+SI units: smaller values underflow the mathematics (a speed of 5e-324 m/s squared is 0) and
+are most likely a unit slip."""
+
+MAX_LENGTH_M = 1000.0
+"""Largest accepted length or coordinate in m: beyond it squares and integrals of lengths
+lose their meaning long before they overflow (no wheel or track is a kilometre)."""
+
+MAX_POINTS = 10000
+"""Most points an outline or a track profile may list (inline or in a points file)."""
+
+MAX_FILE_BYTES = 2_000_000
+"""Largest points file in bytes read for ``wheel.file`` / ``track.file`` (2 MB holds far more
+than :data:`MAX_POINTS` lines)."""
+
+MAX_NESTING = 8
+"""Deepest nesting of tables and lists a scenario or sweep file may hold (a scenario needs 4:
+file, section, list of points, point)."""
+
+MAX_NAME_CHARS = 100
+"""Longest scenario ``name`` in characters (it names output files)."""
+
+MAX_DESCRIPTION_CHARS = 2000
+"""Longest scenario ``description`` in characters."""
 
 PATH_KINDS = ("line", "hub")
 """Allowed values of ``path.kind`` (the same as ``ridesim.model.path.PATH_KINDS``)."""
@@ -131,6 +170,13 @@ class Key:
         Allowed values of a ``choice`` key.
     shapes : tuple of str
         Wheel or track shapes that use the key; empty: every shape.
+    most : float or None
+        Largest accepted magnitude (absolute value; for pairs and lists every number): the
+        limit beyond which the value is no build and the mathematics loses its meaning (a
+        wheel of 1e30 m, 10^9 axles). Unlike the bounds it is a limit of the program, not of
+        the physics; None: none.
+    max_len : int or None
+        Most items a list key (``points``, ``ints``, ``reals``) may hold; None: no limit.
     """
 
     section: str
@@ -147,6 +193,8 @@ class Key:
     source: str = ""
     choices: tuple[str, ...] = ()
     shapes: tuple[str, ...] = ()
+    most: float | None = None
+    max_len: int | None = None
 
     @property
     def path(self) -> str:
@@ -172,6 +220,9 @@ _TORQUE_NM = (1e-4, 5000.0)
 _TORQUE_SRC = "common practice: toy gearmotors (mN m) to ride-on drive shafts (kN m)"
 _ERROR_SRC = "common practice: build errors are millimetres; centimetres are a different build"
 
+_SIZE = {"gt": 0.0, "most": MAX_LENGTH_M}
+_COORD = {"most": MAX_LENGTH_M}
+
 _POLYGON = ("polygon",)
 _OUTLINE = ("outline",)
 
@@ -182,28 +233,29 @@ KEYS: tuple[Key, ...] = (
         choices=WHEEL_SHAPES),
     Key("wheel", "sides", "int", None, "-",
         "number of equal sides (required with apothem_m, circumradius_m or side_m)",
-        ge=3, shapes=_POLYGON),
+        ge=3, most=1000, shapes=_POLYGON),
     Key("wheel", "apothem_m", "real", REQUIRED, "m",
         "centre-to-side distance (give exactly one polygon size)",
-        gt=0, plausible=_WHEEL_SIZE_M, source=_WHEEL_SIZE_SRC, shapes=_POLYGON),
+        **_SIZE, plausible=_WHEEL_SIZE_M, source=_WHEEL_SIZE_SRC, shapes=_POLYGON),
     Key("wheel", "circumradius_m", "real", REQUIRED, "m",
         "centre-to-corner distance (give exactly one polygon size)",
-        gt=0, plausible=_WHEEL_SIZE_M, source=_WHEEL_SIZE_SRC, shapes=_POLYGON),
+        **_SIZE, plausible=_WHEEL_SIZE_M, source=_WHEEL_SIZE_SRC, shapes=_POLYGON),
     Key("wheel", "side_m", "real", REQUIRED, "m",
         "side length (give exactly one polygon size)",
-        gt=0, plausible=_WHEEL_SIZE_M, source=_WHEEL_SIZE_SRC, shapes=_POLYGON),
+        **_SIZE, plausible=_WHEEL_SIZE_M, source=_WHEEL_SIZE_SRC, shapes=_POLYGON),
     Key("wheel", "vertices_m", "points", REQUIRED, "m",
-        "corners [x, y], at least 3 (give exactly one polygon size)", shapes=_POLYGON),
+        "corners [x, y], at least 3 (give exactly one polygon size)",
+        **_COORD, max_len=MAX_POINTS, shapes=_POLYGON),
     Key("wheel", "semi_axes_m", "pair", REQUIRED, "m",
         "semi-axes [a, b], a along x",
-        gt=0, plausible=_WHEEL_SIZE_M, source=_WHEEL_SIZE_SRC, shapes=("ellipse",)),
+        **_SIZE, plausible=_WHEEL_SIZE_M, source=_WHEEL_SIZE_SRC, shapes=("ellipse",)),
     Key("wheel", "radius_m", "real", REQUIRED, "m", "circle radius",
-        gt=0, plausible=_WHEEL_SIZE_M, source=_WHEEL_SIZE_SRC, shapes=("circle",)),
+        **_SIZE, plausible=_WHEEL_SIZE_M, source=_WHEEL_SIZE_SRC, shapes=("circle",)),
     Key("wheel", "radius_formula", "str", REQUIRED, "m",
         "radius as a formula in the polar angle phi (rad) about the axle", shapes=("polar",)),
     Key("wheel", "points_m", "points", REQUIRED, "m",
         "outline points [x, y], at least 3 (give exactly one of points_m, file)",
-        shapes=_OUTLINE),
+        **_COORD, max_len=MAX_POINTS, shapes=_OUTLINE),
     Key("wheel", "file", "file", REQUIRED, "m",
         "outline file relative to the scenario's folder: CSV points x, y, or a DXF or SVG drawing"
         " (give exactly one of points_m, file)", shapes=_OUTLINE),
@@ -224,29 +276,29 @@ KEYS: tuple[Key, ...] = (
         " by corner_angle_deg", shapes=_OUTLINE),
     Key("wheel", "scale", "real", 1.0, "-",
         "as-built size over nominal size (1.002: cut 0.2 % large)",
-        gt=0, plausible=(0.9, 1.1),
+        gt=0, most=2.0, plausible=(0.9, 1.1),
         source="common practice: a wheel 10 % off its size is a different wheel"),
     Key("wheel", "axle_error_m", "pair", (0.0, 0.0), "m",
         "as-built axle hole position minus the nominal one [x, y]",
-        plausible=(-0.05, 0.05), source=_ERROR_SRC),
+        **_COORD, plausible=(-0.05, 0.05), source=_ERROR_SRC),
     Key("wheel", "axle_m", "pair", (0.0, 0.0), "m",
         "axle position [x, y] in the outline's coordinates (not for polar); a DXF or SVG"
-        " outline: unset means the smallest circle inside it"),
+        " outline: unset means the smallest circle inside it", **_COORD),
     Key("wheel", "thickness_m", "real", 0.02, "m", "plate thickness",
-        gt=0, plausible=(0.001, 0.3),
+        **_SIZE, plausible=(0.001, 0.3),
         source="common practice: 1 mm sheet to 30 cm solid wheels"),
     Key("wheel", "density_kg_m3", "real", 700.0, "kg/m^3", "material density",
-        gt=0, plausible=(10.0, 20000.0),
+        gt=0, most=1e5, plausible=(10.0, 20000.0),
         source="common practice [memory]: rigid foams (about 30) to tungsten (19,300)"),
     Key("wheel", "mass_kg", "real", None, "kg",
         "wheel mass; unset: area x thickness x density",
-        gt=0, plausible=(0.001, 1000.0),
+        gt=0, most=1e5, plausible=(0.001, 1000.0),
         source="common practice: a 1 g toy wheel to a steel ride-on wheel"),
     Key("wheel", "inertia_kg_m2", "real", None, "kg m^2",
-        "moment of inertia about the axle; unset: the outline as a uniform plate", gt=0),
+        "moment of inertia about the axle; unset: the outline as a uniform plate", gt=0, most=1e6),
     Key("wheel", "corner_radius_m", "real", 0.0, "m",
         "radius to which sharp corners are rounded in the simulation; 0: 2 % of the least"
-        " rim radius there (the check and cut files keep corners sharp)", ge=0),
+        " rim radius there (the check and cut files keep corners sharp)", ge=0, most=MAX_LENGTH_M),
     Key("wheel", "fit_track_to_corners", "bool", False, "",
         "solve the track for the corners rounded to corner_radius_m (smooth valleys)",
         shapes=_POLYGON),
@@ -255,18 +307,18 @@ KEYS: tuple[Key, ...] = (
         "profile type; left out only beside [wheel] (the track is then solved)",
         choices=TRACK_SHAPES),
     Key("track", "amplitude_m", "real", REQUIRED, "m", "wave amplitude",
-        gt=0, plausible=_TRACK_HEIGHT_M, source=_TRACK_SRC, shapes=("wave",)),
+        **_SIZE, plausible=_TRACK_HEIGHT_M, source=_TRACK_SRC, shapes=("wave",)),
     Key("track", "wavelength_m", "real", REQUIRED, "m", "wave length",
-        gt=0, plausible=_TRACK_LENGTH_M, source=_TRACK_SRC, shapes=("wave",)),
+        **_SIZE, plausible=_TRACK_LENGTH_M, source=_TRACK_SRC, shapes=("wave",)),
     Key("track", "rise_m", "real", REQUIRED, "m", "tooth height",
-        gt=0, plausible=_TRACK_HEIGHT_M, source=_TRACK_SRC, shapes=("sawtooth",)),
+        **_SIZE, plausible=_TRACK_HEIGHT_M, source=_TRACK_SRC, shapes=("sawtooth",)),
     Key("track", "run_m", "real", REQUIRED, "m", "tooth horizontal length",
-        gt=0, plausible=_TRACK_LENGTH_M, source=_TRACK_SRC, shapes=("sawtooth",)),
+        **_SIZE, plausible=_TRACK_LENGTH_M, source=_TRACK_SRC, shapes=("sawtooth",)),
     Key("track", "formula", "str", REQUIRED, "m", "height as a formula in x (m)",
         shapes=("formula",)),
     Key("track", "points_m", "points", REQUIRED, "m",
         "profile points [x, y], x increasing, at least 3 (give exactly one of points_m, file)",
-        shapes=("points",)),
+        **_COORD, max_len=MAX_POINTS, shapes=("points",)),
     Key("track", "file", "file", REQUIRED, "m",
         "CSV file of profile points x, y (mm under an x_mm,y_mm header), or a DXF or SVG"
         " drawing of one period as one open curve (give exactly one of points_m, file)",
@@ -288,21 +340,21 @@ KEYS: tuple[Key, ...] = (
         " unset: by corner_angle_deg", shapes=("points",)),
     Key("track", "period_m", "real", None, "m",
         "period (required for formula; points: unset means the points' x span)",
-        gt=0, plausible=_TRACK_LENGTH_M, source=_TRACK_SRC, shapes=("formula", "points")),
+        **_SIZE, plausible=_TRACK_LENGTH_M, source=_TRACK_SRC, shapes=("formula", "points")),
     Key("track", "lobes", "int", 1, "-",
-        "track periods per wheel revolution (or give depth_m instead)", ge=1),
+        "track periods per wheel revolution (or give depth_m instead)", ge=1, most=1000),
     Key("track", "depth_m", "real", None, "m",
         "depth of the axle path below which the wheel closes, instead of lobes",
-        plausible=_WHEEL_SIZE_M, source=_WHEEL_SIZE_SRC),
+        **_COORD, plausible=_WHEEL_SIZE_M, source=_WHEEL_SIZE_SRC),
     Key("track", "height_error_m", "real", 0.0, "m",
         "as-built: standard deviation of each section's random height error",
-        ge=0, plausible=(0.0, 0.01), source=_ERROR_SRC),
-    Key("track", "error_seed", "int", 0, "-", "seed of the height error draws", ge=0),
+        ge=0, most=MAX_LENGTH_M, plausible=(0.0, 0.01), source=_ERROR_SRC),
+    Key("track", "error_seed", "int", 0, "-", "seed of the height error draws", ge=0, most=2**32 - 1),
     Key("track", "joint_step_m", "real", 0.0, "m",
         "as-built: height step at every joint between sections (alternately up and down)",
-        plausible=(-0.01, 0.01), source=_ERROR_SRC),
+        **_COORD, plausible=(-0.01, 0.01), source=_ERROR_SRC),
     Key("track", "section_length_m", "real", 1.0, "m", "length of the sections between joints",
-        ge=0.002, plausible=(0.01, 20.0),
+        ge=0.002, most=MAX_LENGTH_M, plausible=(0.01, 20.0),
         source="common practice: short printed pieces to 20 m rails"),
     # ---------------------------------------------------------------- [path]
     Key("path", "kind", "choice", "line", "",
@@ -328,65 +380,69 @@ KEYS: tuple[Key, ...] = (
         source="common practice: a light spring on a desk model to a ride car's weight"),
     # ---------------------------------------------------------------- [vehicle]
     Key("vehicle", "body_mass_kg", "real", 10.0, "kg", "body mass without wheels",
-        ge=0, plausible=(0.0, 1000.0),
+        ge=0, most=1e5, plausible=(0.0, 1000.0),
         source="common practice: an empty toy chassis to a ride-on cart with several adult"
                " riders"),
     Key("vehicle", "body_inertia_kg_m2", "real", None, "kg m^2",
-        "body moment of inertia about its centre of mass; unset: estimated", gt=0),
+        "body moment of inertia about its centre of mass; unset: estimated", gt=0, most=1e6),
     Key("vehicle", "axles", "int", 1, "-", "number of axles, each with one wheel profile",
-        ge=1, plausible=(1.0, 10.0), source="common practice: carts and short trains"),
+        ge=1, most=32, plausible=(1.0, 10.0), source="common practice: carts and short trains"),
     Key("vehicle", "wheelbase_m", "real", 0.0, "m",
         "distance between neighbouring axles (> 0 when axles > 1)",
-        ge=0, plausible=(0.0, 20.0), source="common practice: toy carts to ride-on trains"),
+        ge=0, most=MAX_LENGTH_M, plausible=(0.0, 20.0),
+        source="common practice: toy carts to ride-on trains"),
     Key("vehicle", "wheelbase_periods", "real", None, "-",
         "wheelbase as a number of track periods (set once the track is solved); with"
         " wheelbase_m the two must agree within wheelbase_tolerance_m",
-        gt=0, plausible=(0.5, 50.0), source="common practice: one to a few dozen arches between axles"),
+        gt=0, most=1e4, plausible=(0.5, 50.0),
+        source="common practice: one to a few dozen arches between axles"),
     Key("vehicle", "wheelbase_tolerance_m", "real", 5e-4, "m",
         "build tolerance of the wheelbase: a coupled cart's wheelbase is judged by what it costs"
         " against a wheelbase off by this much",
-        ge=0, plausible=(1e-5, 5e-3), source="common practice: a drilled or jig-built chassis holds 0.5 mm"),
+        ge=0, most=1.0, plausible=(1e-5, 5e-3),
+        source="common practice: a drilled or jig-built chassis holds 0.5 mm"),
     Key("vehicle", "coupled", "bool", False, "",
         "all axles forced to turn together (chain or gears)"),
     Key("vehicle", "seat_m", "pair", (0.0, 0.3), "m",
-        "seat (rider) point [x, y] in the body frame, whose motion the ride metrics report"),
+        "seat (rider) point [x, y] in the body frame, whose motion the ride metrics report", **_COORD),
     Key("vehicle", "driven_axles", "ints", None, "-",
-        "0-based indices of the driven axles; unset: all axles"),
+        "0-based indices of the driven axles; unset: all axles", max_len=32),
     Key("vehicle", "phase_offsets_rad", "reals", None, "rad",
-        "mounting error of each wheel on a shared shaft (clockwise positive), one per axle"),
+        "mounting error of each wheel on a shared shaft (clockwise positive), one per axle",
+        most=2 * math.pi, max_len=32),
     # ---------------------------------------------------------------- [drive]
     Key("drive", "mode", "choice", "speed", "",
         "speed holds the vehicle speed, shaft_speed the axle speed, torque applies a torque",
         choices=DRIVE_MODES),
     Key("drive", "speed_m_s", "real", 0.5, "m/s", "target vehicle speed (mode speed)",
-        gt=0, plausible=(0.01, 5.0),
+        gt=0, most=100.0, plausible=(0.01, 5.0),
         source="common practice: a crawl to a run (5 m/s = 18 km/h); walking pace is 1.4 m/s"),
     Key("drive", "accel_m_s2", "real", 0.0, "m/s^2",
         "ramp-up acceleration towards the target; 0: start at the target",
-        ge=0, plausible=_ACCEL_M_S2, source=_ACCEL_SRC),
+        ge=0, most=100.0, plausible=_ACCEL_M_S2, source=_ACCEL_SRC),
     Key("drive", "max_torque_Nm", "real", 50.0, "N m",
         "largest torque the drive may apply to hold its target",
-        gt=0, plausible=_TORQUE_NM, source=_TORQUE_SRC),
+        gt=0, most=1e6, plausible=_TORQUE_NM, source=_TORQUE_SRC),
     Key("drive", "torque_Nm", "real", None, "N m",
         "constant axle torque (required for mode torque)",
-        gt=0, plausible=_TORQUE_NM, source=_TORQUE_SRC),
+        gt=0, most=1e6, plausible=_TORQUE_NM, source=_TORQUE_SRC),
     Key("drive", "shaft_speed_rad_s", "real", None, "rad/s",
         "target axle angular speed (required for mode shaft_speed)",
-        gt=0, plausible=(0.01, 100.0),
+        gt=0, most=1e4, plausible=(0.01, 100.0),
         source="common practice: 100 rad/s is about 950 rpm at the wheel"),
     # ---------------------------------------------------------------- [surface]
     Key("surface", "friction", "real", 0.8, "-", "Coulomb friction coefficient",
-        gt=0, plausible=(0.1, 2.0),
+        gt=0, most=1000.0, plausible=(0.1, 2.0),
         source="handbook tables: 0.2 wood on wood, kinetic (engineering tables) to 1.0 rubber"
                " on dry concrete (Serway & Beichner, Table 5.2), widened about twice each way"
                " (common practice)"),
     Key("surface", "rolling_resistance", "real", 0.0, "-",
         "rolling resistance coefficient (force over normal load)",
-        ge=0, plausible=(0.0, 0.2),
+        ge=0, most=1.0, plausible=(0.0, 0.2),
         source="engineering tables: 0.001-0.002 steel on rail, 0.01-0.015 tyre on concrete,"
                " hard casters 5-20 mm lever arm, i.e. up to 0.2 on a 0.1 m wheel"),
     # ---------------------------------------------------------------- [run]
-    Key("run", "duration_s", "real", 6.0, "s", "simulated time", gt=0),
+    Key("run", "duration_s", "real", 6.0, "s", "simulated time", gt=0, most=3600.0),
     Key("run", "timestep_s", "real", 0.001, "s", "integration step",
         gt=0, le=MAX_TIMESTEP_S, plausible=(1e-5, 0.005),
         source="common practice: rigid contact wants fine steps; the README's timestep advice"
@@ -396,27 +452,27 @@ KEYS: tuple[Key, ...] = (
     Key("run", "iterations", "int", 30, "-", "constraint solver iterations per step",
         ge=1, le=1000),
     # ---------------------------------------------------------------- [duty]
-    Key("duty", "cruise_s", "real", 10.0, "s", "time at the target speed", ge=0),
+    Key("duty", "cruise_s", "real", 10.0, "s", "time at the target speed", ge=0, most=3600.0),
     Key("duty", "brake_m_s2", "real", None, "m/s^2",
         "braking deceleration; unset: the same as drive.accel_m_s2",
-        gt=0, plausible=_ACCEL_M_S2, source=_ACCEL_SRC),
+        gt=0, most=100.0, plausible=_ACCEL_M_S2, source=_ACCEL_SRC),
     Key("duty", "grade_rad", "real", 0.0, "rad", "grade of the whole run (positive uphill)",
         gt=-0.5, lt=0.5),
-    Key("duty", "rest_s", "real", 0.0, "s", "standstill at the end of the cycle", ge=0),
+    Key("duty", "rest_s", "real", 0.0, "s", "standstill at the end of the cycle", ge=0, most=3600.0),
     # ---------------------------------------------------------------- [motor]
     Key("motor", "gear_ratios", "reals", (), "-",
         "candidate reductions (motor turns per wheel turn); empty: none given",
-        gt=0, plausible=(1.0, 1000.0),
+        gt=0, most=1e5, max_len=100, plausible=(1.0, 1000.0),
         source="common practice: direct drive to multi-stage gearmotors"),
     Key("motor", "rated_torque_Nm", "real", None, "N m",
         "continuous torque rating (compared with the r.m.s. torque)",
-        gt=0, plausible=_TORQUE_NM, source=_TORQUE_SRC),
+        gt=0, most=1e6, plausible=_TORQUE_NM, source=_TORQUE_SRC),
     Key("motor", "peak_torque_Nm", "real", None, "N m",
-        "intermittent torque rating; unset: 2 x rated", gt=0,
+        "intermittent torque rating; unset: 2 x rated", gt=0, most=1e6,
         plausible=_TORQUE_NM, source=_TORQUE_SRC),
     Key("motor", "rated_speed_rad_s", "real", None, "rad/s",
         "rated speed (compared with the top shaft speed)",
-        gt=0, plausible=(1.0, 2000.0),
+        gt=0, most=1e5, plausible=(1.0, 2000.0),
         source="common practice: slow gearmotor outputs to 19,000 rpm small DC motors"),
     Key("motor", "efficiency", "real", 0.85, "-", "gear efficiency",
         gt=0, le=1, plausible=(0.3, 1.0),
@@ -425,7 +481,7 @@ KEYS: tuple[Key, ...] = (
         "margin the ratings must keep over the duty",
         ge=1, plausible=(1.0, 5.0), source="common practice: design margins of 1.2 to 3"),
     Key("motor", "inertia_kg_m2", "real", 0.0, "kg m^2",
-        "rotor inertia (reflected to the wheel as i^2 J)", ge=0),
+        "rotor inertia (reflected to the wheel as i^2 J)", ge=0, most=1e3),
     # ---------------------------------------------------------------- [export]
     Key("export", "section_length_m", "real", 1.0, "m",
         "longest track piece in the cut files (pieces end at the track's highest points)",
@@ -478,6 +534,24 @@ def _check_table(keys: Iterable[Key]) -> None:
 
 
 _check_table(KEYS)
+
+
+def tiny_of(k: Key) -> float | None:
+    """Smallest value of a real key that must be > 0 (see :data:`TINY`).
+
+    Parameters
+    ----------
+    k : Key
+        A row of the table.
+
+    Returns
+    -------
+    float or None
+        The floor in the key's unit; None when the key has no lower bound of 0.
+    """
+    if k.kind not in ("real", "pair", "reals") or k.gt != 0.0:
+        return None
+    return TINY.get(k.unit, TINY[""])
 
 
 def default_of(path: str) -> Any:
@@ -603,6 +677,11 @@ def _show_bounds(k: Key) -> str:
         return "one of " + ", ".join(f'"{c}"' for c in k.choices)
     parts = [f"{op} {v:g}" for op, v in ((">", k.gt), (">=", k.ge), ("<", k.lt), ("<=", k.le))
              if v is not None]
+    if k.most is not None:
+        signed = k.gt is None and k.ge is None
+        parts.append(f"within ±{k.most:g} (limit)" if signed else f"at most {k.most:g} (limit)")
+    if k.max_len is not None:
+        parts.append(f"at most {k.max_len} items")
     return " and ".join(parts) if parts else "any"
 
 
@@ -633,6 +712,19 @@ def markdown_reference() -> str:
         " the command line, in the JSON output's `warnings` list, and in"
         " `Scenario.warnings` from Python), since it is most likely a unit slip. Each"
         " plausible range names its source: a handbook table or common practice.",
+        "",
+        "Limits of the whole file, so that no input can exhaust the machine: tables and lists"
+        f" nested at most {MAX_NESTING} deep; at most {MAX_POINTS} points in an outline or"
+        f" profile, inline or in a points file of at most {MAX_FILE_BYTES // 1_000_000} MB;"
+        f" lengths and coordinates within {MAX_LENGTH_M:g} m. A key that must be > 0"
+        f" refuses values too small to compute with: below {MIN_LENGTH_M:g} m for"
+        f" lengths, {TINY['kg m^2']:g} kg m^2 for inertias, {TINY['']:g} in its SI unit"
+        f" otherwise. `name` holds at most {MAX_NAME_CHARS} characters and `description` at"
+        f" most {MAX_DESCRIPTION_CHARS}, neither with control characters (a description may"
+        " hold line breaks and tabs). Points files are UTF-8 (a byte-order mark is skipped;"
+        " UTF-16 with its byte-order mark is read too), with x and y separated by a comma or a"
+        " tab; a third column is read only when it is the same on every line (a drawing's"
+        " z = 0).",
         "",
     ]
     for section in SECTIONS:

@@ -65,6 +65,7 @@ import pymunk
 
 from ridesim.errors import InputError
 from ridesim.model.tolerance import AsBuilt
+from ridesim.sim.budget import check_simulation_budget
 from ridesim.sim.world_chassis import (
     add_chassis,
     add_pitch_hold_and_gears,
@@ -365,6 +366,11 @@ def build_world(scenario, pair, mass, options: WorldOptions | None = None) -> Wo
         back, fwd = travel_bounds_m(scenario, r_lo, r_hi, masses.total_kg, opt.grade_rad, gmag)
     x_lo = float(offsets[0]) - r_hi - back - 0.1 * r_hi
     x_hi = float(offsets[-1]) + r_hi + fwd + 0.1 * r_hi
+    # Nearly straight stretches may use segments up to half the least radius long. The work
+    # is estimated from one period before the whole reach is built (refused over budget).
+    x_p = float(pair.track.pieces()[0][0])
+    one, _ = track_vertices(pair.track, x_p, x_p + float(pair.track.period), tol, 0.5 * r_min)
+    check_simulation_budget(scenario, pair.track, x_lo, x_hi, max(len(one) - 1, 1), r_min)
     # Track shapes need the corner radius: wheel corners meet the track at its valleys.
     cr_guess = _corner_radius(scenario, opt, r_min)
     clear = max(3.0 * cr_guess, 5.0 * opt.collision_slop_m)

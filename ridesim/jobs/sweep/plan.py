@@ -25,6 +25,7 @@ from __future__ import annotations
 import hashlib
 import itertools
 import json
+import math
 import tomllib
 from dataclasses import dataclass
 from pathlib import Path
@@ -34,7 +35,8 @@ import numpy as np
 
 from ridesim._version import __version__
 from ridesim.errors import ScenarioError
-from ridesim.scenario.load import Scenario, load_scenario, scenario_keys
+from ridesim.scenario.load import Scenario, check_nesting, load_scenario, scenario_keys
+from ridesim.scenario.schema import KEY
 from ridesim.validate import is_integer, is_number
 
 __all__ = ["SweepPlan", "Case", "load_sweep", "RUNS"]
@@ -79,6 +81,8 @@ class SweepPlan:
         All cases in order.
     source : str
         The sweep file.
+    warnings : tuple of str
+        Problems found before any case runs (cases that are not valid scenarios).
     """
 
     base: Scenario
@@ -86,6 +90,11 @@ class SweepPlan:
     columns: tuple[str, ...]
     cases: tuple[Case, ...]
     source: str
+    warnings: tuple[str, ...] = ()
+
+
+MAX_CASES = 100_000
+"""Most cases one sweep may hold (grid size times random draws)."""
 
 
 def _fail(msg: str) -> ScenarioError:
@@ -108,9 +117,18 @@ def _values_for(key: str, spec: Any) -> list:
         a, b = spec["from"], spec["to"]
         if not all(is_number(v) for v in (a, b)):
             raise _fail(f'vary."{key}" from/to must be numbers, got {a!r} and {b!r}')
-        if n == 1:
-            return [float(a)]
-        return [float(v) for v in np.linspace(float(a), float(b), n)]
+        if n > MAX_CASES:
+            raise _fail(f'vary."{key}".count = {n} is more than the limit of {MAX_CASES} cases')
+        vals = [float(a)] if n == 1 else [float(v) for v in np.linspace(float(a), float(b), n)]
+        row = KEY.get(key)
+        if row is not None and row.kind == "int":  # a range over an integer key: whole steps
+            if not all(float(v).is_integer() for v in vals):
+                raise _fail(f'vary."{key}" is an integer key, but from = {a!r} to = {b!r} in'
+                            f" {n} values gives {', '.join(f'{v:g}' for v in vals[:4])}...;"
+                            " choose from, to and count so that every value is whole, or list"
+                            " the values")
+            vals = [int(v) for v in vals]
+        return vals
     return [spec]
 
 
@@ -167,7 +185,13 @@ def load_sweep(path: str | Path) -> SweepPlan:
     try:
         data = tomllib.loads(path.read_text(encoding="utf-8"))
     except tomllib.TOMLDecodeError as exc:
-        raise _fail(f"{path}: TOML syntax error: {exc}") from None
+        raise _fail(f"{path}: TOML syntax error: {' '.join(str(exc).split())}") from None
+    except UnicodeDecodeError as exc:
+        raise _fail(f"{path}: not UTF-8 text ({exc.reason} at byte {exc.start}); save the file"
+                    " as UTF-8") from None
+    except RecursionError:
+        raise _fail(f"{path}: tables or lists nested too deep to read") from None
+    check_nesting(data, str(path))
     for k in data:
         if k not in _TOP:
             raise _fail(f"unknown sweep key {k!r}; use {', '.join(_TOP)}")
@@ -210,6 +234,10 @@ def load_sweep(path: str | Path) -> SweepPlan:
         raise _fail("random.cases is given but no key is drawn; add e.g."
                     ' "surface.friction" = { uniform = [0.5, 0.7] }')
     reps = n_rand if draws else 1
+    n_cases = reps * math.prod(len(v) for v in grid_vals)
+    if n_cases > MAX_CASES:
+        raise _fail(f"the sweep has {n_cases} cases, more than the limit of {MAX_CASES};"
+                    " vary fewer values or lower random.cases")
     cases = []
     index = 0
     for combo in itertools.product(*grid_vals) if grid_keys else [()]:
@@ -222,5 +250,19 @@ def load_sweep(path: str | Path) -> SweepPlan:
                     values[k] = v.tolist() if np.ndim(v) else float(v)
             cases.append(Case(index=index, values=values, key=_fingerprint(values, base, run)))
             index += 1
+    # Every case's values are checked against the key table before any case runs: a sweep
+    # none of whose cases is valid is refused; invalid cases among valid ones are named now
+    # and recorded as failed rows when run.
+    bad = []
+    for case in cases:
+        try:
+            base.replace_many(case.values)
+        except ScenarioError as exc:
+            shown = ", ".join(f"{k} = {v!r}" for k, v in case.values.items())
+            bad.append(f"case {case.index} ({shown}) is not a valid scenario: {exc}")
+    if bad and len(bad) == len(cases):
+        raise _fail(f"no case of the sweep is a valid scenario; {bad[0]}")
+    notes = () if not bad else (f"{len(bad)} of {len(cases)} cases are not valid scenarios and"
+                                f" will be recorded as failed rows; {bad[0]}",)
     return SweepPlan(base=base, run=run, columns=tuple(grid_keys + list(draws)),
-                     cases=tuple(cases), source=str(path))
+                     cases=tuple(cases), source=str(path), warnings=notes)

@@ -52,6 +52,8 @@ class SweepOutcome:
         The results table.
     interrupted : bool
         True when the run stopped before all cases were done.
+    warnings : tuple of str
+        Journal lines skipped on reading, by line number (their cases were run again).
     """
 
     total: int
@@ -60,6 +62,7 @@ class SweepOutcome:
     computed: int
     table: Path
     interrupted: bool
+    warnings: tuple[str, ...] = ()
 
 
 def run_case(payload: dict) -> dict:
@@ -96,31 +99,97 @@ def run_case(payload: dict) -> dict:
     return row
 
 
-def read_journal(out_dir: str | Path) -> dict[int, dict]:
-    """Finished cases recorded in ``out_dir``'s journal (a torn last line is ignored).
+def read_journal(out_dir: str | Path, problems: list[str] | None = None) -> dict[int, dict]:
+    """Finished cases recorded in ``out_dir``'s journal.
+
+    A line that is not a case record is skipped (its case is recomputed) and reported by
+    its line number in ``problems``: a last line cut short by a kill, junk, invalid bytes, a
+    valid JSON value of the wrong shape. A case recorded twice with different figures is
+    refused: the journal cannot say which is right.
 
     Parameters
     ----------
     out_dir : str or Path
         The sweep's output folder.
+    problems : list of str, optional
+        Receives one line per skipped journal line.
 
     Returns
     -------
     dict
         Case number -> recorded row.
+
+    Raises
+    ------
+    ScenarioError
+        A case recorded twice with different figures.
     """
     path = Path(out_dir) / JOURNAL
     rows: dict[int, dict] = {}
+    where: dict[int, int] = {}
     if not path.exists():
         return rows
-    with open(path, encoding="utf-8") as fh:
-        for line in fh:
-            try:
-                row = json.loads(line)
-            except json.JSONDecodeError:
-                continue  # the line being written when the process was killed
-            rows.setdefault(int(row["case"]), row)
+    data = path.read_bytes()
+    lines = data.split(b"\n")
+    for lineno, raw in enumerate(lines, start=1):
+        if not raw.strip():
+            continue
+        last = lineno == len(lines)  # no newline after it: the line being written at a kill
+        try:
+            row = json.loads(raw.decode("utf-8"))
+            ok = (isinstance(row, dict) and isinstance(row.get("case"), int)
+                  and not isinstance(row.get("case"), bool) and isinstance(row.get("key"), str)
+                  and isinstance(row.get("metrics"), dict) and "error" in row)
+        except (UnicodeDecodeError, ValueError):
+            row, ok = None, False
+        if not ok:
+            if problems is not None:
+                why = "cut short (the run was killed while writing it)" if last else \
+                    "not a case record"
+                problems.append(f"{path.name} line {lineno}: {why}; skipped, its case is"
+                                " computed again")
+            continue
+        case = row["case"]
+        if case in rows:
+            if rows[case] != row:
+                raise ScenarioError(
+                    f"{path} line {lineno} records case {case} again with different figures"
+                    f" (first on line {where[case]}); delete one of the two lines or use a new"
+                    " --out folder")
+            continue
+        rows[case], where[case] = row, lineno
     return rows
+
+
+def _lock(out: Path):
+    """Hold an exclusive lock on the sweep folder, or refuse: two sweeps must not share it."""
+    fh = open(out / ".lock", "a+")  # noqa: SIM115 - held for the whole run
+    try:
+        import fcntl
+
+        fcntl.flock(fh.fileno(), fcntl.LOCK_EX | fcntl.LOCK_NB)
+    except ImportError:  # no fcntl (Windows): no lock
+        pass
+    except OSError:
+        fh.close()
+        raise ScenarioError(f"another sweep is writing into {out} (its lock is held); wait for"
+                            " it to finish or use another --out folder") from None
+    return fh
+
+
+def _watch_parent() -> None:
+    """Pool worker start-up: exit when the coordinating process dies (even by SIGKILL)."""
+    import threading
+
+    parent = os.getppid()
+
+    def watch() -> None:
+        while True:
+            time.sleep(0.5)
+            if os.getppid() != parent:
+                os._exit(1)
+
+    threading.Thread(target=watch, daemon=True).start()
 
 
 def _cell(v: Any) -> str:
@@ -199,7 +268,16 @@ def run_sweep(
     """
     out = Path(out_dir)
     out.mkdir(parents=True, exist_ok=True)
-    rows = read_journal(out)
+    lock = _lock(out)
+    try:
+        return _run_locked(plan, out, workers, cluster, progress, batch)
+    finally:
+        lock.close()
+
+
+def _run_locked(plan, out: Path, workers, cluster, progress, batch) -> SweepOutcome:
+    problems: list[str] = []
+    rows = read_journal(out, problems)
     by_index = {c.index: c for c in plan.cases}
     for i, r in rows.items():
         c = by_index.get(i)
@@ -219,8 +297,12 @@ def run_sweep(
     def failed() -> int:
         return sum(1 for r in rows.values() if r["error"])
 
-    with open(out / JOURNAL, "a", encoding="utf-8") as journal, \
+    jpath = out / JOURNAL
+    torn = jpath.exists() and jpath.stat().st_size > 0 and not jpath.read_bytes().endswith(b"\n")
+    with open(jpath, "a", encoding="utf-8") as journal, \
             open(out / LOG, "a", encoding="utf-8") as log:
+        if torn:  # a line cut short by a kill: the next record starts on a fresh line
+            journal.write("\n")
         log.write(f"start: {len(todo)} to run, {len(rows)} already done,"
                   f" workers={n_workers}, cluster={cluster or 'none'}\n")
 
@@ -258,11 +340,12 @@ def run_sweep(
             _write_table(plan, rows, out)
     return SweepOutcome(total=len(plan.cases), done=len(rows), failed=failed(),
                         computed=computed, table=out / TABLE,
-                        interrupted=interrupted or len(rows) < len(plan.cases))
+                        interrupted=interrupted or len(rows) < len(plan.cases),
+                        warnings=tuple(problems))
 
 
 def _run_pool(plan: SweepPlan, todo: list, n_workers: int, record: Callable) -> None:
-    pool = ProcessPoolExecutor(max_workers=n_workers)
+    pool = ProcessPoolExecutor(max_workers=n_workers, initializer=_watch_parent)
     try:
         pending = set()
         queue = iter(todo)
