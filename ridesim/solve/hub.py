@@ -583,7 +583,7 @@ def _number(name: str, value) -> float:
 
 def _closing_distance(own: Wheel, mode: str, target: float) -> float:
     """Centre distance [m] at which one turn of ``own`` turns the partner by ``target`` [rad]."""
-    from scipy.optimize import brentq  # imported here: keeps `import ridesim` light
+    from ridesim.roots import find_root
 
     sgn, c1 = _MODES[mode]
     rmin, rmax, _ = own.extremes()
@@ -633,7 +633,7 @@ def _closing_distance(own: Wheel, mode: str, target: float) -> float:
                 if delta < 1e-15 * scale:
                     raise ClosureError(f"no centre distance gives ratio {k:.9g}; try a larger ratio")
             a, b = lo_base, hi - delta
-        new = brentq(F, a, b, xtol=1e-15 * scale, rtol=1e-15, maxiter=300)
+        new = find_root(F, a, b, xtol=1e-15 * scale, rtol=1e-15, maxiter=300)
         if own.is_polygon:
             return float(new)
         if root is not None and abs(new - root) <= 1e-14 * scale:
