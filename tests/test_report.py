@@ -198,3 +198,19 @@ def test_a_changed_scenario_is_shown_as_run_not_as_its_file(tmp_path):
     again.pop("name"), mine.pop("name")  # the name comes from the file name
     assert again == mine
     assert scenario_toml(load_scenario(SCENARIO)) == SCENARIO.read_text(encoding="utf-8")
+
+
+def test_report_of_a_gear_pair_shows_its_centre_distance(tmp_path):
+    # Two identical ellipses turning about their foci roll on each other at a centre distance
+    # of the major axis, 2a (classical elliptical gears: Litvin, Fuentes-Aznar, Gonzalez-Perez &
+    # Hayasaka, Noncircular Gears: Design and Generation, 2009); the demo's a = 0.06 m.
+    sc = load_scenario(ROOT / "scenarios" / "elliptic_gear_pair.toml")
+    page, figures = write_report(sc, tmp_path, simulate=False, clip_s=0.5)
+    assert figures["check"]["solve"]["centre_distance_m"] == pytest.approx(0.12, abs=1e-12)
+    text = html.unescape(re.sub(r"<[^>]+>", " ", page.read_text()))
+    assert "It rolls as designed." in text and "centre distance 120.0 mm" in text
+    # Every figure of the check appears in the appendix, formatted with its unit.
+    for key, v in flatten(figures["check"], lists="index").items():
+        if key.split(".")[-1] in ("cautions", "reasons", "notes") or isinstance(v, (list, dict)):
+            continue
+        assert f"{key} {format_figure(key, v)}" in " ".join(text.split()), key

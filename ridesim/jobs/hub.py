@@ -22,7 +22,7 @@ __all__ = ["HUB_JOBS", "HubCheckResult", "HubSimResult", "check_hub", "simulate_
            "require_line", "render_hub"]
 
 #: Jobs (command names) that handle a hub path.
-HUB_JOBS = ("solve", "check", "export", "simulate", "render")
+HUB_JOBS = ("solve", "check", "export", "simulate", "render", "report")
 
 HUB_CAUTIONS = (
     "The hub check is kinematic: rigid pitch curves, contact on the line of centres, no tooth"

@@ -42,6 +42,8 @@ def write_report(sc, out_dir: str | Path, *, simulate: bool = True, clip_s: floa
     from ridesim.render.report import report_page
 
     out = Path(out_dir)
+    if sc.path.is_hub:
+        return _hub_report(sc, out, simulate=simulate, clip_s=clip_s, progress=progress)
     check = check_scenario(sc)
     figures = {"check": json_ready(check.to_dict()),
                "size_motor": json_ready(size_motor(sc).to_dict())}
@@ -55,3 +57,20 @@ def write_report(sc, out_dir: str | Path, *, simulate: bool = True, clip_s: floa
                             progress=progress, sim_result=sim)
     page = write_text_atomic(out / "report.html", report_page(sc, figures, items))
     return page, figures
+
+
+def _hub_report(sc, out: Path, *, simulate: bool, clip_s: float, progress) -> tuple[Path, dict]:
+    """The report of a wheel rolling around a hub (or a gear pair): check, simulation, pictures."""
+    from ridesim.export.results import json_ready, write_text_atomic
+    from ridesim.jobs.check import check_scenario
+    from ridesim.jobs.hub import simulate_hub
+    from ridesim.jobs.render import render_scenario
+    from ridesim.render.report import hub_report_page
+
+    figures = {"check": json_ready(check_scenario(sc).to_dict())}
+    if simulate:
+        figures["simulate"] = json_ready(simulate_hub(sc).to_dict())
+    items = render_scenario(sc, out / "pictures", simulate=False, clip_s=clip_s, progress=progress)
+    page = write_text_atomic(out / "report.html", hub_report_page(sc, figures, items))
+    return page, figures
+

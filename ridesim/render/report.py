@@ -22,7 +22,7 @@ from ridesim.export.results import flatten
 from ridesim.model.display import UNITS as _UNITS
 from ridesim.model.display import _number, format_figure, unit_of
 
-__all__ = ["report_page", "format_figure", "format_value", "unit_of", "axis_label",
+__all__ = ["report_page", "hub_report_page", "format_figure", "format_value", "unit_of", "axis_label",
            "LOOK_FOR"]
 
 _CSS = """
@@ -333,9 +333,8 @@ def _findings_section(figures: dict) -> str:
     blocking = list(c.get("reasons") or [])
     watch = list(c.get("notes") or [])
     sim = figures.get("simulate") or {}
-    for f in sim.get("findings") or []:
-        text = f if isinstance(f, str) else None
-        if text and text not in watch:
+    for text in sim.get("notes") or []:  # the simulation's findings, worded
+        if text not in watch:
             watch.append(text)
     cautions: list[str] = []
     for block in figures.values():
@@ -474,3 +473,97 @@ def report_page(sc, figures: dict, items) -> str:
     parts.append("<h3>The scenario</h3>" + f"<p class=muted>{note}</p>"
                  + "<pre>" + _e(scenario_toml(sc)) + "</pre></section></main></body></html>")
     return "\n".join(parts)
+
+
+def hub_report_page(sc, figures: dict, items) -> str:
+    """The HTML page of a wheel rolling around a hub (or of a non-circular gear pair).
+
+    The same page as :func:`report_page` where the figures are the same (the verdict, the
+    pictures, findings and cautions, the appendix and the scenario as written); the build
+    and the key figures are those of a hub pair: centre distance, ratio, least gap between
+    the outlines, friction demand against the surface's, and the driven speed ratio.
+
+    Parameters
+    ----------
+    sc : Scenario
+        The scenario reported on (``path.kind = "hub"``).
+    figures : dict
+        JSON-ready figures: ``check`` and, when run, ``simulate``.
+    items : list of (Path, str)
+        The pictures (file and caption) to embed.
+
+    Returns
+    -------
+    str
+        One self-contained HTML document.
+    """
+    c = figures["check"]
+    sim = figures.get("simulate")
+    solve = c.get("solve") or {}
+    ok = bool(c.get("rollable"))
+    part = "ring" if sc.path.side == "inside" else "hub"
+    head = "It rolls as designed." if ok else "It does not roll as designed."
+    means = (f"The wheel and the {part} clear each other all the way round and the surface supplies"
+             " the friction the contact needs. Read the findings below for what to watch, and the"
+             " cautions before building." if ok else
+             "At least one check fails (listed below): change the design before building.")
+    keys = [("centre distance", format_figure("centre_distance_m", solve.get("centre_distance_m"))),
+            ("wheel turns per " + part + " turn", format_value(solve.get("ratio"))),
+            ("least gap", format_figure("least_gap_m", c.get("least_gap_m"))),
+            ("friction needed / available",
+             f"{format_value(c.get('friction_demand'))} / {format_value(c.get('friction_available'))}"),
+            ("driven speed ratio", f"{format_value(c.get('speed_ratio_min'))} .."
+                                   f" {format_value(c.get('speed_ratio_max'))}")]
+    if sim is not None and sim.get("speed_ratio_error_max") is not None:
+        keys.append(("simulated ratio error", f"{100 * sim['speed_ratio_error_max']:.2f} %"))
+    reasons = "".join(f"<li>{_words(r)}</li>" for r in c.get("reasons") or [])
+    verdict = (f'<div class="verdict {"ok" if ok else "bad"}" id=verdict><strong>{head}</strong>'
+               f"{_e(means)}" + (f"<ul>{reasons}</ul>" if reasons else "")
+               + "<ul class=keys>" + "".join(f"<li>{_e(k)}<b>{_e(v)}</b></li>" for k, v in keys)
+               + "</ul></div>")
+    d = sc.to_dict()
+    w = d.get("wheel", {})
+    e_txt = format_figure("centre_distance_m", solve.get("centre_distance_m"))
+    as_built = {"scale": 1.0, "axle_error_m": [0.0, 0.0], "corner_radius_m": 0.0}
+
+    def shown(k: str, v) -> str:
+        if isinstance(v, (int, float)) and not isinstance(v, bool):
+            return f"{k.rsplit('_', 2)[0].replace('_', ' ')} {format_figure(k, v)}"
+        if isinstance(v, (list, tuple)) and all(isinstance(x, (int, float)) for x in v):
+            unit_key = k if k.endswith("_m") else ""
+            return (f"{k.rsplit('_', 1)[0].replace('_', ' ')} ["
+                    + ", ".join(format_figure(unit_key or "x", x) for x in v) + "]")
+        return f"{k} {v}"
+
+    rows = [["Wheel", ", ".join(shown(k, v) for k, v in w.items()
+                                if not isinstance(v, dict) and as_built.get(k, None) != v)],
+            ["Path", f"axle on a circle {'inside a ring' if part == 'ring' else 'around a hub'},"
+                     f" centre distance {e_txt}"],
+            ["Surface", f"friction {format_value(sc.surface.friction)}"]]
+    pics = [(Path(p), cap) for p, cap in items if Path(p).exists()]
+    src = getattr(sc, "source", None)
+    parts = [
+        "<!doctype html><html lang=en><head><meta charset=utf-8>",
+        '<meta name=viewport content="width=device-width, initial-scale=1">',
+        f"<title>ridesim report: {_e(sc.name)}</title><style>{_CSS}</style></head>",
+        f"<body><main><section class=first><h1>{_e(sc.name)}</h1>",
+        f"<p class=lead>{_e(sc.description)}</p>" if sc.description else "",
+        verdict,
+        "<h2>The build at a glance</h2>", _grid(["part", "as specified"], rows, numeric_from=9),
+        "</section><section><h2>Pictures</h2>",
+        *(_img(path, caption) for path, caption in pics),
+        "</section>",
+        "<section><h2>Findings and cautions</h2>" + _findings_section(figures) + "</section>",
+        "<section><h2>Appendix: every figure</h2><p class=muted>Key paths as in the JSON outputs;"
+        " lengths in mm, angles in degrees.</p>",
+    ]
+    for block, title in (("check", "Will it roll (check)"), ("simulate", "Simulation")):
+        if block in figures:
+            parts.append(f"<h3>{title}</h3>" + _appendix_table(block, figures[block]))
+    note = (f"As written in {_e(Path(src).name)}." if _as_written(sc) else
+            f"Changed from {_e(Path(src).name)}: as run, every key given." if src else
+            "As run, every key given.")
+    parts.append("<h3>The scenario</h3>" + f"<p class=muted>{note}</p>"
+                 + "<pre>" + _e(scenario_toml(sc)) + "</pre></section></main></body></html>")
+    return "\n".join(parts)
+
