@@ -87,6 +87,7 @@ import numpy as np
 from ridesim.errors import InputError
 from ridesim.roots import find_minimum
 from ridesim.solve.pair import RollingPair
+from ridesim.validate import is_integer
 
 __all__ = [
     "ClearanceResult",
@@ -921,7 +922,7 @@ def clearance(
     """
     if not isinstance(pair, RollingPair):
         raise InputError(f"pair must be a ridesim RollingPair, got {type(pair).__name__}")
-    if isinstance(rim_points, bool) or not isinstance(rim_points, (int, np.integer)) or rim_points < 64:
+    if not is_integer(rim_points) or rim_points < 64:
         raise InputError(f"rim_points must be an integer >= 64, got {rim_points!r}")
     delta = float(contact_exclusion_rad)
     if not (math.isfinite(delta) and 0.0 < delta < 0.1):

@@ -52,6 +52,7 @@ from ridesim.scenario.schema import (
     plausibility_warnings,
     section_keys,
 )
+from ridesim.validate import is_integer, is_number
 
 __all__ = [
     "WHEEL_SHAPES",
@@ -1555,7 +1556,7 @@ def _drop_none(raw: Mapping[str, Any]) -> dict[str, Any]:
 
 def _as_float(path: str, value: Any) -> float:
     """Check a finite real number (bools rejected, ints accepted)."""
-    if isinstance(value, bool) or not isinstance(value, numbers.Real):
+    if not is_number(value):
         raise ScenarioError(f"{path} must be a number, got {_show(value)} ({_type(value)})")
     number = float(value)
     if not math.isfinite(number):
@@ -1565,7 +1566,7 @@ def _as_float(path: str, value: Any) -> float:
 
 def _as_int(path: str, value: Any) -> int:
     """Check an integer (bools and floats rejected)."""
-    if isinstance(value, bool) or not isinstance(value, numbers.Integral):
+    if not is_integer(value):
         raise ScenarioError(f"{path} must be an integer, got {_show(value)} ({_type(value)})")
     return int(value)
 

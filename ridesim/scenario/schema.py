@@ -45,6 +45,8 @@ from collections.abc import Iterable
 from dataclasses import dataclass
 from typing import Any
 
+from ridesim.validate import is_number
+
 __all__ = [
     "WHEEL_SHAPES",
     "TRACK_SHAPES",
@@ -600,7 +602,7 @@ def _numbers(value: Any) -> list[tuple[str, float]]:
         return [("", float(value))]
     if isinstance(value, (tuple, list)):
         return [(f"[{i}]", float(v)) for i, v in enumerate(value)
-                if isinstance(v, numbers.Real) and not isinstance(v, bool)]
+                if is_number(v)]
     return []
 
 
