@@ -28,6 +28,7 @@ import math
 import re
 from collections.abc import Callable, Sequence
 from pathlib import Path
+from typing import Any
 
 import numpy as np
 
@@ -690,7 +691,7 @@ def export_drawings(pair, out_dir: str | Path, *, name: str, max_section_m: floa
     if isinstance(title_lines, str):
         raise InputError("title_lines must be a sequence of strings, not one string; wrap it in a list")
     title_lines = [str(s) for s in title_lines]
-    rmin = pair.wheel.extremes()[0]
+    rmin, rmax, _ = pair.wheel.extremes()
     if hole >= 2 * rmin:
         raise InputError(f"axle_hole_m = {hole:g} m does not fit in the wheel (least radius {rmin:g} m);"
                          " give a smaller hole")
@@ -710,7 +711,7 @@ def export_drawings(pair, out_dir: str | Path, *, name: str, max_section_m: floa
         from ridesim.export.dxf import wheel_dxf
 
         written.append(wheel_dxf(out / f"{stem}_wheel.dxf", pair, wheel_cut, hole, axle_flat_m, kerf,
-                                 [*_wheel_lines(pair.wheel, name, *pair.wheel.extremes()[:2], hole,
+                                 [*_wheel_lines(pair.wheel, name, rmin, rmax, hole,
                                                 wheel_thickness_m, len(wpts), None, pair.depth, tol),
                                   *_kerf_lines(kerf, axle_flat_m, "wheel"), *title_lines]))
 
@@ -752,7 +753,7 @@ def export_drawings(pair, out_dir: str | Path, *, name: str, max_section_m: floa
                                            *_kerf_lines(kerf, None, "track"), *title_lines]))
 
     total = sections[-1][1] - sections[0][0]
-    parts = [{"part": "wheel", "file": f"{stem}_wheel", "count": int(wheels),
+    parts: list[dict[str, Any]] = [{"part": "wheel", "file": f"{stem}_wheel", "count": int(wheels),
               "size_mm": _bbox(wheel_cut), "cut_length_mm": _perimeter(wheel_cut) + _perimeter(bore)}]
     for k, cut in enumerate(strip_cuts):
         parts.append({"part": f"track section {k + 1}", "file": f"{stem}_track_{k + 1:02d}",
@@ -779,7 +780,7 @@ def export_drawings(pair, out_dir: str | Path, *, name: str, max_section_m: floa
         "track_periods": total / pair.track.period,
         "parts": parts,
         "sheet_area_m2": usage,
-        "sheet_m": None if sheet is None else [float(v) for v in sheet_m],
+        "sheet_m": None if sheet_m is None else [float(v) for v in sheet_m],
         "sheets_at_least": sheets,
         "total_cut_length_m": cut_total,
     }
@@ -806,7 +807,7 @@ def export_drawings(pair, out_dir: str | Path, *, name: str, max_section_m: floa
         + (f"{wheel_thickness_m * 1000:.3f} mm" if wheel_thickness_m is not None else "not given")
         + f"; kerf {kerf * 1000:.3f} mm (cut lines offset {kerf * 500:.3f} mm into the waste)",
         f"  sheet usage (sum of bounding boxes) {usage:.4f} m^2; total cut length {cut_total:.3f} m",
-        *([] if sheet is None else [
+        *([] if sheet_m is None else [
             f"  sheet {sheet_m[0] * 1000:.0f} x {sheet_m[1] * 1000:.0f} mm: at least {sheets} sheet(s)"
             + "".join(f"; {p['part']} does not fit" for p in parts if not p["fits_sheet"])]),
         "",

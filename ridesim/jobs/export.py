@@ -64,14 +64,14 @@ def export_scenario(sc: Scenario, out: str | Path, *, section_m: float | None = 
             dxf = False
             notes.append('DXF not written: it needs ezdxf (pip install "ridesim[cad]")')
     pair = solve_scenario(sc)
+    thick = sc.wheel.thickness_m if sc.wheel is not None else None
     if sc.path.is_hub:  # a wheel and the hub (or ring) it rolls on, each about its centre
         from ridesim.export.drawings import export_hub_drawings
 
-        files = export_hub_drawings(pair, out, name=sc.name, thickness_m=sc.wheel.thickness_m,
+        files = export_hub_drawings(pair, out, name=sc.name, thickness_m=thick,
                                     title_lines=(sc.description,) if sc.description else ())
         return {"files": [str(f) for f in files], "notes": []}
     ex = sc.export
-    thick = sc.wheel.thickness_m if sc.wheel is not None else None
     files = export_drawings(
         pair, out, name=sc.name,
         max_section_m=ex.section_length_m if section_m is None else section_m,

@@ -12,6 +12,7 @@ from __future__ import annotations
 import html
 import math
 from collections.abc import Iterable, Mapping, Sequence
+from typing import Any
 
 import numpy as np
 
@@ -135,8 +136,9 @@ def format_figure(key: str, v) -> str:
     return str(v)
 
 
-def _leaves(d: Mapping, prefix: str = "") -> list[tuple[str, object]]:
-    rows: list[tuple[str, object]] = []
+def _leaves(d: Mapping, prefix: str = "") -> list[tuple[str, Any]]:
+    # The leaves of a JSON-like result: numbers, strings, None, lists (of sentences, of numbers).
+    rows: list[tuple[str, Any]] = []
     for k, v in d.items():
         key = f"{prefix}{k}"
         if isinstance(v, Mapping):

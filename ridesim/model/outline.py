@@ -30,6 +30,7 @@ indices overrides the angle. Pure numpy/scipy, no I/O.
 from __future__ import annotations
 
 import math
+from collections.abc import Callable
 from dataclasses import dataclass
 
 import numpy as np
@@ -145,8 +146,8 @@ class ClosedSpline:
     points: np.ndarray
     knots: np.ndarray
     corners: np.ndarray
-    _x: object
-    _y: object
+    _x: Callable[[np.ndarray, int], np.ndarray]  # scipy PPoly: (s, nu) -> values
+    _y: Callable[[np.ndarray, int], np.ndarray]
 
     @classmethod
     def through(cls, points: np.ndarray, corners: np.ndarray) -> ClosedSpline:

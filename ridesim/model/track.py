@@ -66,7 +66,7 @@ class Track:
             kinks = tuple(nd[:-1, 0])
         elif f is None:
             raise InputError("a track needs a profile function or line nodes")
-        self._f = f
+        self._f: Callable[[np.ndarray], np.ndarray] | None = f
         self._df = df
         ks = sorted({(float(k) - self._x0) % self._period + self._x0 for k in kinks})
         self._kinks = tuple(ks)
@@ -328,12 +328,18 @@ class Track:
     def _wrap(self, x: np.ndarray) -> np.ndarray:
         return np.mod(x - self._x0, self._period) + self._x0
 
+    def _profile(self) -> Callable[[np.ndarray], np.ndarray]:
+        """The profile function ``f`` (a track of line nodes has none: callers check nodes first)."""
+        if self._f is None:
+            raise GeometryError(f"the {self._kind} track is made of line nodes and has no profile function")
+        return self._f
+
     def shape(self, x: np.ndarray | float) -> np.ndarray:
         """Shape ``f(x)`` [m] before lowering (vectorised, periodic)."""
         x = np.asarray(x, dtype=float)
         if self._nodes is not None:
             return np.interp(self._wrap(x), self._nodes[:, 0], self._nodes[:, 1])
-        return self._f(x)
+        return self._profile()(x)
 
     def y(self, x: np.ndarray | float) -> np.ndarray:
         """Track height [m] at ``x`` [m] (vectorised, periodic): ``f(x) - offset``."""
@@ -349,7 +355,8 @@ class Track:
             return self._slopes[i]
         if self._df is None:
             h = 1e-6 * self._period
-            return (self._f(x + h) - self._f(x - h)) / (2 * h)
+            f = self._profile()
+            return (f(x + h) - f(x - h)) / (2 * h)
         return self._df(x)
 
     def shape_range(self) -> tuple[float, float]:
@@ -364,12 +371,13 @@ class Track:
     def _search_range(self) -> tuple[float, float]:
         from ridesim.roots import find_minimum
 
+        f = self._profile()
         x = np.linspace(self._x0, self._x0 + self._period, 4097)
-        v = self._f(x)
+        v = f(x)
         h = x[1] - x[0]
-        lo = find_minimum(lambda q: float(self._f(np.array(q))),
+        lo = find_minimum(lambda q: float(f(np.array(q))),
                           x[int(np.argmin(v))] - h, x[int(np.argmin(v))] + h, xatol=1e-13)
-        hi = find_minimum(lambda q: -float(self._f(np.array(q))),
+        hi = find_minimum(lambda q: -float(f(np.array(q))),
                           x[int(np.argmax(v))] - h, x[int(np.argmax(v))] + h, xatol=1e-13)
         return min(float(v.min()), float(lo.fun)), max(float(v.max()), -float(hi.fun))
 

@@ -23,7 +23,7 @@ from ridesim.errors import GeometryError, InputError
 from ridesim.model.checks import finite as _finite
 from ridesim.model.checks import point as _point
 from ridesim.model.checks import positive as _positive
-from ridesim.model.outline import CORNER_ANGLE_DEG
+from ridesim.model.outline import CORNER_ANGLE_DEG, ClosedSpline
 
 __all__ = ["Wheel", "MassProperties"]
 
@@ -74,21 +74,22 @@ class Wheel:
         radius_fn: Callable[[np.ndarray], np.ndarray] | None = None,
         kinks: Sequence[float] = (),
         params: dict | None = None,
-        shape_offset: Sequence[float] = (0.0, 0.0),
+        shape_offset: Sequence[float] | np.ndarray = (0.0, 0.0),
         symmetry: int | None = None,
         breaks: Sequence[float] = (),
     ) -> None:
         self._kind = kind
         self._breaks = tuple(sorted(float(b) % TWO_PI for b in breaks))
         self._rounding: tuple[np.ndarray, float] | None = None
-        self._curve = None
+        self._curve: ClosedSpline | None = None
         self._params = dict(params or {})
         self._shape_offset = (float(shape_offset[0]), float(shape_offset[1]))
+        self._vertices: np.ndarray | None
         if vertices is not None:
             v = np.array(vertices, dtype=float)
             v.setflags(write=False)
             self._vertices = v
-            self._init_polygon()
+            self._init_polygon(v)
         else:
             if radius_fn is None:
                 raise InputError("a wheel needs vertices or a radius function")
@@ -144,8 +145,10 @@ class Wheel:
             a = _positive("apothem", apothem)
         elif circumradius is not None:
             a = _positive("circumradius", circumradius) * math.cos(half)
-        else:
+        elif side is not None:
             a = _positive("side", side) / (2.0 * math.tan(half))
+        else:  # refused above; stated again so that every branch sets a
+            raise InputError("polygon: give exactly one of apothem, circumradius, side")
         R = a / math.cos(half)
         ang = -0.5 * math.pi - half + TWO_PI * np.arange(sides) / sides
         verts = R * np.column_stack([np.cos(ang), np.sin(ang)])
@@ -476,13 +479,12 @@ class Wheel:
             with np.errstate(divide="ignore", invalid="ignore"):
                 return np.where(B >= 0.0, -2.0 * c0 / (B + sq), (sq - B) / (2.0 * A))
 
-        params = {"semi_axes_m": (a, b), "axle_m": (float(ax[0]), float(ax[1]))}
+        params: dict[str, object] = {"semi_axes_m": (a, b), "axle_m": (float(ax[0]), float(ax[1]))}
         if kind == "circle":
             params = {"radius_m": a, "axle_m": params["axle_m"]}
         return cls(kind, radius_fn=radius_fn, params=params, shape_offset=-ax)
 
-    def _init_polygon(self) -> None:
-        v = self._vertices
+    def _init_polygon(self, v: np.ndarray) -> None:
         cross = v[:, 0] * np.roll(v[:, 1], -1) - v[:, 1] * np.roll(v[:, 0], -1)
         if cross.sum() < 0:  # clockwise: reverse to anticlockwise
             v = v[::-1].copy()
@@ -525,7 +527,7 @@ class Wheel:
         present, so ``k`` is the greatest common divisor of the significant mode numbers.
         """
         if self._vertices is not None:
-            return self._polygon_symmetry()
+            return self._polygon_symmetry(self._vertices)
         n = 2048
         phi = np.linspace(0.0, TWO_PI, n, endpoint=False) + 0.0123
         r = self.radius(phi)
@@ -542,12 +544,11 @@ class Wheel:
             return k
         return 1
 
-    def _polygon_symmetry(self) -> int:
+    def _polygon_symmetry(self, v: np.ndarray) -> int:
         """Largest ``k`` for which a 2π/k turn about the axle maps the vertices onto themselves.
 
         Vertex ``i`` must land on vertex ``i + N/k``.
         """
-        v = self._vertices
         nv = len(v)
         scale = float(np.max(np.linalg.norm(v, axis=1)))
         for k in range(nv, 1, -1):
@@ -604,7 +605,7 @@ class Wheel:
         return self._rounding
 
     @property
-    def curve(self):
+    def curve(self) -> ClosedSpline | None:
         """A smooth outline's spline through its points, or None for other wheels.
 
         A :class:`ridesim.model.outline.ClosedSpline` in the axle frame, anticlockwise.
@@ -760,7 +761,7 @@ class Wheel:
             if prev is not None and np.all(np.abs(cur - prev) <= 1e-13 * max(1.0, abs(j)) + 1e-15):
                 break
             prev = cur
-        return tuple(float(q) for q in cur)
+        return float(cur[0]), float(cur[1]), float(cur[2]), float(cur[3])
 
     def __repr__(self) -> str:
         keys = ", ".join(f"{k}={v!r}" for k, v in self._params.items())

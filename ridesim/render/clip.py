@@ -95,6 +95,13 @@ def _column(data: Mapping, key: str, n: int, axles: int | None, required: bool) 
     return a
 
 
+def _required_column(data: Mapping, key: str, n: int, axles: int | None) -> np.ndarray:
+    a = _column(data, key, n, axles, True)
+    if a is None:  # _column raises for a missing required column; stated for the type checker
+        raise InputError(f"frames_data needs {key!r}: give it as an array with one row per sample")
+    return a
+
+
 def _motion_from_data(data: Mapping, duration_s: float, fps: float, offsets: np.ndarray | None) -> _Motion:
     if not isinstance(data, Mapping):
         raise InputError("frames_data must be a dict of arrays (t_s, axle_x_m, axle_y_m,"
@@ -103,10 +110,10 @@ def _motion_from_data(data: Mapping, duration_s: float, fps: float, offsets: np.
     if t is None or t.ndim != 1 or t.size < 2 or not np.all(np.diff(t) > 0):
         raise InputError("frames_data['t_s'] must be at least two increasing times in s")
     n = t.size
-    x = _column(data, "axle_x_m", n, None, True)
+    x = _required_column(data, "axle_x_m", n, None)
     A = x.shape[1]
-    y = _column(data, "axle_y_m", n, A, True)
-    th = _column(data, "wheel_angle_rad", n, A, True)
+    y = _required_column(data, "axle_y_m", n, A)
+    th = _required_column(data, "wheel_angle_rad", n, A)
     pitch = _column(data, "pitch_rad", n, 1, False)
     speed = _column(data, "speed_m_s", n, 1, False)
     torque = _column(data, "torque_Nm", n, None, False)
@@ -114,9 +121,7 @@ def _motion_from_data(data: Mapping, duration_s: float, fps: float, offsets: np.
     count = max(2, min(int(round(duration_s * fps)), int(math.floor(span * fps + 1e-9)) + 1))
     tf = t[0] + np.arange(count) / fps
 
-    def at(a: np.ndarray | None) -> np.ndarray | None:
-        if a is None:
-            return None
+    def at(a: np.ndarray) -> np.ndarray:
         return np.column_stack([np.interp(tf, t, a[:, j]) for j in range(a.shape[1])])
 
     xf, yf, thf = at(x), at(y), at(th)
@@ -130,7 +135,8 @@ def _motion_from_data(data: Mapping, duration_s: float, fps: float, offsets: np.
         offsets = np.sort(x[0] - 0.5 * (x[0].min() + x[0].max()))
     order = np.argsort(x[0])
     return _Motion(tf, xf[:, order], yf[:, order], thf[:, order], pf,
-                   None if speed is None else at(speed)[:, 0], at(torque), offsets, "simulation")
+                   None if speed is None else at(speed)[:, 0], None if torque is None else at(torque),
+                   offsets, "simulation")
 
 
 def _motion_ideal(pair, duration_s: float, fps: float, speed_m_s: float, offsets: np.ndarray,

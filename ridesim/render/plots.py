@@ -114,7 +114,8 @@ def posed_outline(points_m: np.ndarray, x_m: float, theta_rad: float, y_m: float
 def _mix(colour: str, amount: float) -> tuple[float, float, float]:
     """``colour`` blended with white: ``amount`` 1 is the colour, 0 is white."""
     rgb = np.array([int(colour[i:i + 2], 16) for i in (1, 3, 5)]) / 255.0
-    return tuple(float(c) for c in 1.0 - amount * (1.0 - rgb))
+    r, g, b = (float(c) for c in 1.0 - amount * (1.0 - rgb))
+    return r, g, b
 
 
 def _outline(wheel, n: int = 1440) -> np.ndarray:

@@ -467,9 +467,9 @@ def report_page(sc, figures: dict, items) -> str:
                          ("simulate", "Simulation")):
         if block in figures:
             parts.append(f"<h3>{title}</h3>" + _appendix_table(block, figures[block]))
-    note = (f"As written in {_e(Path(src).name)}." if _as_written(sc) else
-            f"Changed from {_e(Path(src).name)}: as run, every key given." if src else
-            "As run, every key given.")
+    note = ("As run, every key given." if not src else
+            f"As written in {_e(Path(src).name)}." if _as_written(sc) else
+            f"Changed from {_e(Path(src).name)}: as run, every key given.")
     parts.append("<h3>The scenario</h3>" + f"<p class=muted>{note}</p>"
                  + "<pre>" + _e(scenario_toml(sc)) + "</pre></section></main></body></html>")
     return "\n".join(parts)

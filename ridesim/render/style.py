@@ -8,6 +8,7 @@ from __future__ import annotations
 
 from collections.abc import Iterator
 from contextlib import contextmanager
+from typing import Literal
 
 __all__ = [
     "COLOURS",
@@ -91,11 +92,13 @@ def style_context() -> Iterator[None]:
 
     rc = dict(RC)
     rc["axes.prop_cycle"] = cycler(color=list(SERIES_COLOURS))
-    with mpl.rc_context(rc):
+    # matplotlib types rc_context's keys as a Literal of every rcParams name; RC is a plain dict.
+    with mpl.rc_context(rc):  # type: ignore[arg-type]
         yield
 
 
-def new_figure(size_px: tuple[int, int], layout: str | None = "constrained"):
+def new_figure(size_px: tuple[int, int],
+               layout: Literal["constrained", "compressed", "tight"] | None = "constrained"):
     """A matplotlib figure of exactly ``size_px`` pixels at :data:`DPI`, on the Agg canvas.
 
     Call inside :func:`style_context` so the figure picks up the style.

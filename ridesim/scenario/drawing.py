@@ -24,10 +24,14 @@ from __future__ import annotations
 import math
 from dataclasses import dataclass
 from pathlib import Path
+from typing import TYPE_CHECKING, cast
 
 import numpy as np
 
 from ridesim.errors import ScenarioError
+
+if TYPE_CHECKING:
+    from ezdxf.entities import Polyline
 
 __all__ = ["UNITS_M", "FLATTEN_M", "DrawnOutline", "read_drawing", "read_profile_drawing", "is_drawing"]
 
@@ -194,7 +198,9 @@ def _read_dxf(path: Path, key: str, layer: str | None, units: str | None) -> lis
                 continue
             if len(pts) < 2:
                 continue
-            closed = bool(getattr(e, "closed", False)) or (kind == "POLYLINE" and e.is_closed) \
+            # An entity of dxftype POLYLINE is an ezdxf Polyline (the modelspace yields DXFGraphic).
+            closed = bool(getattr(e, "closed", False)) \
+                or (kind == "POLYLINE" and cast("Polyline", e).is_closed) \
                 or (kind in ("SPLINE", "ELLIPSE", "LWPOLYLINE", "POLYLINE")
                     and np.hypot(*(pts[-1] - pts[0])) <= 1e-9 * max(1.0, float(np.ptp(pts))))
             if kind == "ELLIPSE" and abs(abs(e.dxf.end_param - e.dxf.start_param) - 2 * math.pi) < 1e-9:

@@ -82,6 +82,7 @@ class IdealEngine(Engine):
             normal[:, i] = np.interp(np.mod(ax[:, i], L), xs, steady.normal_load_N[i][order[keep]],
                                      period=L)
         driven = list(model.cycle.driven)
+        shafts: tuple[tuple[int, ...], ...]
         if veh.coupled:
             shafts = (tuple(driven),)
             shaft_torque = torque.sum(axis=0)[:, None]

@@ -28,13 +28,15 @@ from __future__ import annotations
 
 import math
 from collections.abc import Callable, Sequence
+from typing import cast
 
 import numpy as np
 import pymunk
 import pymunk.batch as pb
 
 __all__ = ["Recorder", "FastRecorder", "PublicRecorder", "make_recorder", "VERIFIED_PYMUNK",
-           "BODY_COLS", "ARB_INTS", "ARB_FLTS", "pymunk_verified", "installed_pymunk_version"]
+           "BODY_COLS", "ARB_INTS", "ARB_FLTS", "pymunk_verified", "installed_pymunk_version",
+           "float_view"]
 
 VERIFIED_PYMUNK = ((7, 0), (7, 1), (7, 2), (7, 3))
 """pymunk (major, minor) versions whose private layout the fast recorder was verified on: the
@@ -100,6 +102,24 @@ def pymunk_verified(version: str | None = None) -> bool:
     except ValueError:
         return False
     return (major, minor) in VERIFIED_PYMUNK
+
+
+def float_view(a: np.ndarray) -> memoryview[float]:
+    """A memoryview of a float64 array, for fast element access in Python loops.
+
+    Parameters
+    ----------
+    a : numpy.ndarray
+        A float64 array (its buffer format is ``"d"``).
+
+    Returns
+    -------
+    memoryview
+        ``a.data``, the same view as ``memoryview(a)``.
+    """
+    # numpy's stubs declare ndarray.__buffer__ only for Python >= 3.12, and typeshed's memoryview
+    # elements default to int: a float64 buffer reads and writes floats.
+    return cast("memoryview[float]", a.data)
 
 
 class Recorder:
@@ -247,7 +267,7 @@ class FastRecorder(Recorder):
         for m, p in zip(self.motors, self._mptr, strict=True):
             if p[_MOTOR_RATE] != m.rate or p[_MOTOR_MAXFORCE] != m.max_force:
                 raise LookupError("the motor record layout of this pymunk build is not the verified one")
-        self._Tc = memoryview(self.impulses)
+        self._Tc = float_view(self.impulses)
         lib.cpSpaceEachBody(self._sp, self._body_fn, self._bdata)  # row 0
 
     def advance(self, k0: int, k1: int, command: Command | None = None) -> None:

@@ -19,7 +19,7 @@ import numpy as np
 from ridesim.errors import InputError, SimulationError
 from ridesim.sim.contacts import SLIP_LOAD_SHARE, contact_steps, per_wheel, rim_slip_m_s, wheel_contact_points
 from ridesim.sim.engine import Engine, Probes
-from ridesim.sim.pymunk_adapter import Recorder, make_recorder
+from ridesim.sim.pymunk_adapter import Recorder, float_view, make_recorder
 from ridesim.sim.world import World, WorldOptions, build_world
 
 __all__ = ["PymunkEngine", "SLIP_LOAD_SHARE", "SPEED_LOOP_TIME_S", "SPEED_INTEGRAL_TIME_S",
@@ -79,7 +79,7 @@ def speed_command(states: np.ndarray, speed_col: int, row_len: int, *, speed_m_s
         ``command(k) -> T`` [N m] for step ``k``, from the speed in state row ``k - 1``; it
         keeps its integral between calls.
     """
-    B = memoryview(states)
+    B = float_view(states)
     v_final, accel, dt = float(speed_m_s), float(accel_m_s2), float(dt_s)
     ramp = accel != 0.0
     ki_dt, t_max = ki * dt, float(max_torque_Nm)
@@ -158,7 +158,7 @@ class PymunkEngine(Engine):
         self._ncol = self._rec.n_row
         self._B = self._rec.states  # row 0 the initial state, row k the state after step k
         self._T = self._rec.impulses
-        self._Bc = memoryview(self._B)
+        self._Bc = float_view(self._B)
         self._cautions: list[str] = []
         if self._rec.caution:
             self._cautions.append(self._rec.caution)
@@ -345,13 +345,13 @@ class PymunkEngine(Engine):
                 return False
         # Rim points against the track polyline, all wheels at once.
         a = np.array([B[base + c[2]] for c in self._col[1:]])
-        x, y = np.array(xs[1:]), np.array(ys[1:])
+        xa, ya = np.array(xs[1:]), np.array(ys[1:])
         ca, sa = np.cos(a)[:, None], np.sin(a)[:, None]
-        px = x[:, None] + ca * self._rim[None, :, 0] - sa * self._rim[None, :, 1]
-        py = y[:, None] + sa * self._rim[None, :, 0] + ca * self._rim[None, :, 1]
+        px = xa[:, None] + ca * self._rim[None, :, 0] - sa * self._rim[None, :, 1]
+        py = ya[:, None] + sa * self._rim[None, :, 0] + ca * self._rim[None, :, 1]
         txy = w.track_xy_m
         low = float((py - np.interp(px, txy[:, 0], txy[:, 1])).min())
-        return low >= -self._pen_tol and bool(np.all(y > np.interp(x, txy[:, 0], txy[:, 1])))
+        return low >= -self._pen_tol and bool(np.all(ya > np.interp(xa, txy[:, 0], txy[:, 1])))
 
     def _bad_rows(self, rows: np.ndarray):
         """First failing row of ``rows`` as ``(index, message, kind)``, or None."""

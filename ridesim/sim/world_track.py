@@ -403,6 +403,7 @@ def add_track(space: pymunk.Space, pair, ab: AsBuilt, x_lo: float, x_hi: float, 
         polys, segs_xy = track_shapes(xy, clear_m, 0.5 * r_min, max_radius_m=2.0 * r_max,
                                       joints_x_m=joints, joint_half_m=JOINT_RAMP_HALF_M, kink=at_kink)
     shapes = []
+    sh: pymunk.Shape
     for pts, rho in polys:
         sh = pymunk.Poly(static, [(float(a), float(b)) for a, b in pts], radius=rho)
         shapes.append(sh)

@@ -33,7 +33,8 @@ pentagon and hexagon wheels. The price is the dip at each cusp, about
 _VEHICLE_GROUP = 1  # shape filter group: vehicle shapes never collide with each other
 
 
-def wheel_outline(wheel, tol_m: float, max_vertices: int = 720) -> tuple[np.ndarray, float, np.ndarray]:
+def wheel_outline(wheel, tol_m: float, max_vertices: int = 720,
+                  ) -> tuple[np.ndarray, float, np.ndarray, float]:
     """The wheel as a polygon in the axle frame, anticlockwise.
 
     Parameters
@@ -423,10 +424,9 @@ def _as_built_pose(outline, track_xy, pair, offsets, level: bool, axle_error_m, 
 
 
 def _corner_radius(scenario, opt: WorldOptions, r_min: float) -> float:
-    src = _corner_radius_source(scenario, opt)
-    if src == "option":
+    if opt.corner_radius_m is not None:  # the "option" source
         return float(opt.corner_radius_m)
-    if src == "scenario":
+    if _corner_radius_source(scenario, opt) == "scenario":
         return float(scenario.wheel.corner_radius_m)
     return DEFAULT_CORNER_RADIUS_FRACTION * float(r_min)
 
@@ -656,7 +656,8 @@ def add_wheels(space: pymunk.Space, scenario, pair, ab: AsBuilt, masses, pose, v
         # pymunk's body velocity is that of the centre of mass: v_axle + w x (cg - axle).
         body.velocity = (v0 - w * cy, w * cx)
         body.angular_velocity = w
-        shapes = []
+        shapes: list[pymunk.Shape] = []
+        sh: pymunk.Shape
         if circle:
             # A circle wheel is one exact circle shape (its centre at the shape origin).
             if wheel_ab:

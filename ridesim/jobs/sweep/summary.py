@@ -95,8 +95,19 @@ def plot_metric(rows: list[dict[str, str]], metric: str, params: list[str], path
     for p in [metric, *params]:
         if rows and p not in rows[0]:
             raise ScenarioError(f"{p!r} is not a column of the sweep table")
-    ok = [r for r in rows if not r.get("error") and _num(r[metric]) is not None
-          and all(_num(r[p]) is not None for p in params)]
+    # The rows without an error whose metric and parameters are all numbers, as numbers.
+    ok: list[dict[str, float]] = []
+    for row in rows:
+        if row.get("error"):
+            continue
+        vals: dict[str, float] = {}
+        for p in (metric, *params):
+            v = _num(row[p])
+            if v is None:
+                break
+            vals[p] = v
+        else:
+            ok.append(vals)
     m_label, m_f = axis_label(metric)
     labels = [axis_label(p) for p in params]
     # The house style, on a pyplot-free figure of its own Agg canvas (the caller's
@@ -106,8 +117,8 @@ def plot_metric(rows: list[dict[str, str]], metric: str, params: list[str], path
         ax = fig.add_subplot()
         if len(params) == 1:
             (x_label, x_f) = labels[0]
-            xs = sorted({_num(r[params[0]]) for r in ok})
-            groups = {x: [_num(r[metric]) * m_f for r in ok if _num(r[params[0]]) == x] for x in xs}
+            xs = sorted({r[params[0]] for r in ok})
+            groups = {x: [r[metric] * m_f for r in ok if r[params[0]] == x] for x in xs}
             xx = [x * x_f for x in xs]
             ax.plot(xx, [sum(v) / len(v) for v in groups.values()], "o-", color=SERIES_COLOURS[0],
                     label="mean over the other parameters")
@@ -120,9 +131,9 @@ def plot_metric(rows: list[dict[str, str]], metric: str, params: list[str], path
             ax.set_ylabel(m_label)
         else:
             (x_label, x_f), (y_label, y_f) = labels[:2]
-            sc = ax.scatter([_num(r[params[0]]) * x_f for r in ok],
-                            [_num(r[params[1]]) * y_f for r in ok],
-                            c=[_num(r[metric]) * m_f for r in ok], cmap="viridis", s=70,
+            sc = ax.scatter([r[params[0]] * x_f for r in ok],
+                            [r[params[1]] * y_f for r in ok],
+                            c=[r[metric] * m_f for r in ok], cmap="viridis", s=70,
                             edgecolors=COLOURS["ink"], linewidths=0.4)
             fig.colorbar(sc, ax=ax, label=m_label)
             ax.set_xlabel(x_label)
