@@ -457,8 +457,9 @@ def main(argv: list[str] | None = None) -> int:
                 data = json.loads(json.dumps(data).replace(json.dumps(str(stage))[1:-1],
                                                            json.dumps(str(Path(args.out)))[1:-1]))
                 text = text.replace(str(stage), str(Path(args.out)))
-                write_json_atomic(stage / f"{args.command}.json", data)
-                commit_set(args.out, stage, args.command)
+                if stage is not None:
+                    write_json_atomic(stage / f"{args.command}.json", data)
+                    commit_set(args.out, stage, args.command)
         finally:
             if stage is not None and stage.exists():
                 shutil.rmtree(stage, ignore_errors=True)  # not committed: the old set stays

@@ -284,7 +284,7 @@ def recover_sets(out: str | Path) -> list[str]:
     import shutil
 
     out = Path(out)
-    done = []
+    done: list[str] = []
     if not out.is_dir():
         return done
     for stage in sorted(out.glob(f"{STAGING_PREFIX}*")):

@@ -39,7 +39,7 @@ def _non_finite(data, path: str = "") -> tuple[str, float] | None:
             stack.extend((v, f"{where}[{i}]") for i, v in enumerate(value))
         elif isinstance(value, float) and not math.isfinite(value):
             return where, value
-        elif hasattr(value, "dtype") and getattr(value, "size", 0):
+        elif hasattr(value, "dtype") and bool(getattr(value, "size", False)):
             import numpy as np
 
             arr = np.asarray(value)
@@ -77,9 +77,9 @@ def check_figures(name: str, data: dict, sc: Scenario) -> None:
                               " magnitudes (speeds, sizes, masses) and run.timestep_s")
     bounce = data.get("axle_bounce_m") if name == "simulate" else None
     if isinstance(bounce, (int, float)):
-        from ridesim.scenario.build import solve_scenario
+        from ridesim.scenario.build import solve_track_scenario
 
-        r_max = float(solve_scenario(sc).depth_range()[1])
+        r_max = float(solve_track_scenario(sc).depth_range()[1])
         if bounce > r_max:
             raise SimulationError(
                 f"simulate: axle bounce {1000 * bounce:.1f} mm is larger than the wheel (greatest"

@@ -560,9 +560,12 @@ def hub_report_page(sc, figures: dict, items) -> str:
     for block, title in (("check", "Will it roll (check)"), ("simulate", "Simulation")):
         if block in figures:
             parts.append(f"<h3>{title}</h3>" + _appendix_table(block, figures[block]))
-    note = (f"As written in {_e(Path(src).name)}." if _as_written(sc) else
-            f"Changed from {_e(Path(src).name)}: as run, every key given." if src else
-            "As run, every key given.")
+    if src is None:
+        note = "As run, every key given."
+    elif _as_written(sc):
+        note = f"As written in {_e(Path(src).name)}."
+    else:
+        note = f"Changed from {_e(Path(src).name)}: as run, every key given."
     parts.append("<h3>The scenario</h3>" + f"<p class=muted>{note}</p>"
                  + "<pre>" + _e(scenario_toml(sc)) + "</pre></section></main></body></html>")
     return "\n".join(parts)

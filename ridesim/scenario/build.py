@@ -213,6 +213,7 @@ def wheel_from_spec(spec: WheelSpec) -> Wheel:
         return _wrap("wheel", Wheel.circle, spec.radius_m, axle=ax)
     if s == "polar":
         return _wrap("wheel.radius_formula", Wheel.polar, spec.radius_formula)
+    pts: np.ndarray | tuple[tuple[float, float], ...]
     if spec.file is not None and is_drawing(spec.file):
         drawn = read_drawing(spec.file, "wheel.file", layer=spec.layer, ident=spec.id, units=spec.units)
         pts = drawn.points_m
@@ -260,6 +261,7 @@ def track_from_spec(spec: TrackSpec) -> Track:
         return _wrap("track", Track.sawtooth, spec.rise_m, spec.run_m)
     if s == "formula":
         return _wrap("track.formula", Track.profile, spec.formula, spec.period_m)
+    pts: np.ndarray | tuple[tuple[float, float], ...]
     if spec.file is not None and is_drawing(spec.file):
         pts = read_profile_drawing(spec.file, "track.file", layer=spec.layer, ident=spec.id,
                                    units=spec.units)

@@ -921,6 +921,8 @@ def scenario_from_dict(
         )
     if path.is_hub and has_track:
         raise ScenarioError("path.kind = \"hub\": the hub replaces the track; remove [track]")
+    wheel: WheelSpec | None
+    track: TrackSpec | None
     if material_only:
         wheel = _parse_wheel_material(data["wheel"])
     else:

@@ -222,8 +222,8 @@ _TORQUE_NM = (1e-4, 5000.0)
 _TORQUE_SRC = "common practice: toy gearmotors (mN m) to ride-on drive shafts (kN m)"
 _ERROR_SRC = "common practice: build errors are millimetres; centimetres are a different build"
 
-_SIZE = {"gt": 0.0, "most": MAX_LENGTH_M}
-_COORD = {"most": MAX_LENGTH_M}
+_SIZE: dict[str, Any] = {"gt": 0.0, "most": MAX_LENGTH_M}
+_COORD: dict[str, Any] = {"most": MAX_LENGTH_M}
 
 _POLYGON = ("polygon",)
 _OUTLINE = ("outline",)
