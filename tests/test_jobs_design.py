@@ -85,8 +85,29 @@ def test_fewest_sides_that_roll_on_grip(tmp_path):
     assert least_sides(0.5) == 7
     assert res.feasible
     assert res.to_dict()["best"]["values"] == {"wheel.sides": 7}
-    # Branch and bound on the goal: sides above the first feasible batch are never run.
-    assert res.to_dict()["evaluations"] < 10
+    # Branch and bound on the goal, one goal value at a time: proving 7 optimal takes the
+    # sides 3..6 (all fail) and 7, and nothing above 7 is run.
+    assert res.to_dict()["evaluations"] == 7 - 3 + 1
+    assert sorted(d.values["wheel.sides"] for d in res.outcome.designs) == [3, 4, 5, 6, 7]
+
+
+def test_branch_and_bound_runs_ties_together_and_ignores_workers(tmp_path):
+    # Sides and grip both vary; the least sides that roll on the better grip 0.6 is the least
+    # n >= 4 with tan(pi/n) <= 0.6 (Hall & Wagon 1992), i.e. 6. Each goal value's designs (both
+    # grips) run together; the tiers 7 and 8 are pruned. 1 and 2 workers run the same designs.
+    text = NGON.format(mu=0.5, n_max=12, extra="").replace(
+        '"wheel.sides" = { from = 3, to = 12 }',
+        '"wheel.sides" = [4, 5, 6, 7, 8]\n"surface.friction" = [0.5, 0.6]')
+    a = run_design(brief(tmp_path, text), workers=1)
+    b = run_design(brief(tmp_path, text, "b.toml"), workers=2)
+    assert least_sides(0.6) == 6
+    assert a.to_dict()["best"]["values"] == {"wheel.sides": 6, "surface.friction": 0.6}
+    ran = [(d.values["wheel.sides"], d.values["surface.friction"]) for d in a.outcome.designs]
+    assert ran == [(n, mu) for n in (4, 5, 6) for mu in (0.5, 0.6)]
+    assert [d.values for d in b.outcome.designs] == [d.values for d in a.outcome.designs]
+    assert a.outcome.stages == b.outcome.stages == {"enumeration": 6, "pruned": 4}
+    for k in ("best", "candidates", "evaluations", "method"):
+        assert a.to_dict()[k] == b.to_dict()[k]
 
 
 def test_fewest_sides_with_a_friction_margin(tmp_path):

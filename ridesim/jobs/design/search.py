@@ -4,8 +4,12 @@ Method (stated in every result):
 
 1. **Discrete keys only**: every combination is evaluated (enumeration). When the one goal is
    itself a varied key, its value is known before a design is run, so the combinations are
-   run best goal first and the search stops once a feasible design is found and every
-   combination left has a worse goal (branch and bound with the exact bound).
+   run best goal first, one tier at a time (a tier: the combinations sharing the next goal
+   value, run together on the workers since none of them can prune another), and the
+   search stops before the first tier whose goal is worse than a feasible design's (branch
+   and bound with the exact bound). A tier is a property of the brief, not of the pool, so
+   the designs run do not depend on the number of workers, and no design is run that the
+   bound would have pruned.
 2. **Continuous keys**: a scrambled Sobol sample (I. M. Sobol', 1967; Owen scrambling,
    ``scipy.stats.qmc.Sobol``, seeded) of ``search.samples`` points over the box of the
    continuous ranges and the discrete choices (each discrete key one more dimension, cut
@@ -41,9 +45,6 @@ from ridesim.jobs.design.evaluate import Evaluator
 __all__ = ["Judged", "judge", "run_search", "SearchOutcome"]
 
 _INF = math.inf
-_BATCH = 4
-"""Designs run together in the branch-and-bound enumeration (fixed, so that the designs
-evaluated do not depend on the number of workers)."""
 
 
 @dataclass(frozen=True)
@@ -261,22 +262,23 @@ def _enumerate(s: _Search, disc: list) -> tuple[str, dict]:
         return (f"Enumeration of all {len(combos)} combinations of the discrete keys, ranked by"
                 " Deb's feasibility rules.", {"enumeration": len(s.order)})
     g = brief.goals[0]
-    combos.sort(key=lambda c: g.sense * c[g.path])
-    batch = _BATCH
-    i = 0
+    combos.sort(key=lambda c: g.sense * c[g.path])  # stable: ties keep the product's order
+    # Tiers: the combinations sharing one goal value. A feasible design bounds every later
+    # tier (their goal is worse) but none in its own (a tie is a candidate too), so a tier is
+    # the most that can run together without running a design the bound would prune.
+    tiers = [list(t) for _, t in itertools.groupby(combos, key=lambda c: c[g.path])]
     best = None
-    while i < len(combos):
-        if best is not None and g.sense * combos[i][g.path] > g.sense * best:
-            break  # every combination left has a worse goal: bound
-        for j in s.run(combos[i:i + batch]):
-            if j is not None and j.feasible and (best is None or g.sense * j.goals[0] < g.sense * best):
+    for tier in tiers:
+        if best is not None or s.budget_hit:
+            break  # a feasible design has the best goal left: every later tier is worse
+        for j in s.run(tier):
+            if j is not None and j.feasible:
                 best = j.goals[0]
-        i += batch
     pruned = len(combos) - len(s.order)
     return (f"Enumeration of the {len(combos)} combinations of the discrete keys, best goal"
-            f" ({g.path}) first, with branch and bound on the goal ({pruned} combinations"
-            " pruned: their goal is worse than a feasible design's); ranked by Deb's"
-            " feasibility rules.", {"enumeration": len(s.order), "pruned": pruned})
+            f" ({g.path}) first, one goal value at a time, with branch and bound on the goal"
+            f" ({pruned} combinations pruned: their goal is worse than a feasible design's);"
+            " ranked by Deb's feasibility rules.", {"enumeration": len(s.order), "pruned": pruned})
 
 
 def _sample_and_refine(s: _Search, cont: list, disc: list) -> tuple[str, dict]:
