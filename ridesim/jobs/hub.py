@@ -1,8 +1,8 @@
 """Jobs for a wheel rolling around a hub (``path.kind = "hub"``): solve text and check.
 
-A hub scenario is simulated as a gear pair or a carousel (:func:`simulate_hub`) and rendered as a
-speed-ratio plot and a clip of the carousel (:func:`render_hub`); motor sizing and the
-report of a hub path are not built yet;
+A hub scenario is simulated as a gear pair or a carousel (:func:`simulate_hub`) and rendered
+as a speed-ratio plot and a clip of the carousel (:func:`render_hub`); motor sizing of a hub
+path is not built yet;
 :data:`HUB_JOBS` names the jobs that handle one, and :func:`require_line` refuses the
 others with one line.
 """
