@@ -182,3 +182,71 @@ def test_sheet_limits_the_pieces_and_flags_what_does_not_fit(tmp_path):
     assert data["parts"][0]["fits_sheet"] is False and all(p["fits_sheet"] for p in data["parts"][1:])
     assert data["sheets_at_least"] == math.ceil(data["sheet_area_m2"] / (0.6 * 0.25))
     assert "does not fit" in (tmp_path / "s_cut_list.txt").read_text()
+
+
+def _polyline_radii(doc) -> tuple[float, float]:
+    """Least distance from the origin to the CUT polyline's chords, and its greatest vertex radius."""
+    (poly,) = [e for e in doc.modelspace().query("LWPOLYLINE") if e.dxf.layer == "CUT"]
+    assert poly.closed
+    p = np.array([(q[0], q[1]) for q in poly.get_points("xy")])
+    q = np.roll(p, -1, axis=0)
+    d = q - p
+    t = np.clip(-(p * d).sum(axis=1) / (d * d).sum(axis=1), 0.0, 1.0)  # foot of the perpendicular
+    foot = p + t[:, None] * d
+    return float(np.hypot(foot[:, 0], foot[:, 1]).min()), float(np.hypot(p[:, 0], p[:, 1]).max())
+
+
+def test_hub_pair_dxf_sizes(tmp_path):
+    """The elliptic gear pair cut as DXF: identical ellipses (a, b) about their foci mesh at
+    E = 2a, and the hub is the same ellipse, so both outlines run from a - c to a + c about
+    their centres, c = sqrt(a^2 - b^2) (classical elliptical gears; Litvin et al. 2009). Read
+    back with ezdxf: millimetres ($INSUNITS = 4), layers CUT/MARK/TEXT, a 10 mm centre hole."""
+    from ridesim.cli import main
+
+    a, b = 0.06, 0.05
+    c = math.sqrt(a * a - b * b)
+    scen = __import__("pathlib").Path(__file__).resolve().parent.parent / "scenarios"
+    assert main(["export", str(scen / "elliptic_gear_pair.toml"), "--out", str(tmp_path)]) == 0
+    cut = (tmp_path / "elliptic_gear_pair_cut_list.txt").read_text()
+    assert f"Mount the axle {2 * a * 1000:.3f} mm from the hub's centre" in cut and ".dxf" in cut
+    for part in ("wheel", "hub"):
+        doc = ezdxf.readfile(tmp_path / f"elliptic_gear_pair_{part}.dxf")
+        assert doc.header["$INSUNITS"] == 4 and doc.dxfversion == "AC1024"  # mm, R2010
+        assert {"CUT", "MARK", "TEXT"} <= {layer.dxf.name for layer in doc.layers}
+        assert doc.layers.get("CUT").color == 1 and doc.layers.get("MARK").color == 5
+        lo, hi = _polyline_radii(doc)  # chords within 0.0025 mm of the curve
+        assert lo == pytest.approx((a - c) * 1000, abs=0.005)
+        assert hi == pytest.approx((a + c) * 1000, abs=0.005)
+        (hole,) = doc.modelspace().query("CIRCLE")
+        assert hole.dxf.layer == "CUT" and hole.dxf.radius == pytest.approx(5.0)
+        assert len(doc.modelspace().query('LINE[layer=="MARK"]')) == 2  # the centre cross-hair
+        assert any(part in t.dxf.text for t in doc.modelspace().query("TEXT"))
+
+
+def test_ring_dxf_sizes(tmp_path):
+    """The drum's ring as DXF: its outline's radius range is the solved ring's (rho = E + r,
+    from r = a / cos(phi) on the hexagon's faces: a + E .. a / cos(pi/6) + E [derived]),
+    cut from a disc 30 mm wider than its greatest radius, with no centre hole."""
+    from ridesim.scenario.build import solve_hub_scenario
+    from ridesim.scenario.load import load_scenario
+
+    scen = __import__("pathlib").Path(__file__).resolve().parent.parent / "scenarios"
+    sc = load_scenario(scen / "drum_carousel.toml")
+    export_scenario(sc, tmp_path, dxf=True)
+    pair = solve_hub_scenario(sc)
+    E, apothem = pair.centre_distance, 0.25
+    lo, hi = pair.hub.extremes()[:2]
+    assert lo == pytest.approx(apothem + E, rel=1e-9)
+    assert hi == pytest.approx(apothem / math.cos(math.pi / 6) + E, rel=1e-9)
+    doc = ezdxf.readfile(tmp_path / "drum_carousel_ring.dxf")
+    assert doc.header["$INSUNITS"] == 4
+    near, far = _polyline_radii(doc)  # chords within 0.0025 mm of the curve; corners kept
+    assert near == pytest.approx(lo * 1000, abs=0.005) and far == pytest.approx(hi * 1000, abs=0.005)
+    (disc,) = doc.modelspace().query("CIRCLE")
+    assert disc.dxf.layer == "CUT" and disc.dxf.radius == pytest.approx((hi + 0.030) * 1000)
+    cut = (tmp_path / "drum_carousel_cut_list.txt").read_text()
+    assert f"Mount the axle {E * 1000:.3f} mm from the ring's centre" in cut
+    again = tmp_path / "again"
+    export_scenario(sc, again, dxf=True)
+    ring = "drum_carousel_ring.dxf"
+    assert (again / ring).read_bytes() == (tmp_path / ring).read_bytes()  # fixed metadata

@@ -111,8 +111,10 @@ def test_hub_with_track_or_unsupported_job_is_refused(tmp_path, capsys):
     assert "needs a [wheel]" in capsys.readouterr().err
     assert main(["size-motor", str(SCENARIOS / "drum_carousel.toml")]) == 2
     assert "does not handle" in capsys.readouterr().err
-    assert main(["simulate", str(SCENARIOS / "drum_carousel.toml")]) == 2  # rings: not yet
-    assert "ring" in capsys.readouterr().err
+    f.write_text(f.read_text().replace('kind = "hub"', 'kind = "hub"\nview = "gears"\nside = "inside"'
+                                       '\nratio = 1.5'))
+    assert main(["simulate", str(f)]) == 2  # a ring turns as a carousel only
+    assert "path.view" in capsys.readouterr().err
 
 
 def test_simulate_elliptic_gear_pair(capsys):
@@ -152,3 +154,80 @@ def test_track_solve_refuses_a_hub_path():
         {"wheel": {"shape": "polygon", "sides": 4, "apothem_m": a}}))
     assert isinstance(pair, RollingPair)
     assert pair.track.period == pytest.approx(2 * a * math.asinh(1.0), rel=1e-9)
+
+
+def _drum(tmp_path, extra: str = "") -> Path:
+    """The demo drum, its wheel turned once on the arm: 2 rad/s for pi seconds."""
+    text = (SCENARIOS / "drum_carousel.toml").read_text()
+    text = text.replace("ratio = 1.1666666666666667", "ratio = 1.1666666666666667\n" + extra)
+    text += f'\n[drive]\nmode = "shaft_speed"\nshaft_speed_rad_s = 2.0\n[run]\nduration_s = {math.pi!r}\n'
+    f = tmp_path / "drum.toml"
+    f.write_text(text)
+    return f
+
+
+@pytest.mark.parametrize("gravity", [False, True])
+def test_simulate_drum_as_a_carousel(tmp_path, capsys, gravity):
+    """A ring is simulated as a carousel (the ring fixed, the wheel's axle on an arm about its
+    centre), lying flat or standing as a drum with gravity in the plane. Rolling without slip
+    inside a ring, one wheel turn on the arm carries the arm on by psi = 2 pi / ratio (the
+    pitch curves' closure, r dtheta = rho dpsi; Litvin & Fuentes 2004): 2 pi 6/7 for the 7/6
+    ring; all along, the arm keeps to psi(theta) - pi/2."""
+    f = _drum(tmp_path, "gravity_in_plane = true" if gravity else "")
+    assert main(["simulate", str(f), "--json"]) == 0
+    out = json.loads(capsys.readouterr().out)
+    assert out["view"] == "carousel" and out["side"] == "inside" and out["gravity_in_plane"] is gravity
+    assert out["wheel_turns"] == pytest.approx(1.0)
+    assert out["arm_sweep_rad"] == pytest.approx(2 * math.pi * 6 / 7, abs=0.01)
+    assert out["analytic_arm_sweep_rad"] == pytest.approx(2 * math.pi * 6 / 7, abs=0.003)  # 1 step
+    assert out["phase_drift_rad"] < 0.01 and out["drifts"] is False
+    assert abs(out["arm_drift_end_rad"]) <= out["phase_drift_rad"]
+    # Without gravity the unset preload is the wheel's weight; with it, twice the weight.
+    hexagon_kg = 2 * math.sqrt(3) * 0.25 ** 2 * 0.018 * 600.0  # area 2 sqrt(3) a^2 [textbook]
+    assert out["preload_N"] == pytest.approx(hexagon_kg * 9.80665 * (2 if gravity else 1), rel=1e-6)
+    assert main(["simulate", str(f)]) == 0
+    text = capsys.readouterr().out
+    assert "carousel" in text and "arm swept" in text and "DRIFTS" not in text
+    assert ("vertical drum" in text) is gravity
+
+
+def test_simulate_gear_pair_in_the_carousel_view(tmp_path, capsys):
+    """The elliptic pair with path.view = "carousel": the hub fixed, one driver turn carries the
+    arm back by a whole turn (ratio 1: psi advances 2 pi), and the arm follows pi/2 - psi(theta)
+    with psi the elliptical gears' transmission function (Litvin et al. 2009). At 0.2 ms
+    and a 20 N preload the arm stays within 0.01 rad."""
+    text = (SCENARIOS / "elliptic_gear_pair.toml").read_text()
+    text = (text.replace("ratio = 1 ", 'view = "carousel"\nratio = 1 ')
+            .replace("preload_N = 2.0 ", "preload_N = 20.0 ")
+            .replace("duration_s = 1.6", f"duration_s = {math.pi / 2!r}")
+            .replace("timestep_s = 0.0005", "timestep_s = 0.0002"))
+    f = tmp_path / "pair.toml"
+    f.write_text(text)
+    assert main(["simulate", str(f), "--json"]) == 0
+    out = json.loads(capsys.readouterr().out)
+    assert out["view"] == "carousel" and out["side"] == "outside"
+    assert out["arm_sweep_rad"] == pytest.approx(-2 * math.pi, abs=0.01)
+    sc = load_scenario(f)
+    from ridesim.scenario.build import solve_hub_scenario
+
+    pair = solve_hub_scenario(sc)
+    phi = float(pair.wheel_angle(0.0)) + 2 * math.pi - 0.5 * math.pi  # the end of the turn
+    k = round(phi / (2 * math.pi))
+    psi = 2 * math.atan((1 - E_ECC) / (1 + E_ECC) * math.tan((phi - 2 * math.pi * k) / 2)) + 2 * math.pi * k
+    assert out["analytic_arm_angle_end_rad"] == pytest.approx(0.5 * math.pi - psi, abs=0.003)
+    assert out["phase_drift_rad"] < 0.01 and out["drifts"] is False
+
+
+def test_path_view_and_gravity_keys_are_checked(tmp_path, capsys):
+    base = (SCENARIOS / "elliptic_gear_pair.toml").read_text()
+    for extra, words in (('view = "round"', "path.view"),
+                         ("gravity_in_plane = true", "path.gravity_in_plane belongs to the carousel")):
+        f = tmp_path / "bad.toml"
+        f.write_text(base.replace("ratio = 1 ", extra + "\nratio = 1 "))
+        assert main(["simulate", str(f)]) == 2
+        err = capsys.readouterr().err.strip()
+        assert err.count("\n") == 0 and words in err
+    line = tmp_path / "line.toml"
+    line.write_text('[wheel]\nshape = "circle"\nradius_m = 0.1\n[path]\nview = "carousel"\n')
+    assert main(["check", str(line)]) == 2
+    assert "belongs to a hub path" in capsys.readouterr().err

@@ -849,15 +849,17 @@ def _centre_svg(body, pts: np.ndarray, name: str, part: str, lines: Sequence[str
 
 def export_hub_drawings(pair, out_dir: str | Path, *, name: str, thickness_m: float | None = None,
                         title_lines: Sequence[str] = (), hole_m: float = 0.010,
-                        ring_rim_m: float = 0.030, margin_m: float = MARGIN_M) -> list[Path]:
+                        ring_rim_m: float = 0.030, margin_m: float = MARGIN_M,
+                        dxf: bool = False) -> list[Path]:
     """Write full-size cut files of a wheel and the hub (or ring) it rolls on.
 
     Files (all written atomically), with ``NAME`` the sanitised ``name``:
 
-    * ``NAME_wheel.svg``, ``NAME_wheel.csv``: the wheel about its axle, with the axle hole;
-    * ``NAME_hub.svg``, ``NAME_hub.csv`` (``NAME_ring...`` for a wheel inside a ring): the
-      hub about its centre, with its centre hole; a ring is drawn as its rolling outline cut
-      from a disc ``ring_rim_m`` wider than its greatest radius;
+    * ``NAME_wheel.svg``, ``NAME_wheel.csv`` (and ``NAME_wheel.dxf`` with ``dxf``): the wheel
+      about its axle, with the axle hole;
+    * ``NAME_hub.svg``, ``NAME_hub.csv`` (``.dxf``; ``NAME_ring...`` for a wheel inside a
+      ring): the hub about its centre, with its centre hole; a ring is drawn as its rolling
+      outline cut from a disc ``ring_rim_m`` wider than its greatest radius;
     * ``NAME_cut_list.txt``: the centre distance to set them at, and what each file holds.
 
     Parameters
@@ -878,6 +880,9 @@ def export_hub_drawings(pair, out_dir: str | Path, *, name: str, thickness_m: fl
         Width [m] of a ring's plate beyond its greatest radius.
     margin_m : float
         Blank margin [m] around the geometry.
+    dxf : bool
+        Also write DXF (R2010, mm, layers CUT/MARK/TEXT as the line's cut files; needs the
+        ``cad`` extra, ezdxf).
 
     Returns
     -------
@@ -885,6 +890,10 @@ def export_hub_drawings(pair, out_dir: str | Path, *, name: str, thickness_m: fl
         The files written, wheel first.
     """
     stem = _safe_name(name)
+    if dxf:
+        from ridesim.export.dxf import require_ezdxf
+
+        require_ezdxf()  # before anything is written
     hole = _positive("hole_m", hole_m)
     rim = _positive("ring_rim_m", ring_rim_m)
     margin = _positive("margin_m", margin_m)
@@ -916,6 +925,10 @@ def export_hub_drawings(pair, out_dir: str | Path, *, name: str, thickness_m: fl
     written.append(write_text_atomic(out / f"{stem}_wheel.svg",
                                      _centre_svg(wheel, wpts, name, "wheel", wl, hole, margin)))
     written.append(write_text_atomic(out / f"{stem}_wheel.csv", _csv(wpts)))
+    if dxf:
+        from ridesim.export.dxf import centre_part_dxf
+
+        written.append(centre_part_dxf(out / f"{stem}_wheel.dxf", wpts, hole, wl))
     hpts = wheel_outline_mm(hub)
     outer = (hr[1] + rim) * 1000 if ring else None
     hl = [f"{name}: {part}, full size 1:1, all dimensions in mm",
@@ -925,13 +938,17 @@ def export_hub_drawings(pair, out_dir: str | Path, *, name: str, thickness_m: fl
     written.append(write_text_atomic(out / f"{stem}_{part}.svg",
                                      _centre_svg(hub, hpts, name, part, hl, hole, margin, outer)))
     written.append(write_text_atomic(out / f"{stem}_{part}.csv", _csv(hpts)))
+    if dxf:
+        written.append(centre_part_dxf(out / f"{stem}_{part}.dxf", hpts, None if ring else hole, hl,
+                                       outer))
+    ext = " / .dxf" if dxf else ""
     th_s = float(pair.wheel_angle(0.0))
     timing = (math.degrees((th_s - 0.5 * math.pi) % TWO_PI), -90.0 % 360.0 if ring else 90.0)
     notes = [
         f"{name}: cut files (full size, millimetres)",
         "",
-        f"{stem}_wheel.svg / .csv: wheel outline about its axle; axle hole {hole * 1000:.3f} mm.",
-        f"{stem}_{part}.svg / .csv: {part} outline about its centre; "
+        f"{stem}_wheel.svg / .csv{ext}: wheel outline about its axle; axle hole {hole * 1000:.3f} mm.",
+        f"{stem}_{part}.svg / .csv{ext}: {part} outline about its centre; "
         + (f"cut the outline out of a disc of radius {outer:.3f} mm; the arm pivots at the marked"
            " centre." if ring else f"centre hole {hole * 1000:.3f} mm."),
         f"Mount the axle {pair.centre_distance * 1000:.3f} mm from the {part}'s centre"
@@ -939,6 +956,7 @@ def export_hub_drawings(pair, out_dir: str | Path, *, name: str, thickness_m: fl
         f"Timing: assemble with the wheel's ray at {timing[0]:.3f} deg (its drawing) on the {part}'s"
         f" ray at {timing[1]:.3f} deg (its drawing), anticlockwise from +x; the parts touch there.",
         "CSV columns x_mm,y_mm: each part about its own centre.",
+        *(["DXF: AutoCAD R2010, millimetres; layers CUT (red), MARK (blue), TEXT."] if dxf else []),
         "Where parts roll on each other, fingers can be drawn in and crushed: guard the nip.",
         *[str(s) for s in title_lines],
         "",

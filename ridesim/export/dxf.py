@@ -27,7 +27,7 @@ import numpy as np
 from ridesim.errors import InputError
 from ridesim.export.results import write_text_atomic
 
-__all__ = ["LAYERS", "require_ezdxf", "wheel_dxf", "section_dxf"]
+__all__ = ["LAYERS", "require_ezdxf", "wheel_dxf", "section_dxf", "centre_part_dxf"]
 
 #: Layer name -> AutoCAD colour index (1 red, 5 blue, 7 white/black).
 LAYERS = {"CUT": 1, "MARK": 5, "TEXT": 7}
@@ -187,4 +187,48 @@ def section_dxf(path: str | Path, k: int, n: int, prof_mm: np.ndarray, cut_mm: n
         msp.add_text(label, height=TEXT_MM,
                      dxfattribs={"layer": "TEXT", "insert": (xj - TEXT_MM, yj - 1.5 * tick - LINE_MM)})
     _text_block(msp, lines, x0, y_bottom - LINE_MM)
+    return _save(doc, Path(path))
+
+
+def centre_part_dxf(path: str | Path, outline_mm: np.ndarray, hole_m: float | None,
+                    lines: Sequence[str], outer_r_mm: float | None = None) -> Path:
+    """Write a part that turns about a centre (a hub's wheel, a hub, a ring) as a DXF.
+
+    The outline and the centre hole (or, for a ring, the outline cut from a disc of radius
+    ``outer_r_mm``) on CUT, a cross-hair at the centre on MARK, notes on TEXT; the centre at
+    the origin, in the same frame as the part's SVG and CSV.
+
+    Parameters
+    ----------
+    path : str or Path
+        File to write (atomically).
+    outline_mm : ndarray, shape (N, 2)
+        Outline [mm] about the centre, anticlockwise, without a closing repeat.
+    hole_m : float or None
+        Centre hole diameter [m]; None: no hole (the centre is marked only).
+    lines : sequence of str
+        Notes for the TEXT layer.
+    outer_r_mm : float, optional
+        Radius [mm] of the disc a ring is cut from (an outer CUT circle).
+
+    Returns
+    -------
+    Path
+    """
+    doc = _new_doc()
+    msp = doc.modelspace()
+    pts = np.asarray(outline_mm, dtype=float)
+    msp.add_lwpolyline([tuple(map(float, p)) for p in pts], close=True, dxfattribs={"layer": "CUT"})
+    if outer_r_mm is not None:
+        msp.add_circle((0.0, 0.0), float(outer_r_mm), dxfattribs={"layer": "CUT"})
+    rh = 0.0 if hole_m is None else 0.5 * hole_m * 1000
+    if hole_m is not None:
+        msp.add_circle((0.0, 0.0), rh, dxfattribs={"layer": "CUT"})
+    rmin = float(np.min(np.hypot(pts[:, 0], pts[:, 1])))
+    arm = rh + min(5.0, 0.3 * rmin)
+    msp.add_line((-arm, 0.0), (arm, 0.0), dxfattribs={"layer": "MARK"})
+    msp.add_line((0.0, -arm), (0.0, arm), dxfattribs={"layer": "MARK"})
+    x_left = -float(outer_r_mm) if outer_r_mm is not None else float(pts[:, 0].min())
+    y_low = -float(outer_r_mm) if outer_r_mm is not None else float(pts[:, 1].min())
+    _text_block(msp, lines, x_left, y_low - LINE_MM)
     return _save(doc, Path(path))

@@ -69,8 +69,9 @@ def export_scenario(sc: Scenario, out: str | Path, *, section_m: float | None = 
         from ridesim.export.drawings import export_hub_drawings
 
         files = export_hub_drawings(pair, out, name=sc.name, thickness_m=thick,
-                                    title_lines=(sc.description,) if sc.description else ())
-        return {"files": [str(f) for f in files], "notes": []}
+                                    title_lines=(sc.description,) if sc.description else (),
+                                    dxf=dxf)
+        return {"files": [str(f) for f in files], "notes": notes}
     ex = sc.export
     files = export_drawings(
         pair, out, name=sc.name,

@@ -1,8 +1,8 @@
 """Jobs for a wheel rolling around a hub (``path.kind = "hub"``): solve text and check.
 
-A hub scenario is simulated as a gear pair (:func:`simulate_hub`) and rendered as a
-speed-ratio plot and a clip of the carousel (:func:`render_hub`); motor sizing and the
-report of a hub path are not built yet;
+A hub scenario is simulated as a gear pair or a carousel (:func:`simulate_hub`) and rendered
+as a speed-ratio plot and a clip of the carousel (:func:`render_hub`); motor sizing of a hub
+path is not built yet;
 :data:`HUB_JOBS` names the jobs that handle one, and :func:`require_line` refuses the
 others with one line.
 """
@@ -205,16 +205,19 @@ def check_hub(sc: Scenario) -> HubCheckResult:
 
 @dataclass
 class HubSimResult:
-    """A simulated gear pair (hub scenario) against its analytic speed ratio.
+    """A simulated hub scenario against its closed form: a gear pair or a carousel.
 
     Attributes
     ----------
     name : str
         Scenario name.
     figures : dict
-        Measured and analytic figures with units in the key names.
+        Measured and analytic figures with units in the key names; ``view`` says which run
+        (``"gears"``: the driven hub's speed against ``dψ/dθ``; ``"carousel"``: the arm's
+        angle against the analytic one from ``ψ(θ)``).
     drifts : bool
-        True when the driven member's phase left the analytic one by more than 0.01 rad.
+        True when the driven member (gears) or the arm (carousel) left the analytic angle by
+        more than 0.01 rad.
     cautions : list of str
         Safety cautions.
     """
@@ -232,6 +235,8 @@ class HubSimResult:
     def to_text(self) -> str:
         """The run as text."""
         f = self.figures
+        if f.get("view") == "carousel":
+            return self._carousel_text()
         lines = [f"scenario: {self.name} (gear pair on fixed centres, simulated in pymunk)",
                  f"driver speed {f['driver_speed_rad_s']:.4g} rad/s for {f['driver_turns']:.4g} turn(s);"
                  f" brake torque on the hub {f['load_torque_Nm']:.4g} N m, preload {f['preload_N']:.4g} N",
@@ -247,21 +252,51 @@ class HubSimResult:
         lines += caution_lines(self.cautions)
         return "\n".join(lines)
 
+    def _carousel_text(self) -> str:
+        f = self.figures
+        where = "around the fixed hub" if f["side"] == "outside" else "inside the fixed ring"
+        plane = ("vertical drum, gravity in the plane" if f["gravity_in_plane"]
+                 else "horizontal carousel, no gravity in the plane")
+        lines = [f"scenario: {self.name} (carousel: the wheel rolling {where} on an arm pivoted at"
+                 f" its centre; {plane}; simulated in pymunk)",
+                 f"wheel speed on the arm {f['wheel_speed_rad_s']:.4g} rad/s for {f['wheel_turns']:.4g}"
+                 f" turn(s); preload {f['preload_N']:.4g} N",
+                 f"arm swept {f['arm_sweep_rad']:+.5g} rad, analytic {f['analytic_arm_sweep_rad']:+.5g} rad"
+                 " (from the hub angle psi(theta))",
+                 f"arm angle off the analytic by at most {f['phase_drift_rad']:.4g} rad;"
+                 f" at the end {f['arm_drift_end_rad']:+.4g} rad",
+                 "axle off its circle by at most"
+                 f" {1000 * f['axle_radius_error_m']:.4f} mm"]
+        if self.drifts:
+            lines.append("DRIFTS: the arm left the analytic angle by more than 0.01 rad (slip at the"
+                         " contact, or a step too coarse); raise the friction or the preload,"
+                         " or halve run.timestep_s")
+        lines += caution_lines(self.cautions)
+        return "\n".join(lines)
+
 
 def simulate_hub(sc: Scenario) -> HubSimResult:
-    """Simulate a hub scenario (outside) as a gear pair: the driver at constant shaft speed.
+    """Simulate a hub scenario as a gear pair or as a carousel (``path.view``).
 
-    Both parts are plates of the ``[wheel]`` thickness and density (the wheel's
-    ``mass_kg``/``inertia_kg_m2`` override its own), balanced on their pivots. The driver is
-    pressed against the hub by ``path.preload_N`` (unset: the wheel's weight; the preload a
-    friction drive needs) and turns at ``drive.shaft_speed_rad_s`` (mode shaft_speed) or at
-    ``drive.speed_m_s`` over the wheel's mean contact radius, its motor limited to
-    ``drive.max_torque_Nm``; the hub is braked by ``path.load_torque_Nm``.
+    Gear view (outside only; the default there): both parts are plates of the ``[wheel]``
+    thickness and density (the wheel's ``mass_kg``/``inertia_kg_m2`` override its own),
+    balanced on their pivots. The driver is pressed against the hub by ``path.preload_N``
+    (unset: the wheel's weight; the preload a friction drive needs) and turns at
+    ``drive.shaft_speed_rad_s`` (mode shaft_speed) or at ``drive.speed_m_s`` over the wheel's
+    mean contact radius, its motor limited to ``drive.max_torque_Nm``; the hub is braked by
+    ``path.load_torque_Nm``. Reported: the driven speed against ``dψ/dθ``.
+
+    Carousel view (the default inside a ring): the hub fixed, the wheel's axle on a radial
+    groove of an arm pivoted at the hub's centre, pressed onto the hub (or the ring) by
+    ``path.preload_N`` (unset: the wheel's weight, twice it with ``path.gravity_in_plane``),
+    the wheel turned on the arm at the same speed as above. With ``path.gravity_in_plane`` the
+    wheel's weight acts in the plane (a vertical drum). Reported: the arm's angle against the
+    analytic ``π/2 - ψ(θ)`` (outside) or ``ψ(θ) - π/2`` (inside).
 
     Parameters
     ----------
     sc : Scenario
-        Validated scenario with ``path.kind = "hub"``, ``side = "outside"``.
+        Validated scenario with ``path.kind = "hub"``.
 
     Returns
     -------
@@ -270,14 +305,14 @@ def simulate_hub(sc: Scenario) -> HubSimResult:
     import numpy as np
 
     from ridesim.scenario.build import wheel_mass
-    from ridesim.sim.hub import run_gear_pair
 
-    if sc.path.side != "outside":
-        raise ScenarioError("simulate handles a wheel around a hub (path.side = \"outside\") only;"
-                            " a ring is not simulated yet")
+    view = sc.path.sim_view
+    if view == "gears" and sc.path.side != "outside":
+        raise ScenarioError("path.view = \"gears\" needs path.side = \"outside\"; a ring is"
+                            " simulated as a carousel (path.view = \"carousel\")")
     if sc.drive.mode == "torque":
-        raise ScenarioError("simulate drives a gear pair at a constant shaft speed: use drive.mode ="
-                            " \"shaft_speed\" (or \"speed\")")
+        raise ScenarioError("simulate turns a hub pair's wheel at a constant shaft speed: use"
+                            " drive.mode = \"shaft_speed\" (or \"speed\")")
     if sc.wheel is None:
         raise ScenarioError("a hub needs a [wheel] with its shape")
     spec = sc.wheel
@@ -292,10 +327,40 @@ def simulate_hub(sc: Scenario) -> HubSimResult:
     else:
         w = float(sc.drive.speed_m_s) / float(np.mean(pair.wheel_radius(th)))
     mw = wheel_mass(sc, pair.wheel)
-    mh = pair.hub.mass_properties(spec.thickness_m, spec.density_kg_m3)
     turns = float(sc.run.duration_s) * w / (2 * math.pi)
+    weight = mw.mass_kg * 9.80665
+    if view == "carousel":
+        from ridesim.sim.hub import run_carousel
+
+        gravity = bool(sc.path.gravity_in_plane)
+        preload = sc.path.preload_N if sc.path.preload_N is not None else weight * (2.0 if gravity else 1.0)
+        E = pair.centre_distance
+        crun = run_carousel(pair, wheel_speed_rad_s=w, turns=turns, timestep_s=float(sc.run.timestep_s),
+                            friction=float(sc.surface.friction), preload_N=float(preload),
+                            mass_kg=mw.mass_kg, inertia_kg_m2=mw.inertia_kg_m2,
+                            arm_inertia_kg_m2=mw.mass_kg * E * E,
+                            iterations=int(sc.run.iterations),
+                            gravity_m_s2=9.80665 if gravity else 0.0,
+                            max_drive_torque_Nm=float(sc.drive.max_torque_Nm))
+        expected = pair.poses(crun.theta_rad)[0]
+        err = crun.arm_rad - expected
+        drift = float(np.max(np.abs(err)))
+        figures = {"view": "carousel", "side": pair.side, "gravity_in_plane": gravity,
+                   "wheel_speed_rad_s": w, "wheel_turns": turns, "preload_N": float(preload),
+                   "arm_angle_start_rad": float(crun.arm_rad[0]),
+                   "arm_angle_end_rad": float(crun.arm_rad[-1]),
+                   "analytic_arm_angle_end_rad": float(expected[-1]),
+                   "arm_sweep_rad": float(crun.arm_rad[-1] - crun.arm_rad[0]),
+                   "analytic_arm_sweep_rad": float(expected[-1] - expected[0]),
+                   "phase_drift_rad": drift, "arm_drift_end_rad": float(err[-1]),
+                   "axle_radius_error_m": float(np.max(np.abs(crun.axle_radius_m - E)))}
+        return HubSimResult(sc.name, figures, drift > 0.01, with_safety(HUB_CAUTIONS))
+
+    from ridesim.sim.hub import run_gear_pair
+
+    mh = pair.hub.mass_properties(spec.thickness_m, spec.density_kg_m3)
     load = float(sc.path.load_torque_Nm)
-    preload = sc.path.preload_N if sc.path.preload_N is not None else mw.mass_kg * 9.80665
+    preload = sc.path.preload_N if sc.path.preload_N is not None else weight
     run = run_gear_pair(pair, driver_speed_rad_s=w, turns=turns, timestep_s=float(sc.run.timestep_s),
                         friction=float(sc.surface.friction), load_torque_Nm=load,
                         preload_N=float(preload), mass_kg=(mw.mass_kg, mh.mass_kg),
@@ -306,7 +371,7 @@ def simulate_hub(sc: Scenario) -> HubSimResult:
     an = pair.speed_ratio(theta)
     drift = float(np.max(np.abs(run.psi_rad - pair.hub_angle(run.theta_rad))))
     sr = pair.speed_ratio(th)
-    figures = {"driver_speed_rad_s": w, "driver_turns": turns, "load_torque_Nm": load,
+    figures = {"view": "gears", "driver_speed_rad_s": w, "driver_turns": turns, "load_torque_Nm": load,
                "preload_N": float(preload),
                "speed_ratio_min": float(ratio.min()), "speed_ratio_max": float(ratio.max()),
                "analytic_speed_ratio_min": float(sr.min()), "analytic_speed_ratio_max": float(sr.max()),

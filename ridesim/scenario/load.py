@@ -511,7 +511,11 @@ class PathSpec:
         Hub only, simulate: brake torque on the driven hub in N*m.
     preload_N : float or None
         Hub only, simulate: force in N pressing the wheel's axle towards the hub; None: the
-        wheel's weight.
+        wheel's weight (twice it with ``gravity_in_plane``).
+    view : str or None
+        Hub only, simulate: ``"gears"`` or ``"carousel"``; None: by :attr:`sim_view`.
+    gravity_in_plane : bool
+        Hub only, simulate, carousel view: gravity in the plane of the roll (a vertical drum).
     """
 
     kind: str = default_of("path.kind")
@@ -520,6 +524,15 @@ class PathSpec:
     ratio: float | None = default_of("path.ratio")
     load_torque_Nm: float = default_of("path.load_torque_Nm")
     preload_N: float | None = default_of("path.preload_N")
+    view: str | None = default_of("path.view")
+    gravity_in_plane: bool = default_of("path.gravity_in_plane")
+
+    @property
+    def sim_view(self) -> str:
+        """How ``simulate`` runs a hub pair: ``view``, or gears outside and carousel inside."""
+        if self.view is not None:
+            return self.view
+        return "gears" if self.side == "outside" else "carousel"
 
     @property
     def is_hub(self) -> bool:
@@ -1313,10 +1326,11 @@ def _parse_path(raw: Any) -> PathSpec:
     kind = t.get("kind")
     spec = PathSpec(kind=kind, side=t.get("side"), centre_distance_m=t.get("centre_distance_m"),
                     ratio=t.get("ratio"), load_torque_Nm=t.get("load_torque_Nm"),
-                    preload_N=t.get("preload_N"))
+                    preload_N=t.get("preload_N"), view=t.get("view"),
+                    gravity_in_plane=t.get("gravity_in_plane"))
     if kind == "line":
-        extra = [k for k in ("side", "centre_distance_m", "ratio", "load_torque_Nm", "preload_N")
-                 if t.has(k)]
+        extra = [k for k in ("side", "centre_distance_m", "ratio", "load_torque_Nm", "preload_N",
+                             "view", "gravity_in_plane") if t.has(k)]
         if extra:
             raise ScenarioError(
                 f"path.{extra[0]} belongs to a hub path; set path.kind = \"hub\" or remove it"
@@ -1325,6 +1339,12 @@ def _parse_path(raw: Any) -> PathSpec:
         raise ScenarioError("give path.centre_distance_m or path.ratio, not both")
     if kind == "hub" and spec.side == "inside" and spec.centre_distance_m is None and spec.ratio is None:
         raise ScenarioError("path.side = \"inside\" needs path.ratio (> 1) or path.centre_distance_m")
+    if kind == "hub" and spec.side == "inside" and spec.view == "gears":
+        raise ScenarioError("path.view = \"gears\" needs path.side = \"outside\" (a ring is simulated"
+                            " as a carousel); use path.view = \"carousel\" or remove it")
+    if kind == "hub" and spec.gravity_in_plane and spec.sim_view == "gears":
+        raise ScenarioError("path.gravity_in_plane belongs to the carousel view; set path.view ="
+                            " \"carousel\" or remove it")
     return spec
 
 

@@ -122,6 +122,9 @@ PATH_KINDS = ("line", "hub")
 HUB_SIDES = ("outside", "inside")
 """Allowed values of ``path.side`` (the same as ``ridesim.model.path.HUB_SIDES``)."""
 
+HUB_VIEWS = ("gears", "carousel")
+"""Allowed values of ``path.view``: how ``simulate`` runs a hub pair."""
+
 SECTIONS = ("wheel", "track", "path", "vehicle", "drive", "surface", "run", "duty", "motor",
             "export")
 """The scenario's sections, in the order of the reference."""
@@ -380,6 +383,13 @@ KEYS: tuple[Key, ...] = (
         "hub only, simulate: force pressing the wheel's axle towards the hub; unset: the"
         " wheel's weight", gt=0, plausible=(0.01, 20000.0),
         source="common practice: a light spring on a desk model to a ride car's weight"),
+    Key("path", "view", "choice", None, "",
+        "hub only, simulate: gears (both parts on fixed pivots, the hub driven) or carousel (the"
+        " hub fixed, the wheel's axle on an arm pivoted at its centre); unset: gears outside,"
+        " carousel inside a ring", choices=HUB_VIEWS),
+    Key("path", "gravity_in_plane", "bool", False, "",
+        "hub only, simulate, carousel view: gravity acts in the plane of the roll (a vertical"
+        " drum; unset preload: twice the wheel's weight); false: a horizontal carousel"),
     # ---------------------------------------------------------------- [vehicle]
     Key("vehicle", "body_mass_kg", "real", 10.0, "kg", "body mass without wheels",
         ge=0, most=1e5, plausible=(0.0, 1000.0),

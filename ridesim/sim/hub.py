@@ -237,13 +237,16 @@ class CarouselRun:
 def run_carousel(pair, *, wheel_speed_rad_s: float = 2.0, turns: float = 1.0,
                  timestep_s: float = 5e-4, friction: float = 1.5, preload_N: float = 200.0,
                  mass_kg: float = 1.0, inertia_kg_m2: float = 0.05, arm_inertia_kg_m2: float = 0.05,
-                 iterations: int = 30, slop_m: float = 1e-4, rim_points: int = 360) -> CarouselRun:
+                 iterations: int = 30, slop_m: float = 1e-4, rim_points: int = 360,
+                 gravity_m_s2: float = 0.0, max_drive_torque_Nm: float | None = None) -> CarouselRun:
     """Simulate a carousel or drum: the hub (or ring) fixed, an arm pivoted at its centre.
 
     The wheel's axle rides in a radial groove on the arm and is pressed against the hub
     (outwards against a ring) by ``preload_N``; a motor on the arm turns the wheel at a
-    constant speed relative to the arm, and the arm swings round as the wheel rolls. Gravity
-    is off (a horizontal carousel; the preload stands for a spring).
+    constant speed relative to the arm, and the arm swings round as the wheel rolls. With
+    ``gravity_m_s2 = 0`` (a horizontal carousel) the preload stands for a spring; otherwise
+    gravity acts on the wheel along -y in the plane (a vertical drum), its centre of mass on
+    its axle, while the arm and the carriage are balanced on their pivots.
 
     Parameters
     ----------
@@ -271,6 +274,10 @@ def run_carousel(pair, *, wheel_speed_rad_s: float = 2.0, turns: float = 1.0,
         Allowed contact overlap [m].
     rim_points : int
         Polygon vertices of a smooth rim.
+    gravity_m_s2 : float
+        Gravity [m/s^2] in the plane, along -y, on the wheel; 0: a horizontal carousel.
+    max_drive_torque_Nm : float, optional
+        Torque limit [N m] of the motor turning the wheel on the arm; None: unlimited.
 
     Returns
     -------
@@ -282,6 +289,8 @@ def run_carousel(pair, *, wheel_speed_rad_s: float = 2.0, turns: float = 1.0,
                     ("timestep_s", timestep_s), ("friction", friction), ("preload_N", preload_N)):
         if not (isinstance(v, (int, float)) and math.isfinite(v) and v > 0):
             raise InputError(f"{name} must be a number > 0, got {v!r}")
+    if not (isinstance(gravity_m_s2, (int, float)) and math.isfinite(gravity_m_s2) and gravity_m_s2 >= 0):
+        raise InputError(f"gravity_m_s2 must be a number >= 0, got {gravity_m_s2!r}")
     E = pair.centre_distance
     inside = pair.side == "inside"
     space = pymunk.Space()
@@ -327,7 +336,10 @@ def run_carousel(pair, *, wheel_speed_rad_s: float = 2.0, turns: float = 1.0,
     lock = pymunk.GearJoint(arm, carriage, 0.0, 1.0)  # the carriage turns with the arm
     axle = pymunk.PivotJoint(carriage, wheel, (0.0, 0.0), (0.0, 0.0))
     drive = pymunk.SimpleMotor(carriage, wheel, float(wheel_speed_rad_s))
+    if max_drive_torque_Nm is not None:
+        drive.max_force = float(max_drive_torque_Nm)
     space.add(arm, carriage, wheel, *shapes, pin, groove, lock, axle, drive)
+    weight = (0.0, -float(mass_kg) * float(gravity_m_s2))  # on the wheel only, at its axle
 
     n = int(math.ceil(turns * TWO_PI / wheel_speed_rad_s / timestep_s))
     t, th, am, rr = (np.empty(n + 1) for _ in range(4))
@@ -340,6 +352,8 @@ def run_carousel(pair, *, wheel_speed_rad_s: float = 2.0, turns: float = 1.0,
         if i < n:
             d = carriage.position / max(carriage.position.length, 1e-12)
             carriage.apply_force_at_world_point(-sign * float(preload_N) * d, carriage.position)
+            if gravity_m_s2 > 0:
+                wheel.apply_force_at_world_point(weight, wheel.position)
             space.step(timestep_s)
     if not np.all(np.isfinite(rr)) or np.max(np.abs(rr - E)) > 0.25 * E:
         raise SimulationError("the carousel's wheel left the hub in the simulation (axle off its"
