@@ -930,7 +930,36 @@ def clearance(
             f"contact_exclusion_rad must be in (0, 0.1) rad, got {contact_exclusion_rad!r}"
         )
     chk = _Checker(pair, int(rim_points), delta)
-    L = pair.revolution_length
+    x, x_start = _check_poses(pair, poses)
+    theta = np.asarray(pair.wheel_angle(x), dtype=float)
+    P = len(x)
+    pmin = _least_gaps(chk, x, theta)
+    gmin, j, t, phi, xbest = _refine_worst(chk, pair, x, pmin)
+    th_best = _at(pair.wheel_angle, xbest)
+    # Describe the feature and its world position.
+    pw, feature, vertex = _feature(chk, pair, j, t, phi)
+    c, s = math.cos(th_best), math.sin(th_best)
+    wx = xbest + pw[0] * c + pw[1] * s
+    wy = -pw[0] * s + pw[1] * c
+    euclid = _euclid(pair.track, wx, wy, gmin)
+    intervals = _interference_intervals(chk, pair, x, pmin)
+    first = intervals[0][0] if intervals else None
+    return ClearanceResult(
+        min_m=float(gmin), at_x_m=xbest, wheel_angle_rad=th_best, feature=feature,
+        feature_vertex=vertex, feature_phi_rad=float(np.mod(phi, TWO_PI)),
+        point_m=(float(wx), float(wy)), euclid_m=float(euclid),
+        first_interference_x_m=None if first is None else float(first),
+        interferes=bool(gmin < -chk.tol), tolerance_m=float(chk.tol),
+        intervals_m=tuple(intervals), x_start_m=float(x_start), poses=int(P),
+        rim_points=int(chk.n_points),
+    )
+
+
+def _check_poses(pair: RollingPair, poses: np.ndarray | None) -> tuple[np.ndarray, float]:
+    """The axle positions [m] to check, sorted and unique, and the first of them [m].
+
+    The default is one revolution from ``x = 0`` (see :func:`_pose_grid`).
+    """
     x_start = 0.0
     if poses is None:
         x = _pose_grid(pair, x_start, None)
@@ -939,7 +968,15 @@ def clearance(
         if x.size == 0 or not np.all(np.isfinite(x)):
             raise InputError("poses must be a non-empty array of finite axle positions in metres")
         x_start = float(x[0])
-    theta = np.asarray(pair.wheel_angle(x), dtype=float)
+    return x, x_start
+
+
+def _least_gaps(chk: _Checker, x: np.ndarray, theta: np.ndarray) -> np.ndarray:
+    """Least gap [m] at each pose ``x`` [m] (wheel angles ``theta`` [rad]).
+
+    Gaps above a threshold are not measured (they read inf); the threshold grows until some
+    pose has a gap below it, or is far above the wheel's size.
+    """
     P = len(x)
     # Chunks of poses: a small first one sets the running minimum, then large ones (each
     # pose's work through the disc hierarchy is small).
@@ -964,9 +1001,19 @@ def clearance(
         if t0 > 4.0 * chk.rmax:  # nothing anywhere near the track: take what we have
             break
         t0 *= 16.0
+    return pmin
 
+
+def _refine_worst(chk: _Checker, pair: RollingPair, x: np.ndarray,
+                  pmin: np.ndarray) -> tuple[float, int, float, float, float]:
+    """Refine the worst pose between its neighbours.
+
+    Returns the least gap [m], the rim feature's index and parameter, its polar angle [rad]
+    and the axle position [m] where it occurs.
+    """
+    L = pair.revolution_length
+    P = len(x)
     k = int(np.argmin(pmin))
-    # Refine the worst pose between its neighbours.
     best = chk.refined_pose(float(x[k]))
     xbest = float(x[k])
     if P > 1:
@@ -984,9 +1031,16 @@ def clearance(
         if cand[0] < best[0]:
             best, xbest = cand, float(res.x)
     gmin, j, t, phi = best
-    th_best = _at(pair.wheel_angle, xbest)
+    return gmin, j, t, phi, xbest
 
-    # Describe the feature and its world position.
+
+def _feature(chk: _Checker, pair: RollingPair, j: int, t: float,
+             phi: float) -> tuple[np.ndarray, str, int | None]:
+    """The rim feature found (edge ``j`` at parameter ``t``, or the rim at polar angle ``phi``).
+
+    Returns its point [m] in the wheel's frame, its description, and its vertex index when
+    it is a vertex.
+    """
     vertex = None
     if chk.poly is not None:
         V, W = chk.poly.V[j], chk.poly.W[j]
@@ -1012,62 +1066,58 @@ def clearance(
             if dv[iv] <= 1e-9 * chk.rmax:
                 vertex = iv
                 feature = f"vertex {iv}"
-    c, s = math.cos(th_best), math.sin(th_best)
-    wx = xbest + pw[0] * c + pw[1] * s
-    wy = -pw[0] * s + pw[1] * c
-    euclid = _euclid(pair.track, wx, wy, gmin)
+    return pw, feature, vertex
 
-    # Interference: first onset and intervals, ends sharpened by bisection.
+
+def _interference_intervals(chk: _Checker, pair: RollingPair, x: np.ndarray,
+                            pmin: np.ndarray) -> list[tuple[float, float]]:
+    """Intervals [m] of axle position where the wheel overlaps the track (at most 64).
+
+    Their ends are sharpened by bisection; an end at the first or last pose stays there.
+    """
+    L = pair.revolution_length
+    P = len(x)
     bad = pmin < -chk.tol
     intervals: list[tuple[float, float]] = []
-    first = None
-    if np.any(bad):
-        def sharpen(a: np.ndarray, b: np.ndarray) -> np.ndarray:
-            # Bisect every (clear a, overlapping b) pair at once; the result overlaps.
-            for _ in range(32):
-                mid = 0.5 * (a + b)
-                th_mid = np.asarray(pair.wheel_angle(mid), dtype=float)
-                is_bad = chk.evaluate(mid, th_mid, -chk.tol)[0] < -chk.tol
-                b = np.where(is_bad, mid, b)
-                a = np.where(is_bad, a, mid)
-            return b
+    if not np.any(bad):
+        return intervals
 
-        idx = np.flatnonzero(bad)
-        runs = np.split(idx, np.flatnonzero(np.diff(idx) > 1) + 1)
-        # A seated corner is left out at its cusp pose, which splits one overlap into two
-        # runs either side of the cusp: join runs whose gap is shorter than 1e-4 L.
-        joined: list[list[int]] = []
-        for rr in runs:
-            i0, i1 = int(rr[0]), int(rr[-1])
-            if joined and float(x[i0] - x[joined[-1][1]]) < 1e-4 * L:
-                joined[-1][1] = i1
-            else:
-                joined.append([i0, i1])
-        joined = joined[:64]
-        clear_x, bad_x = [], []
-        for i0, i1 in joined:
-            if i0 != 0:
-                clear_x.append(float(x[i0 - 1]))
-                bad_x.append(float(x[i0]))
-            if i1 != P - 1:
-                clear_x.append(float(x[i1 + 1]))
-                bad_x.append(float(x[i1]))
-        ends = iter(sharpen(np.array(clear_x), np.array(bad_x)).tolist() if clear_x else [])
-        for i0, i1 in joined:
-            xa = float(x[i0]) if i0 == 0 else next(ends)
-            xb = float(x[i1]) if i1 == P - 1 else next(ends)
-            intervals.append((xa, xb))
-        first = intervals[0][0]
-    return ClearanceResult(
-        min_m=float(gmin), at_x_m=xbest, wheel_angle_rad=th_best, feature=feature,
-        feature_vertex=vertex, feature_phi_rad=float(np.mod(phi, TWO_PI)),
-        point_m=(float(wx), float(wy)), euclid_m=float(euclid),
-        first_interference_x_m=None if first is None else float(first),
-        interferes=bool(gmin < -chk.tol), tolerance_m=float(chk.tol),
-        intervals_m=tuple(intervals), x_start_m=float(x_start), poses=int(P),
-        rim_points=int(chk.n_points),
-    )
+    def sharpen(a: np.ndarray, b: np.ndarray) -> np.ndarray:
+        # Bisect every (clear a, overlapping b) pair at once; the result overlaps.
+        for _ in range(32):
+            mid = 0.5 * (a + b)
+            th_mid = np.asarray(pair.wheel_angle(mid), dtype=float)
+            is_bad = chk.evaluate(mid, th_mid, -chk.tol)[0] < -chk.tol
+            b = np.where(is_bad, mid, b)
+            a = np.where(is_bad, a, mid)
+        return b
 
+    idx = np.flatnonzero(bad)
+    runs = np.split(idx, np.flatnonzero(np.diff(idx) > 1) + 1)
+    # A seated corner is left out at its cusp pose, which splits one overlap into two
+    # runs either side of the cusp: join runs whose gap is shorter than 1e-4 L.
+    joined: list[list[int]] = []
+    for rr in runs:
+        i0, i1 = int(rr[0]), int(rr[-1])
+        if joined and float(x[i0] - x[joined[-1][1]]) < 1e-4 * L:
+            joined[-1][1] = i1
+        else:
+            joined.append([i0, i1])
+    joined = joined[:64]
+    clear_x, bad_x = [], []
+    for i0, i1 in joined:
+        if i0 != 0:
+            clear_x.append(float(x[i0 - 1]))
+            bad_x.append(float(x[i0]))
+        if i1 != P - 1:
+            clear_x.append(float(x[i1 + 1]))
+            bad_x.append(float(x[i1]))
+    ends = iter(sharpen(np.array(clear_x), np.array(bad_x)).tolist() if clear_x else [])
+    for i0, i1 in joined:
+        xa = float(x[i0]) if i0 == 0 else next(ends)
+        xb = float(x[i1]) if i1 == P - 1 else next(ends)
+        intervals.append((xa, xb))
+    return intervals
 
 def _euclid(track, px: float, py: float, gap: float) -> float:
     """Signed distance [m] from a point to the track (sign of the vertical gap)."""

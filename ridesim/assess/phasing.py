@@ -408,6 +408,98 @@ def _tolerance_cost(pair: RollingPair, vehicle, wheelbase_m: float, tol: float,
     return worst
 
 
+def _seat_sampling(rev_length_m: float, speed_m_s: float | None, samples: int) -> tuple[int, float]:
+    """Chassis positions over a revolution and the seat band [Hz] they resolve.
+
+    At a speed, four samples a cycle of the band's top harmonic, in a power of two (at most
+    ``MAX_SAMPLES``; the band is lowered to what they resolve).
+    """
+    band = SEAT_BAND_HZ
+    if speed_m_s is not None and speed_m_s != 0:
+        rev_s = rev_length_m / abs(float(speed_m_s))
+        need = 2 ** math.ceil(math.log2(max(8.0, 4.0 * SEAT_BAND_HZ * rev_s)))
+        samples = max(samples, min(need, MAX_SAMPLES))
+        band = min(SEAT_BAND_HZ, samples / (4.0 * rev_s))
+    return samples, band
+
+
+def _wheel_angles(pair: RollingPair, coupled: bool, offs: np.ndarray, x: np.ndarray,
+                  deltas: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+    """Each axle's wheel angle [rad] at chassis positions ``x`` [m], and its largest phase error [rad].
+
+    Uncoupled wheels each roll at their own ideal angle; coupled wheels turn together from
+    their assembly angles (relative to the rear wheel), plus their mounting errors ``deltas``.
+    """
+    ideal = np.array([pair.wheel_angle(x + o) for o in offs])
+    if coupled:
+        start = ideal[:, :1] - ideal[:1, :1]  # assembly angles relative to the rear wheel
+        theta = ideal[:1, :] + start + deltas[:, None]
+    else:
+        theta = ideal.copy()
+    err = np.abs((theta - ideal + math.pi) % TWO_PI - math.pi)
+    return theta, err.max(axis=1)
+
+
+def _load_share(offs: np.ndarray, on: np.ndarray) -> np.ndarray:
+    """Static load share of each axle, time-averaged: axles on the beam share it by the lever rule.
+
+    ``offs`` are the axle offsets [m] from the load point, ``on[i, k]`` whether axle ``i``
+    bears on the chassis beam at position ``k``.
+    """
+    share = np.zeros(offs.size)
+    n = on.shape[1]
+    for k in range(n):
+        idx = np.flatnonzero(on[:, k])
+        if idx.size == 1:
+            share[idx[0]] += 1.0
+        elif idx.size >= 2:
+            lo_, hi_ = idx.min(), idx.max()
+            if offs[hi_] > 0 >= offs[lo_] or offs[lo_] < 0 <= offs[hi_]:
+                wgt = (offs[hi_] - 0.0) / (offs[hi_] - offs[lo_])
+                if idx.size == 2:
+                    share[lo_] += wgt
+                    share[hi_] += 1.0 - wgt
+                else:  # several axles on the beam: equal shares (statically indeterminate)
+                    share[idx] += 1.0 / idx.size
+            else:
+                share[idx] += 1.0 / idx.size
+    share /= n
+    return share
+
+
+def _wheelbase_findings(vehicle, P: float, size: float, tol: float, wb_periods: float,
+                        whole_n: int, wb_err: float, cost: dict, tol_cost: dict,
+                        phase_error_max_rad: float) -> list[Finding]:
+    """Findings on a wheelbase off a whole number of periods by more than the tolerance.
+
+    ``cost`` (bounce, pitch range, skid) is the wheelbase's, ``tol_cost`` that of one off by
+    the tolerance ``tol`` [m]; the fix offered is the nearer of the whole numbers of periods
+    on either side that keeps neighbouring wheels clear of each other (a wheelbase of at
+    least 2 r_max, ``size`` [m] being r_max).
+    """
+    findings: list[Finding] = []
+    costly = _exceeds(cost, tol_cost, size)
+    fits = [k for k in sorted({math.floor(wb_periods), math.ceil(wb_periods)},
+                              key=lambda k: abs(k - wb_periods))
+            if k >= 1 and k * P >= 2.0 * size * (1 - 1e-9)]
+    k_fix = fits[0] if fits else max(1, math.ceil(2.0 * size / P - 1e-9))
+    good = f"{k_fix * P:.{_length_digits(tol)}f} m"
+    bounce, skid = cost["bounce_m"], cost["skid_m"]
+    if vehicle.coupled and costly:
+        findings.append(Finding("wheelbase_out_of_phase", {
+            "wheelbase_m": float(vehicle.wheelbase_m), "wheelbase_periods": float(wb_periods),
+            "wheelbase_error_m": wb_err, "whole_periods": int(whole_n), "period_m": float(P),
+            "wheelbase_tolerance_m": tol, "phase_error_max_rad": phase_error_max_rad,
+            "bounce_m": bounce, "pitch_range_rad": float(cost["pitch_range_rad"]),
+            "skid_m": float(skid), "tolerance_cost": dict(tol_cost),
+            "fix_m": float(k_fix * P), "fix_text": good, "fix_periods": int(k_fix)}))
+    if not vehicle.coupled and costly:
+        findings.append(Finding("wheelbase_uncoupled_rates", {
+            "wheelbase_periods": float(wb_periods), "skid_m": float(skid),
+            "fix_m": float(k_fix * P), "fix_text": good, "fix_periods": int(k_fix)}))
+    return findings
+
+
 def cart_phasing(pair: RollingPair, vehicle, *, speed_m_s: float | None = None,
                  phase_offsets_rad=None, samples: int = 720,
                  wheelbase_tolerance_m: float | None = None,
@@ -445,47 +537,16 @@ def cart_phasing(pair: RollingPair, vehicle, *, speed_m_s: float | None = None,
                          f" got {np.shape(phase_offsets_rad)}")
     P, L = pair.track.period, pair.revolution_length
     wb_periods = float(vehicle.wheelbase_m / P) if n_ax > 1 else 0.0
-    band = SEAT_BAND_HZ
-    if speed_m_s is not None and speed_m_s != 0:
-        # Four samples a cycle of the band's top harmonic, in a power of two.
-        rev_s = L / abs(float(speed_m_s))
-        need = 2 ** math.ceil(math.log2(max(8.0, 4.0 * SEAT_BAND_HZ * rev_s)))
-        samples = max(samples, min(need, MAX_SAMPLES))
-        band = min(SEAT_BAND_HZ, samples / (4.0 * rev_s))
+    samples, band = _seat_sampling(L, speed_m_s, samples)
     x = np.linspace(0.0, L, samples, endpoint=False)
-    ideal = np.array([pair.wheel_angle(x + o) for o in offs])
-    if vehicle.coupled:
-        start = ideal[:, :1] - ideal[:1, :1]  # assembly angles relative to the rear wheel
-        theta = ideal[:1, :] + start + deltas[:, None]
-    else:
-        theta = ideal.copy()
-    err = np.abs((theta - ideal + math.pi) % TWO_PI - math.pi)
-    phase_error = err.max(axis=1)
+    theta, phase_error = _wheel_angles(pair, vehicle.coupled, offs, x, deltas)
     heights = np.array([resting_height(pair, x + o, th) for o, th in zip(offs, theta, strict=True)])
     a, b = _rest_beam(offs, heights)
     beam = a[None, :] + b[None, :] * offs[:, None]
     gap = beam - heights
     size = float(pair.depth_range()[1])
     lifted = np.any(gap > 1e-6 * size, axis=1)
-    # Static load share: axles on the beam share the load by the lever rule; time-averaged.
-    share = np.zeros(n_ax)
-    on = gap <= 1e-6 * size
-    for k in range(x.size):
-        idx = np.flatnonzero(on[:, k])
-        if idx.size == 1:
-            share[idx[0]] += 1.0
-        elif idx.size >= 2:
-            lo_, hi_ = idx.min(), idx.max()
-            if offs[hi_] > 0 >= offs[lo_] or offs[lo_] < 0 <= offs[hi_]:
-                wgt = (offs[hi_] - 0.0) / (offs[hi_] - offs[lo_])
-                if idx.size == 2:
-                    share[lo_] += wgt
-                    share[hi_] += 1.0 - wgt
-                else:  # several axles on the beam: equal shares (statically indeterminate)
-                    share[idx] += 1.0 / idx.size
-            else:
-                share[idx] += 1.0 / idx.size
-    share /= x.size
+    share = _load_share(offs, gap <= 1e-6 * size)
     pitch = np.arctan(b)
     sx, sy = vehicle.seat_m
     seat = a + b * sx + sy * np.cos(pitch) - sy
@@ -513,27 +574,10 @@ def cart_phasing(pair: RollingPair, vehicle, *, speed_m_s: float | None = None,
         tol_cost = _tolerance_cost(pair, vehicle, whole_n * P, tol, base_samples,
                                    phase_offsets_rad)
         cost = {"bounce_m": bounce, "pitch_range_rad": float(np.ptp(pitch)), "skid_m": skid}
-        costly = _exceeds(cost, tol_cost, size)
-        # The fix offered: the nearer of the whole numbers of periods on either side that keeps
-        # neighbouring wheels clear of each other (a wheelbase of at least 2 r_max).
-        fits = [k for k in sorted({math.floor(wb_periods), math.ceil(wb_periods)},
-                                  key=lambda k: abs(k - wb_periods))
-                if k >= 1 and k * P >= 2.0 * size * (1 - 1e-9)]
-        k_fix = fits[0] if fits else max(1, math.ceil(2.0 * size / P - 1e-9))
-        good = f"{k_fix * P:.{_length_digits(tol)}f} m"
-        if vehicle.coupled and costly:
-            out_of_phase = True
-            findings.append(Finding("wheelbase_out_of_phase", {
-                "wheelbase_m": float(vehicle.wheelbase_m), "wheelbase_periods": float(wb_periods),
-                "wheelbase_error_m": wb_err, "whole_periods": int(whole_n), "period_m": float(P),
-                "wheelbase_tolerance_m": tol, "phase_error_max_rad": float(phase_error.max()),
-                "bounce_m": bounce, "pitch_range_rad": float(cost["pitch_range_rad"]),
-                "skid_m": float(skid), "tolerance_cost": dict(tol_cost),
-                "fix_m": float(k_fix * P), "fix_text": good, "fix_periods": int(k_fix)}))
-        if not vehicle.coupled and costly:
-            findings.append(Finding("wheelbase_uncoupled_rates", {
-                "wheelbase_periods": float(wb_periods), "skid_m": float(skid),
-                "fix_m": float(k_fix * P), "fix_text": good, "fix_periods": int(k_fix)}))
+        wb_found = _wheelbase_findings(vehicle, P, size, tol, wb_periods, whole_n, wb_err, cost,
+                                       tol_cost, float(phase_error.max()))
+        out_of_phase = any(f.code == "wheelbase_out_of_phase" for f in wb_found)
+        findings += wb_found
     if n_ax > 1 and np.any(lifted):
         findings.append(Finding("axles_lift", {"axles": [int(i) for i in np.flatnonzero(lifted)]}))
     if vehicle.coupled and np.any(deltas):

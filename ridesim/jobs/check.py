@@ -375,10 +375,40 @@ def check_scenario(sc: Scenario) -> CheckResult | HubCheckResult:
     if sc.drive.accel_m_s2 > 0:
         acc = analyze_cycle(pair, vehicle=sc.vehicle, surface=sc.surface, wheel_mass=mp,
                             speed_m_s=v, accel_m_s2=sc.drive.accel_m_s2)
-    found: list[Finding] = []
     L = pair.revolution_length
+    found = _clearance_findings(pair, sc, cl, seats)
+    found += _friction_findings(pair, steady, acc, avail)
+    # several axles: phasing, pitch and seat bounce (quasi-static). Coupled axles must see
+    # the same track phase: a wheelbase is judged by the bounce, pitch and skid it costs
+    # against a wheelbase off by the build tolerance (vehicle.wheelbase_tolerance_m).
+    veh = sc.vehicle
+    cart = None
+    if veh.axles > 1:
+        cart = cart_phasing(pair, veh, speed_m_s=v, phase_offsets_rad=veh.phase_offsets_rad)
+        found += list(cart.findings)
+    shaft = None
+    if sc.drive.mode == "shaft_speed" and sc.drive.shaft_speed_rad_s:
+        shaft, surge_found = _shaft_speed_drive(pair, sc, mp, steady, avail,
+                                                float(sc.drive.shaft_speed_rad_s))
+        found += surge_found
+    phases = _phases(pair, sc, mp, steady)
+    found += _drive_findings(sc, steady, phases)
+    return CheckResult(
+        name=sc.name, findings=found, cautions=cautions,
+        speed_m_s=v, clearance=cl, seats=seats, steady=steady, accelerating=acc,
+        friction_available=avail,
+        summary={"period_m": float(pair.track.period), "revolution_length_m": float(L),
+                 "lobes": int(pair.lobes), "depth_min_m": float(pair.depth_range()[0]),
+                 "depth_max_m": float(pair.depth_range()[1]),
+                 "wheel_mass_kg": float(mp.mass_kg), "wheel_inertia_kg_m2": float(mp.inertia_kg_m2)},
+        cart=None if cart is None else {"wheelbase_m": float(veh.wheelbase_m), **cart.to_dict()},
+        shaft_drive=shaft, phases=phases,
+    )
 
-    # -- clearance
+
+def _clearance_findings(pair, sc: Scenario, cl: ClearanceResult, seats: list[CuspSeat]) -> list[Finding]:
+    """Findings on clearance: interference, corners tangent at a cusp, the exact-model caveats."""
+    found: list[Finding] = []
     worst_seat = min(seats, key=lambda s: s.approach_margin_rad) if seats else None
     if cl.interferes:
         narrow = worst_seat is not None and worst_seat.approach_margin_rad < -1e-6
@@ -395,8 +425,14 @@ def check_scenario(sc: Scenario) -> CheckResult | HubCheckResult:
     spec = sc.wheel
     if spec is not None and spec.corner_radius_m > 0 and not spec.fit_track_to_corners:
         found.append(Finding("clearance_sharp_corners", {"corner_radius_m": float(spec.corner_radius_m)}))
+    return found
 
-    # -- friction and lift-off
+
+def _friction_findings(pair, steady: AnalyticResult, acc: AnalyticResult | None,
+                       avail: float) -> list[Finding]:
+    """Findings on friction and lift-off, steady or accelerating, whichever needs more grip."""
+    found: list[Finding] = []
+    v = steady.speed_m_s
     worst = steady if acc is None or not (acc.mu_peak > steady.mu_peak) else acc
     mu = worst.mu_peak
     lift = steady.lift_off_speed_m_s
@@ -414,36 +450,35 @@ def check_scenario(sc: Scenario) -> CheckResult | HubCheckResult:
         found.append(Finding("friction_margin_thin", {"required": float(mu), "available": avail}))
     if lift is not None and not lifted_at_speed and lift < 2.0 * v:
         found.append(Finding("lift_off_near", {"lift_off_speed_m_s": float(lift), "speed_m_s": float(v)}))
+    return found
 
-    # -- several axles: phasing, pitch and seat bounce (quasi-static). Coupled axles must see
-    # the same track phase: a wheelbase is judged by the bounce, pitch and skid it costs
-    # against a wheelbase off by the build tolerance (vehicle.wheelbase_tolerance_m).
-    veh = sc.vehicle
-    cart = None
-    if veh.axles > 1:
-        cart = cart_phasing(pair, veh, speed_m_s=v, phase_offsets_rad=veh.phase_offsets_rad)
-        found += list(cart.findings)
 
-    # -- a constant shaft speed makes the cart surge
-    shaft = None
-    if sc.drive.mode == "shaft_speed" and sc.drive.shaft_speed_rad_s:
-        shaft = shaft_speed_cycle(pair, sc, mp, float(sc.drive.shaft_speed_rad_s))
-        surge = analyze_cycle(pair, vehicle=sc.vehicle, surface=sc.surface, wheel_mass=mp,
-                              speed_m_s=shaft["speed_max_m_s"], accel_m_s2=shaft["accel_peak_m_s2"])
-        shaft["mu_peak_bound"] = float(max(surge.mu_peak, steady.mu_peak))
-        if shaft["mu_peak_bound"] > avail:
-            found.append(Finding("shaft_surge_friction", {
-                "required_bound": shaft["mu_peak_bound"], "available": avail,
-                "required_steady": float(steady.mu_peak)}))
-        found.append(Finding("shaft_surge", {
-            "shaft_speed_rad_s": float(sc.drive.shaft_speed_rad_s),
-            **{k: float(shaft[k]) for k in ("speed_min_m_s", "speed_max_m_s", "accel_peak_m_s2",
-                                            "peak_Nm", "rms_Nm")}}))
+def _shaft_speed_drive(pair, sc: Scenario, mp, steady: AnalyticResult, avail: float,
+                       shaft_speed_rad_s: float) -> tuple[dict, list[Finding]]:
+    """A constant shaft speed makes the cart surge: the surge figures and their findings.
 
-    # -- torque by phase (per motor)
-    phases = _phases(pair, sc, mp, steady)
+    Returns the shaft-speed cycle's figures (with ``mu_peak_bound``, the friction needed at
+    the surge's top speed and peak acceleration, or steady if more) and the findings.
+    """
+    found: list[Finding] = []
+    shaft = shaft_speed_cycle(pair, sc, mp, shaft_speed_rad_s)
+    surge = analyze_cycle(pair, vehicle=sc.vehicle, surface=sc.surface, wheel_mass=mp,
+                          speed_m_s=shaft["speed_max_m_s"], accel_m_s2=shaft["accel_peak_m_s2"])
+    shaft["mu_peak_bound"] = float(max(surge.mu_peak, steady.mu_peak))
+    if shaft["mu_peak_bound"] > avail:
+        found.append(Finding("shaft_surge_friction", {
+            "required_bound": shaft["mu_peak_bound"], "available": avail,
+            "required_steady": float(steady.mu_peak)}))
+    found.append(Finding("shaft_surge", {
+        "shaft_speed_rad_s": shaft_speed_rad_s,
+        **{k: float(shaft[k]) for k in ("speed_min_m_s", "speed_max_m_s", "accel_peak_m_s2",
+                                        "peak_Nm", "rms_Nm")}}))
+    return shaft, found
 
-    # -- drive
+
+def _drive_findings(sc: Scenario, steady: AnalyticResult, phases: dict) -> list[Finding]:
+    """Findings on the drive: the torque limit against the peak of every phase, a torque drive's balance."""
+    found: list[Finding] = []
     peak_T = max(p["peak_Nm"] for p in phases.values() if p.get("peak_Nm") is not None)
     if peak_T > sc.drive.max_torque_Nm:
         top = max((k for k in phases if phases[k].get("peak_Nm") is not None),
@@ -454,18 +489,7 @@ def check_scenario(sc: Scenario) -> CheckResult | HubCheckResult:
     if sc.drive.mode == "torque" and sc.drive.torque_Nm is not None:
         found.append(Finding("torque_drive_balance", {
             "balance_Nm": float(steady.constant_torque_Nm), "torque_Nm": float(sc.drive.torque_Nm)}))
-
-    return CheckResult(
-        name=sc.name, findings=found, cautions=cautions,
-        speed_m_s=v, clearance=cl, seats=seats, steady=steady, accelerating=acc,
-        friction_available=avail,
-        summary={"period_m": float(pair.track.period), "revolution_length_m": float(L),
-                 "lobes": int(pair.lobes), "depth_min_m": float(pair.depth_range()[0]),
-                 "depth_max_m": float(pair.depth_range()[1]),
-                 "wheel_mass_kg": float(mp.mass_kg), "wheel_inertia_kg_m2": float(mp.inertia_kg_m2)},
-        cart=None if cart is None else {"wheelbase_m": float(veh.wheelbase_m), **cart.to_dict()},
-        shaft_drive=shaft, phases=phases,
-    )
+    return found
 
 
 def _phases(pair, sc: Scenario, mp, steady: AnalyticResult) -> dict:

@@ -180,18 +180,7 @@ def load_sweep(path: str | Path) -> SweepPlan:
         For an unknown key, an empty range, random draws without a seed, or a bad base.
     """
     path = Path(path)
-    if not path.is_file():
-        raise _fail(f"sweep file not found: {path}")
-    try:
-        data = tomllib.loads(path.read_text(encoding="utf-8"))
-    except tomllib.TOMLDecodeError as exc:
-        raise _fail(f"{path}: TOML syntax error: {' '.join(str(exc).split())}") from None
-    except UnicodeDecodeError as exc:
-        raise _fail(f"{path}: not UTF-8 text ({exc.reason} at byte {exc.start}); save the file"
-                    " as UTF-8") from None
-    except RecursionError:
-        raise _fail(f"{path}: tables or lists nested too deep to read") from None
-    check_nesting(data, str(path))
+    data = _read_toml(path)
     for k in data:
         if k not in _TOP:
             raise _fail(f"unknown sweep key {k!r}; use {', '.join(_TOP)}")
@@ -210,12 +199,59 @@ def load_sweep(path: str | Path) -> SweepPlan:
     if not isinstance(vary, dict) or not isinstance(rand, dict):
         raise _fail("[vary] and [random] must be tables of dotted keys")
     grid_keys = list(vary)
+    grid_vals = _grid_values(vary, known)
+    draws, seed, n_rand = _random_draws(rand, vary, known)
+    reps = n_rand if draws else 1
+    n_cases = reps * math.prod(len(v) for v in grid_vals)
+    if n_cases > MAX_CASES:
+        raise _fail(f"the sweep has {n_cases} cases, more than the limit of {MAX_CASES};"
+                    " vary fewer values or lower random.cases")
+    cases = _make_cases(grid_keys, grid_vals, draws, seed, reps, base, run)
+    # Every case's values are checked against the key table before any case runs: a sweep
+    # none of whose cases is valid is refused; invalid cases among valid ones are named now
+    # and recorded as failed rows when run.
+    bad = _invalid_cases(base, cases)
+    if bad and len(bad) == len(cases):
+        raise _fail(f"no case of the sweep is a valid scenario; {bad[0]}")
+    notes = () if not bad else (f"{len(bad)} of {len(cases)} cases are not valid scenarios and"
+                                f" will be recorded as failed rows; {bad[0]}",)
+    return SweepPlan(base=base, run=run, columns=tuple(grid_keys + list(draws)),
+                     cases=tuple(cases), source=str(path), warnings=notes)
+
+
+def _read_toml(path: Path) -> dict:
+    """The sweep file's TOML as a dict; a missing, unreadable or too deeply nested file is refused."""
+    if not path.is_file():
+        raise _fail(f"sweep file not found: {path}")
+    try:
+        data = tomllib.loads(path.read_text(encoding="utf-8"))
+    except tomllib.TOMLDecodeError as exc:
+        raise _fail(f"{path}: TOML syntax error: {' '.join(str(exc).split())}") from None
+    except UnicodeDecodeError as exc:
+        raise _fail(f"{path}: not UTF-8 text ({exc.reason} at byte {exc.start}); save the file"
+                    " as UTF-8") from None
+    except RecursionError:
+        raise _fail(f"{path}: tables or lists nested too deep to read") from None
+    check_nesting(data, str(path))
+    return data
+
+
+def _grid_values(vary: dict, known) -> list[list]:
+    """The values of each ``[vary]`` key, in file order; an unknown key is refused."""
     grid_vals = []
-    for k in grid_keys:
+    for k in vary:
         if k not in known:
             raise _fail(f'unknown parameter vary."{k}"; use a dotted scenario key such as'
                         ' "wheel.sides" or "surface.friction"')
         grid_vals.append(_values_for(k, vary[k]))
+    return grid_vals
+
+
+def _random_draws(rand: dict, vary: dict, known) -> tuple[dict, Any, Any]:
+    """The ``[random]`` table's draws, seed and number of cases, validated.
+
+    ``rand`` is a copy of the table: ``seed`` and ``cases`` are popped from it.
+    """
     draws = {}
     seed = rand.pop("seed", None)
     n_rand = rand.pop("cases", None)
@@ -233,11 +269,15 @@ def load_sweep(path: str | Path) -> SweepPlan:
     elif n_rand is not None:
         raise _fail("random.cases is given but no key is drawn; add e.g."
                     ' "surface.friction" = { uniform = [0.5, 0.7] }')
-    reps = n_rand if draws else 1
-    n_cases = reps * math.prod(len(v) for v in grid_vals)
-    if n_cases > MAX_CASES:
-        raise _fail(f"the sweep has {n_cases} cases, more than the limit of {MAX_CASES};"
-                    " vary fewer values or lower random.cases")
+    return draws, seed, n_rand
+
+
+def _make_cases(grid_keys: list[str], grid_vals: list[list], draws: dict, seed, reps: int,
+                base: Scenario, run: str) -> list[Case]:
+    """Every case: the grid in file order, last key fastest, then the draws of each grid case.
+
+    Each case's draws come from its own generator seeded by ``(seed, case number)``.
+    """
     cases = []
     index = 0
     for combo in itertools.product(*grid_vals) if grid_keys else [()]:
@@ -250,9 +290,11 @@ def load_sweep(path: str | Path) -> SweepPlan:
                     values[k] = v.tolist() if np.ndim(v) else float(v)
             cases.append(Case(index=index, values=values, key=_fingerprint(values, base, run)))
             index += 1
-    # Every case's values are checked against the key table before any case runs: a sweep
-    # none of whose cases is valid is refused; invalid cases among valid ones are named now
-    # and recorded as failed rows when run.
+    return cases
+
+
+def _invalid_cases(base: Scenario, cases: list[Case]) -> list[str]:
+    """One line for each case whose values do not make a valid scenario."""
     bad = []
     for case in cases:
         try:
@@ -260,9 +302,4 @@ def load_sweep(path: str | Path) -> SweepPlan:
         except ScenarioError as exc:
             shown = ", ".join(f"{k} = {v!r}" for k, v in case.values.items())
             bad.append(f"case {case.index} ({shown}) is not a valid scenario: {exc}")
-    if bad and len(bad) == len(cases):
-        raise _fail(f"no case of the sweep is a valid scenario; {bad[0]}")
-    notes = () if not bad else (f"{len(bad)} of {len(cases)} cases are not valid scenarios and"
-                                f" will be recorded as failed rows; {bad[0]}",)
-    return SweepPlan(base=base, run=run, columns=tuple(grid_keys + list(draws)),
-                     cases=tuple(cases), source=str(path), warnings=notes)
+    return bad
