@@ -184,6 +184,7 @@ def draw_all(calls: list, *, workers: int | None = None, meanwhile: tuple | None
         if meanwhile is not None:
             items.append(meanwhile[0](*meanwhile[1], **meanwhile[2]))
         return items
+    import gc
     import multiprocessing as mp
     from concurrent.futures import ProcessPoolExecutor
 
@@ -196,6 +197,9 @@ def draw_all(calls: list, *, workers: int | None = None, meanwhile: tuple | None
 
     global _CALLS
     _CALLS = list(calls)
+    # Objects that exist at the fork are left out of the children's garbage collection, so
+    # that it does not touch (and so copy) every page of this process in each of them.
+    gc.freeze()
     try:
         with ProcessPoolExecutor(max_workers=n, mp_context=mp.get_context("fork")) as pool:
             futures = {i: pool.submit(_draw_one, i) for i in todo}
@@ -206,6 +210,7 @@ def draw_all(calls: list, *, workers: int | None = None, meanwhile: tuple | None
                 for message, category, filename, lineno in caught:
                     warnings.warn_explicit(message, category, filename, lineno)
     finally:
+        gc.unfreeze()
         _CALLS = []
     if meanwhile is not None:
         items.append(last)
