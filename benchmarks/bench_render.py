@@ -2,8 +2,9 @@
 
 Three paths are timed. *one by one* is the code before the pictures were drawn side by
 side: the same drawing, each still picture after the other in the calling process.
-*concurrent* is today's: the still pictures drawn in forked processes, one per core, the
-clip meanwhile in the caller (wall time gains; CPU time, children included, does not).
+*concurrent* draws the still pictures in forked processes, one per core, the clip
+meanwhile in the caller (what ``render``/``report`` do on cores the load average says are
+idle; on a busy machine they draw one by one).
 *previous* is the path before that, kept here as a copy of the two functions it differed in:
 ``_save`` wrote every PNG with ``Figure.savefig`` (matplotlib's RGBA PNG at
 Pillow's default zlib level 6) and the geometry plots filled polygons with
@@ -72,16 +73,21 @@ def one_by_one() -> bool:
     return False
 
 
+def every_core() -> int:
+    """Draw on every core, whatever the load (the job's default takes only idle ones)."""
+    return os.cpu_count() or 1
+
+
 class Path_:
     """Switch ``ridesim.render.plots`` and ``ridesim.jobs.render`` between the code paths."""
 
-    concurrent = (plots._save, plots._fill, render_job._can_fork)
-    serial = (plots._save, plots._fill, one_by_one)
-    previous = (previous_save, previous_fill, one_by_one)
+    concurrent = (plots._save, plots._fill, render_job._can_fork, every_core)
+    serial = (plots._save, plots._fill, one_by_one, render_job.idle_cores)
+    previous = (previous_save, previous_fill, one_by_one, render_job.idle_cores)
 
     @staticmethod
     def use(which):
-        plots._save, plots._fill, render_job._can_fork = which
+        plots._save, plots._fill, render_job._can_fork, render_job.idle_cores = which
 
 
 def cpu_s() -> float:
@@ -119,6 +125,8 @@ def main() -> int:
     sc = load_scenario(args.scenario)
     print(f"machine: {platform.machine()}, {os.cpu_count()} cores, Python {platform.python_version()},"
           f" load average {os.getloadavg()[0]:.1f}")
+    print(f"idle cores by the load average (what render/report would use): {render_job.idle_cores()};"
+          f" the concurrent path below uses all {os.cpu_count()}")
     print(f"scenario: {sc.name}; {args.repeat} alternated repeats; medians")
     jobs = {
         "render (5 plots + 4 s clip)": ("render", lambda out: render_scenario(sc, out)),

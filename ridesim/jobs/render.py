@@ -49,8 +49,8 @@ def render_scenario(sc, out_dir: str | Path, *, svg: bool = False, simulate: boo
     sim_result : SimResult, optional
         A simulation already run for this scenario (reused instead of running again).
     workers : int, optional
-        Processes drawing the still pictures side by side (default: one per core; 1 draws
-        them one by one in this process). The pictures are the same bytes either way.
+        Processes drawing the still pictures side by side (default: one per idle core; 1
+        draws them one by one in this process). The pictures are the same bytes either way.
 
     Returns
     -------
@@ -75,7 +75,7 @@ def render_scenario(sc, out_dir: str | Path, *, svg: bool = False, simulate: boo
     sc = resolve_wheelbase(sc, pair)
     mp = wheel_mass(sc, pair.wheel)
     # The still pictures are gathered as calls and drawn together at the end (side by side
-    # on the machine's cores); the clip is drawn here meanwhile.
+    # on the machine's idle cores); the clip is drawn here meanwhile.
     items: list = list(solver_plot_calls(pair, out, mass=mp, svg=svg))
     steady = analyze_cycle(pair, vehicle=sc.vehicle, surface=sc.surface, wheel_mass=mp,
                            drive=sc.drive, accel_m_s2=0.0)
@@ -151,6 +151,21 @@ def _can_fork() -> bool:
             and not mp.current_process().daemon)
 
 
+def idle_cores() -> int:
+    """Cores the 1-minute load average leaves idle (at least 1).
+
+    On a machine already busy the drawing processes would only queue behind the other
+    work and add their start-up; measured on a 2-core machine at a load of 2 to 5, drawing
+    side by side was 10-25 % slower in wall time than one by one (benchmarks/bench_render.py).
+    """
+    cores = os.cpu_count() or 1
+    try:
+        load = os.getloadavg()[0]
+    except (AttributeError, OSError):
+        return 1
+    return max(1, min(cores, int(cores - load + 0.5)))
+
+
 def draw_all(calls: list, *, workers: int | None = None, meanwhile: tuple | None = None) -> list:
     """Run picture calls, side by side in forked processes where that is possible and pays.
 
@@ -164,7 +179,8 @@ def draw_all(calls: list, *, workers: int | None = None, meanwhile: tuple | None
         ``(fn, args, kw)`` per picture, each returning its ``(path, caption)`` item, or a
         ready item (a ``(path, caption)`` pair) kept as it is.
     workers : int, optional
-        Drawing processes (default: the number of cores); 1 draws in this process.
+        Drawing processes (default: the idle cores, :func:`idle_cores`); 1 draws in this
+        process.
     meanwhile : (fn, args, kw), optional
         A call run in this process while the others draw (the clip, which reports
         progress); its item is appended last.
@@ -175,7 +191,7 @@ def draw_all(calls: list, *, workers: int | None = None, meanwhile: tuple | None
         The items, in the order of ``calls`` (then ``meanwhile``'s).
     """
     todo = [i for i, c in enumerate(calls) if len(c) == 3 and callable(c[0])]
-    n = min(len(todo), (os.cpu_count() or 1) if workers is None else max(1, int(workers)))
+    n = min(len(todo), idle_cores() if workers is None else max(1, int(workers)))
     items = list(calls)
     if n < 2 or not _can_fork():
         for i in todo:
