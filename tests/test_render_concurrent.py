@@ -65,3 +65,21 @@ def test_draw_all_raises_a_picture_error_and_draws_serially_beside_threads():
         th.start()
         th.join()
     assert out == [(Path("p1.png"), "caption 1")] * 2
+
+
+@pytest.mark.parametrize("load, cpu_s, expect", [
+    (0.1, 0.0, 2),    # quiet machine: both cores
+    (4.8, 0.0, 1),    # busy with other work: one by one
+    (1.0, 1e4, 2),    # the load is this long-running process itself (its share ~1)
+    (1.0, 0.0, 1),    # the load is another process: one core left, drawn here
+])
+def test_idle_cores_follow_the_load_average_less_this_process(monkeypatch, load, cpu_s, expect):
+    import os
+    import time
+
+    monkeypatch.setattr(os, "cpu_count", lambda: 2)
+    monkeypatch.setattr(os, "getloadavg", lambda: (load, load, load))
+    monkeypatch.setattr(time, "process_time", lambda: cpu_s)
+    from ridesim.jobs.render import idle_cores
+
+    assert idle_cores() == expect

@@ -152,18 +152,25 @@ def _can_fork() -> bool:
 
 
 def idle_cores() -> int:
-    """Cores the 1-minute load average leaves idle (at least 1).
+    """Cores the 1-minute load average leaves idle, this process's own share taken off (at least 1).
 
     On a machine already busy the drawing processes would only queue behind the other
-    work and add their start-up; measured on a 2-core machine at a load of 2 to 5, drawing
-    side by side was 10-25 % slower in wall time than one by one (benchmarks/bench_render.py).
+    work and add their start-up: on 2 cores at a load of 1.6-4.8 from other work, drawing
+    side by side was 15-25 % slower in wall time than one by one, and 1.5-1.7x faster on
+    a quiet machine (benchmarks/bench_render.py). This process's own share of the load is
+    estimated from its CPU time so far (the load average is an exponential average over
+    60 s), so that a long-running caller does not count itself as other work.
     """
+    import math
+    import time
+
     cores = os.cpu_count() or 1
     try:
         load = os.getloadavg()[0]
     except (AttributeError, OSError):
         return 1
-    return max(1, min(cores, int(cores - load + 0.5)))
+    own = 1.0 - math.exp(-time.process_time() / 60.0)
+    return max(1, min(cores, int(cores - max(0.0, load - own) + 0.5)))
 
 
 def draw_all(calls: list, *, workers: int | None = None, meanwhile: tuple | None = None) -> list:
