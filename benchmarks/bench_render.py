@@ -1,15 +1,21 @@
-"""``render`` and ``report`` speed: the current pictures against the previous code path, one run.
+"""``render`` and ``report`` speed: the current pictures against the earlier code paths, one run.
 
-The previous path is kept here as a copy of the two functions it differed in:
+Three paths are timed. *one by one* is the code before the pictures were drawn side by
+side: the same drawing, each still picture after the other in the calling process.
+*concurrent* draws the still pictures in forked processes, one per core, the clip
+meanwhile in the caller (what ``render``/``report`` do on cores the load average says are
+idle; on a busy machine they draw one by one).
+*previous* is the path before that, kept here as a copy of the two functions it differed in:
 ``_save`` wrote every PNG with ``Figure.savefig`` (matplotlib's RGBA PNG at
 Pillow's default zlib level 6) and the geometry plots filled polygons with
 ``Axes.fill`` (which walks each polygon segment by segment in Python to update
-the data limits). Everything else (figures, layout, the clip, the simulation of
-the report) is shared, so the ratio isolates what changed. The two paths are
-timed in paired, alternated repeats (previous, current, previous, current, ...)
-so that load on a shared machine hits both alike; each figure is the median,
-in process CPU seconds and in wall seconds. The PNGs of both paths are compared
-pixel by pixel.
+the data limits); it also draws one by one. Everything else (figures, layout,
+the clip, the simulation of the report) is shared, so the ratios isolate what
+changed. The paths are timed in alternated repeats (previous, one by one,
+concurrent, previous, ...) so that load on a shared machine hits all alike; each
+figure is the median, in CPU seconds (this process and its drawing processes)
+and in wall seconds. The PNGs of every path are compared byte by byte and pixel
+by pixel with the concurrent path's.
 
 Usage: python3 benchmarks/bench_render.py [--repeat N] [--scenario FILE]
 """
@@ -20,6 +26,7 @@ import argparse
 import io
 import os
 import platform
+import resource
 import statistics
 import sys
 import tempfile
@@ -30,6 +37,7 @@ import numpy as np
 
 sys.path.insert(0, str(Path(__file__).resolve().parents[1]))
 
+from ridesim.jobs import render as render_job  # noqa: E402
 from ridesim.jobs.render import render_scenario  # noqa: E402
 from ridesim.jobs.report import write_report  # noqa: E402
 from ridesim.render import plots  # noqa: E402
@@ -60,73 +68,100 @@ def previous_fill(ax, x, y, **kw):
     return ax.fill(x, y, **kw)[0]
 
 
-class Path_:
-    """Switch ``ridesim.render.plots`` between the previous and the current code path."""
+def one_by_one() -> bool:
+    """Never fork: ``draw_all`` then draws each picture in the calling process."""
+    return False
 
-    current = (plots._save, plots._fill)
-    previous = (previous_save, previous_fill)
+
+def every_core() -> int:
+    """Draw on every core, whatever the load (the job's default takes only idle ones)."""
+    return os.cpu_count() or 1
+
+
+class Path_:
+    """Switch ``ridesim.render.plots`` and ``ridesim.jobs.render`` between the code paths."""
+
+    concurrent = (plots._save, plots._fill, render_job._can_fork, every_core)
+    serial = (plots._save, plots._fill, one_by_one, render_job.idle_cores)
+    previous = (previous_save, previous_fill, one_by_one, render_job.idle_cores)
 
     @staticmethod
     def use(which):
-        plots._save, plots._fill = which
+        plots._save, plots._fill, render_job._can_fork, render_job.idle_cores = which
+
+
+def cpu_s() -> float:
+    """CPU seconds of this process and of its finished children (the drawing processes)."""
+    ch = resource.getrusage(resource.RUSAGE_CHILDREN)
+    return time.process_time() + ch.ru_utime + ch.ru_stime
 
 
 def timed(fn):
-    c0, w0 = time.process_time(), time.perf_counter()
+    c0, w0 = cpu_s(), time.perf_counter()
     fn()
-    return time.process_time() - c0, time.perf_counter() - w0
+    return cpu_s() - c0, time.perf_counter() - w0
 
 
-def compare_pngs(a: Path, b: Path) -> tuple[int, int]:
-    """Number of PNGs compared and how many differ in any pixel (RGB)."""
+def compare_pngs(a: Path, b: Path) -> tuple[int, int, int]:
+    """Number of PNGs compared, how many differ in any byte, and in any pixel (RGB)."""
     from PIL import Image
 
-    n = diff = 0
+    n = nbytes = npix = 0
     for pa in sorted(a.rglob("*.png")):
         pb = b / pa.relative_to(a)
         ia = np.asarray(Image.open(pa).convert("RGB"))
         ib = np.asarray(Image.open(pb).convert("RGB"))
         n += 1
-        diff += int(ia.shape != ib.shape or bool(np.any(ia != ib)))
-    return n, diff
+        nbytes += int(pa.read_bytes() != pb.read_bytes())
+        npix += int(ia.shape != ib.shape or bool(np.any(ia != ib)))
+    return n, nbytes, npix
 
 
 def main() -> int:
     ap = argparse.ArgumentParser(description=__doc__.splitlines()[0])
-    ap.add_argument("--repeat", type=int, default=5, help="paired repeats per command (median reported)")
+    ap.add_argument("--repeat", type=int, default=5, help="alternated repeats per command (median reported)")
     ap.add_argument("--scenario", default=str(ROOT / "scenarios" / "hexagon_trolley.toml"))
     args = ap.parse_args()
     sc = load_scenario(args.scenario)
     print(f"machine: {platform.machine()}, {os.cpu_count()} cores, Python {platform.python_version()},"
           f" load average {os.getloadavg()[0]:.1f}")
-    print(f"scenario: {sc.name}; {args.repeat} paired repeats, alternated; medians")
+    print(f"idle cores by the load average (what render/report would use): {render_job.idle_cores()};"
+          f" the concurrent path below uses all {os.cpu_count()}")
+    print(f"scenario: {sc.name}; {args.repeat} alternated repeats; medians")
     jobs = {
         "render (5 plots + 4 s clip)": ("render", lambda out: render_scenario(sc, out)),
         "report (check, motor, simulation, 9 plots, clip)": ("report", lambda out: write_report(sc, out)),
     }
+    paths = {"previous": Path_.previous, "one by one": Path_.serial, "concurrent": Path_.concurrent}
     with tempfile.TemporaryDirectory() as tmp:
         tmp = Path(tmp)
-        for which in (Path_.previous, Path_.current):  # warm imports and caches (not timed)
+        for which in paths.values():  # warm imports and caches (not timed)
             Path_.use(which)
             render_scenario(sc, tmp / "warm", clip_s=0.2)
         print()
-        print(f"{'command':<50}{'previous':>18}{'current':>18}{'speed-up':>16}")
-        print(f"{'':<50}{'CPU / wall [s]':>18}{'CPU / wall [s]':>18}{'CPU / wall':>16}")
+        print(f"{'command':<50}" + "".join(f"{k:>16}" for k in paths)
+              + f"{'concurrent vs':>18}{'concurrent vs':>18}")
+        print(f"{'':<50}" + f"{'CPU / wall [s]':>16}" * len(paths)
+              + f"{'previous':>18}{'one by one':>18}")
         for label, (short, job) in jobs.items():
-            t = {"previous": [], "current": []}
+            t: dict[str, list[tuple[float, float]]] = {k: [] for k in paths}
             for r in range(args.repeat):
-                for key, which in (("previous", Path_.previous), ("current", Path_.current)):
+                for key, which in paths.items():
                     Path_.use(which)
                     out = tmp / short / f"{key}{r}"
                     t[key].append(timed(lambda job=job, out=out: job(out)))
             med = {k: (statistics.median(c for c, _ in v), statistics.median(w for _, w in v))
                    for k, v in t.items()}
-            (pc, pw), (cc, cw) = med["previous"], med["current"]
-            print(f"{label:<50}{pc:>8.2f} / {pw:<7.2f}{cc:>10.2f} / {cw:<7.2f}"
-                  f"{pc / cc:>8.2f}x / {pw / cw:.2f}x")
-            n, diff = compare_pngs(tmp / short / "previous0", tmp / short / "current0")
-            print(f"{'':<50}PNGs compared: {n}, differing in any pixel: {diff}")
-        Path_.use(Path_.current)
+            cc, cw = med["concurrent"]
+            row = "".join(f"{c:>8.2f} / {w:<5.2f}" for c, w in med.values())
+            ratios = "".join(f"{med[k][0] / cc:>8.2f}x / {med[k][1] / cw:.2f}x"
+                             for k in ("previous", "one by one"))
+            print(f"{label:<50}{row}{ratios}  (CPU / wall)")
+            for key in ("previous", "one by one"):
+                n, nbytes, npix = compare_pngs(tmp / short / f"{key}0", tmp / short / "concurrent0")
+                print(f"{'':<50}PNGs {key} vs concurrent: {n} compared, {nbytes} differ in bytes,"
+                      f" {npix} in pixels")
+        Path_.use(Path_.concurrent)
     return 0
 
 

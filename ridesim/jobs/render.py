@@ -6,6 +6,9 @@ clip then replays the simulated motion, else it shows the ideal kinematics.
 
 from __future__ import annotations
 
+import os
+import threading
+import warnings
 from pathlib import Path
 
 import numpy as np
@@ -18,7 +21,7 @@ __all__ = ["render_scenario"]
 def render_scenario(sc, out_dir: str | Path, *, svg: bool = False, simulate: bool = False,
                     clip: bool = True, clip_s: float = 4.0, fps: int = 25,
                     size: tuple[int, int] = (640, 360), follow: bool = True,
-                    progress=None, sim_result=None) -> list[tuple[Path, str]]:
+                    progress=None, sim_result=None, workers: int | None = None) -> list[tuple[Path, str]]:
     """Write a scenario's pictures into ``out_dir`` with a captioned ``index.md``.
 
     Parameters
@@ -45,6 +48,9 @@ def render_scenario(sc, out_dir: str | Path, *, svg: bool = False, simulate: boo
         ``progress(fraction)`` while the clip is drawn.
     sim_result : SimResult, optional
         A simulation already run for this scenario (reused instead of running again).
+    workers : int, optional
+        Processes drawing the still pictures side by side (default: one per idle core; 1
+        draws them one by one in this process). The pictures are the same bytes either way.
 
     Returns
     -------
@@ -55,7 +61,7 @@ def render_scenario(sc, out_dir: str | Path, *, svg: bool = False, simulate: boo
     from ridesim.assess.friction import friction_demand
     from ridesim.model.vehicle import axle_offsets_m
     from ridesim.render.clip import render_clip
-    from ridesim.render.plots import plot_series, render_solver_plots, write_index
+    from ridesim.render.plots import plot_series, solver_plot_calls, write_index
     from ridesim.scenario.build import resolve_wheelbase, solve_track_scenario, wheel_mass
 
     out = Path(out_dir)
@@ -68,7 +74,9 @@ def render_scenario(sc, out_dir: str | Path, *, svg: bool = False, simulate: boo
     pair = solve_track_scenario(sc)
     sc = resolve_wheelbase(sc, pair)
     mp = wheel_mass(sc, pair.wheel)
-    items = list(render_solver_plots(pair, out, mass=mp, svg=svg))
+    # The still pictures are gathered as calls and drawn together at the end (side by side
+    # on the machine's idle cores); the clip is drawn here meanwhile.
+    items: list = list(solver_plot_calls(pair, out, mass=mp, svg=svg))
     steady = analyze_cycle(pair, vehicle=sc.vehicle, surface=sc.surface, wheel_mass=mp,
                            drive=sc.drive, accel_m_s2=0.0)
     v = steady.speed_m_s
@@ -77,8 +85,8 @@ def render_scenario(sc, out_dir: str | Path, *, svg: bool = False, simulate: boo
                          wheel_load_N=9.80665 * (sc.vehicle.body_mass_kg / n_ax + mp.mass_kg),
                          rolling_resistance=sc.surface.rolling_resistance)
     xs = np.asarray(fr.x_m) * 1000.0
-    items.append(plot_series(
-        xs, {"required friction": np.asarray(fr.mu),
+    items.append(_call(
+        plot_series, xs, {"required friction": np.asarray(fr.mu),
              "limit: surface friction": np.full(xs.shape, sc.surface.friction)},
         out / "friction.png", "friction coefficient [-]",
         f"Friction the contact needs at {v:.3g} m/s against the surface's {sc.surface.friction:g}",
@@ -93,8 +101,8 @@ def render_scenario(sc, out_dir: str | Path, *, svg: bool = False, simulate: boo
         raise InputError("analyze_cycle gave no torque per motor to plot")
     for k, axles in enumerate(steady.motors):
         tq[f"analytic: {motor_name(axles)}"] = (steady.t_s, motor_torque[k])
-    items.append(plot_series(
-        None, tq, out / "torque_analytic.png", "motor torque [N·m]",
+    items.append(_call(
+        plot_series, None, tq, out / "torque_analytic.png", "motor torque [N·m]",
         f"Torque per motor at a steady {v:.3g} m/s (analytic)", svg=svg,
         caption=f"Analytic torque per motor over one revolution at a steady {v:.3g} m/s (cruise):"
                 f" peak {steady.torque_peak_Nm:.4g} N·m, r.m.s. {steady.torque_rms_Nm:.4g} N·m."))
@@ -102,12 +110,133 @@ def render_scenario(sc, out_dir: str | Path, *, svg: bool = False, simulate: boo
     if simulate:
         items_sim, frames = _sim_plots(sc, steady, out, svg, sim_result, pair, mp)
         items += items_sim
+    clip_call = None
     if clip:
         offsets = tuple(float(o) for o in axle_offsets_m(n_ax, sc.vehicle.wheelbase_m))
-        items.append(render_clip(pair, out / "clip.gif", frames_data=frames, duration_s=clip_s,
-                                 fps=fps, size=size, follow=follow, speed_m_s=v,
-                                 axle_offsets_m=offsets, progress=progress, title=sc.name))
+        clip_call = _call(render_clip, pair, out / "clip.gif", frames_data=frames, duration_s=clip_s,
+                          fps=fps, size=size, follow=follow, speed_m_s=v,
+                          axle_offsets_m=offsets, progress=progress, title=sc.name)
+    items = draw_all(items, workers=workers, meanwhile=clip_call)
     write_index(out, items, title=f"ridesim pictures: {sc.name}")
+    return items
+
+
+def _call(fn, *args, **kw) -> tuple:
+    """One picture as a call undone: ``(fn, args, kw)``."""
+    return fn, args, kw
+
+
+# The calls of the pictures being drawn: the drawing processes are forked from this one
+# while it is set, so they find the calls here and receive only an index (nothing pickled).
+_CALLS: list = []
+
+
+def _draw_one(i: int) -> tuple:
+    """Draw call ``i`` of :data:`_CALLS` in a drawing process; its item and its warnings."""
+    fn, args, kw = _CALLS[i]
+    with warnings.catch_warnings(record=True) as caught:
+        item = fn(*args, **kw)
+    return item, [(str(w.message), w.category, w.filename, w.lineno) for w in caught]
+
+
+def _can_fork() -> bool:
+    """Whether a pool of forked processes is safe here.
+
+    Fork must exist, no other thread may run, and this process must be allowed children
+    (a daemonic worker of a pool is not).
+    """
+    import multiprocessing as mp
+
+    return ("fork" in mp.get_all_start_methods() and threading.active_count() == 1
+            and not mp.current_process().daemon)
+
+
+def idle_cores() -> int:
+    """Cores the 1-minute load average leaves idle, this process's own share taken off (at least 1).
+
+    On a machine already busy the drawing processes would only queue behind the other
+    work and add their start-up: on 2 cores at a load of 1.6-4.8 from other work, drawing
+    side by side was 15-25 % slower in wall time than one by one, and 1.5-1.7x faster on
+    a quiet machine (benchmarks/bench_render.py). This process's own share of the load is
+    estimated from its CPU time so far (the load average is an exponential average over
+    60 s), so that a long-running caller does not count itself as other work.
+    """
+    import math
+    import time
+
+    cores = os.cpu_count() or 1
+    try:
+        load = os.getloadavg()[0]
+    except (AttributeError, OSError):
+        return 1
+    own = 1.0 - math.exp(-time.process_time() / 60.0)
+    return max(1, min(cores, int(cores - max(0.0, load - own) + 0.5)))
+
+
+def draw_all(calls: list, *, workers: int | None = None, meanwhile: tuple | None = None) -> list:
+    """Run picture calls, side by side in forked processes where that is possible and pays.
+
+    Each picture is an independent file drawn by the same code on a copy of this process
+    (same matplotlib settings and fonts), so the files are the same bytes as drawn one by
+    one; the caller's matplotlib backend and settings are left alone.
+
+    Parameters
+    ----------
+    calls : list
+        ``(fn, args, kw)`` per picture, each returning its ``(path, caption)`` item, or a
+        ready item (a ``(path, caption)`` pair) kept as it is.
+    workers : int, optional
+        Drawing processes (default: the idle cores, :func:`idle_cores`); 1 draws in this
+        process.
+    meanwhile : (fn, args, kw), optional
+        A call run in this process while the others draw (the clip, which reports
+        progress); its item is appended last.
+
+    Returns
+    -------
+    list of (Path, str)
+        The items, in the order of ``calls`` (then ``meanwhile``'s).
+    """
+    todo = [i for i, c in enumerate(calls) if len(c) == 3 and callable(c[0])]
+    n = min(len(todo), idle_cores() if workers is None else max(1, int(workers)))
+    items = list(calls)
+    if n < 2 or not _can_fork():
+        for i in todo:
+            fn, args, kw = calls[i]
+            items[i] = fn(*args, **kw)
+        if meanwhile is not None:
+            items.append(meanwhile[0](*meanwhile[1], **meanwhile[2]))
+        return items
+    import gc
+    import multiprocessing as mp
+    from concurrent.futures import ProcessPoolExecutor
+
+    # Import the drawing machinery once here, before the fork, rather than once per process.
+    import matplotlib.backends.backend_agg  # noqa: F401
+    import matplotlib.figure  # noqa: F401
+    import matplotlib.patches  # noqa: F401
+    import matplotlib.ticker  # noqa: F401
+    import PIL.PngImagePlugin  # noqa: F401
+
+    global _CALLS
+    _CALLS = list(calls)
+    # Objects that exist at the fork are left out of the children's garbage collection, so
+    # that it does not touch (and so copy) every page of this process in each of them.
+    gc.freeze()
+    try:
+        with ProcessPoolExecutor(max_workers=n, mp_context=mp.get_context("fork")) as pool:
+            futures = {i: pool.submit(_draw_one, i) for i in todo}
+            if meanwhile is not None:
+                last = meanwhile[0](*meanwhile[1], **meanwhile[2])
+            for i, fut in futures.items():
+                items[i], caught = fut.result()
+                for message, category, filename, lineno in caught:
+                    warnings.warn_explicit(message, category, filename, lineno)
+    finally:
+        gc.unfreeze()
+        _CALLS = []
+    if meanwhile is not None:
+        items.append(last)
     return items
 
 
@@ -116,7 +245,7 @@ def _sim_plots(sc, steady, out: Path, svg: bool, res, pair, mp):
     from ridesim.errors import InputError
     from ridesim.jobs.simulate import simulate
     from ridesim.metrics import comfort as cf
-    from ridesim.render.plots import plot_series, plot_spectrum
+    from ridesim.render.plots import plot_series
 
     if res is None:
         res = simulate(sc)
@@ -147,16 +276,16 @@ def _sim_plots(sc, steady, out: Path, svg: bool, res, pair, mp):
              for s in d_tq.get("skipped") or []]
     phases = "; ".join(f"{k} {p['peak_Nm']:.4g} N·m" for k, p in (d_tq.get("by_phase") or {}).items()
                        if p.get("peak_Nm") is not None)
-    items.append(plot_series(
-        None, series, out / "torque.png", "motor torque [N·m]",
+    items.append(_call(
+        plot_series, None, series, out / "torque.png", "motor torque [N·m]",
         "Torque per motor: simulation against the analytic model", svg=svg, spans=spans,
         caption=f"Simulated torque per motor (raw steps) against the analytic model (dashed) along"
                 f" the same motion; 10 ms average peaks by phase: {phases}. Shaded: windows left"
                 " out of the figures (run.settle_s at the start, the drive settling after its"
                 " ramp)."))
     heights = {f"axle {i}": (t, 1000 * pr.axle_y_m[:, i]) for i in range(pr.axle_y_m.shape[1])}
-    items.append(plot_series(
-        None, heights, out / "bounce.png", "axle height [mm]",
+    items.append(_call(
+        plot_series, None, heights, out / "bounce.png", "axle height [mm]",
         "Axle heights in the simulation (0 = the ideal axle line)", svg=svg,
         caption=f"Axle heights over time: bounce {1000 * res.axle_bounce_m:.3f} mm peak to peak"
                 f" after {pr.settle_s:g} s."))
@@ -167,9 +296,10 @@ def _sim_plots(sc, steady, out: Path, svg: bool, res, pair, mp):
     n_avg = max(1, int(round(0.010 / pr.dt_s)))
     avg = np.convolve(pr.seat_ay_m_s2, np.ones(n_avg) / n_avg, mode="same")
     avg_x = np.convolve(pr.seat_ax_m_s2, np.ones(n_avg) / n_avg, mode="same")
-    items.append(plot_series(
-        None, {"vertical, raw steps": (t, pr.seat_ay_m_s2), "vertical, 10 ms average": (t, avg),
-               "fore-aft, 10 ms average": (t, avg_x)},
+    items.append(_call(
+        plot_series, None,
+        {"vertical, raw steps": (t, pr.seat_ay_m_s2), "vertical, 10 ms average": (t, avg),
+         "fore-aft, 10 ms average": (t, avg_x)},
         out / "seat.png", "seat acceleration [m/s²]", "Seat-point acceleration (simulated)",
         kinds={"vertical, raw steps": "raw"}, svg=svg,
         caption="Seat-point acceleration, gravity excluded: the raw 1 kHz record (faint; its"
@@ -177,8 +307,9 @@ def _sim_plots(sc, steady, out: Path, svg: bool, res, pair, mp):
                 " bulk of the record and triangles on its edge mark the samples beyond it."))
     try:
         spec = cf.spectrum(pr.seat_ay_m_s2, 1.0 / pr.dt_s, "k", settle_s=pr.settle_s)
-        items.append(plot_spectrum(
-            spec.centre_hz, {"unweighted": spec.rms_m_s2, "Wk weighted": spec.weighted_rms_m_s2},
+        items.append(_call(
+            _comfort_plot, spec.centre_hz,
+            {"unweighted": spec.rms_m_s2, "Wk weighted": spec.weighted_rms_m_s2},
             out / "comfort.png", ylabel="r.m.s. acceleration [m/s²]",
             title="Seat vibration in one-third octave bands (ISO 2631-1 Wk)", svg=svg,
             caption="Vertical seat vibration by one-third octave band, unweighted and Wk weighted."))
@@ -188,3 +319,13 @@ def _sim_plots(sc, steady, out: Path, svg: bool, res, pair, mp):
               "wheel_angle_rad": pr.wheel_angle_rad, "pitch_rad": pr.pitch_rad,
               "speed_m_s": pr.speed_m_s, "torque_Nm": pr.shaft_torque_Nm[:, 0]}
     return items, frames
+
+
+def _comfort_plot(freq_hz, values, path: Path, **kw) -> tuple[Path, str]:
+    """The comfort spectrum plot, or its line saying why there is none."""
+    from ridesim.render.plots import plot_spectrum
+
+    try:
+        return plot_spectrum(freq_hz, values, path, **kw)
+    except InputError as exc:
+        return path, f"no comfort spectrum: {' '.join(str(exc).split())}"

@@ -663,13 +663,35 @@ def render_solver_plots(pair, out_dir: str | Path, *, mass=None, svg: bool = Fal
     list of (Path, str)
         Each PNG with its one-line caption.
     """
+    return [fn(*args, **kw) for fn, args, kw in solver_plot_calls(pair, out_dir, mass=mass, svg=svg)]
+
+
+def solver_plot_calls(pair, out_dir: str | Path, *, mass=None, svg: bool = False) -> list[tuple]:
+    """The calls :func:`render_solver_plots` makes, undone, to be drawn elsewhere (one per picture).
+
+    Parameters
+    ----------
+    pair : RollingPair
+        The solved pair.
+    out_dir : str or Path
+        Folder for ``wheel.png``, ``track.png`` and ``roll.png``.
+    mass : MassProperties, optional
+        Wheel mass properties for the wheel picture.
+    svg : bool
+        Also write SVGs.
+
+    Returns
+    -------
+    list of (callable, tuple, dict)
+        Function, positional and keyword arguments of each picture, in order.
+    """
     out = Path(out_dir)
     return [
-        plot_wheel(pair, out / "wheel.png", mass=mass, svg=svg),
+        (plot_wheel, (pair, out / "wheel.png"), {"mass": mass, "svg": svg}),
         # A wheel much wider than a period hides the track under overlapping poses: fewer then.
-        plot_track(pair, out / "track.png", svg=svg,
-                   poses=3 if 2 * pair.depth_range()[1] > 1.5 * pair.track.period else 5),
-        plot_roll(pair, out / "roll.png", svg=svg),
+        (plot_track, (pair, out / "track.png"),
+         {"svg": svg, "poses": 3 if 2 * pair.depth_range()[1] > 1.5 * pair.track.period else 5}),
+        (plot_roll, (pair, out / "roll.png"), {"svg": svg}),
     ]
 
 

@@ -1,0 +1,85 @@
+"""Pictures drawn side by side in forked processes are the files drawn one by one.
+
+The reference is the same job drawn in this process, picture after picture: every file
+(PNG bytes, the index with its captions) must be identical, and the caller's matplotlib
+backend and settings untouched.
+"""
+
+import threading
+import warnings
+from pathlib import Path
+
+import pytest
+
+from ridesim.jobs.render import draw_all, render_scenario
+from ridesim.scenario.load import load_scenario
+
+ROOT = Path(__file__).resolve().parent.parent
+
+
+def test_concurrent_pictures_are_the_same_bytes_as_one_by_one(tmp_path):
+    import matplotlib as mpl
+
+    backend, rc = mpl.get_backend(), dict(mpl.rcParams)
+    sc = load_scenario(ROOT / "scenarios" / "ellipse_pull_toy.toml")
+    one = render_scenario(sc, tmp_path / "one", clip=False, workers=1)
+    two = render_scenario(sc, tmp_path / "two", clip=False, workers=2)
+    assert [p.name for p, _ in one] == [p.name for p, _ in two]
+    assert [c for _, c in one] == [c for _, c in two]
+    names = sorted(p.name for p in (tmp_path / "one").iterdir())
+    assert names == sorted(p.name for p in (tmp_path / "two").iterdir())
+    assert len([n for n in names if n.endswith(".png")]) == 5
+    for name in names:
+        assert (tmp_path / "one" / name).read_bytes() == (tmp_path / "two" / name).read_bytes(), name
+    assert mpl.get_backend() == backend
+    assert dict(mpl.rcParams) == rc
+
+
+def _warns(n):
+    warnings.warn(f"trouble {n}", RuntimeWarning, stacklevel=1)
+    return Path(f"p{n}.png"), f"caption {n}"
+
+
+def _fails():
+    raise ValueError("no picture")
+
+
+def test_draw_all_keeps_the_order_ready_items_and_warnings():
+    calls = [(_warns, (0,), {}), (Path("ready.png"), "ready"), (_warns, (2,), {})]
+    with warnings.catch_warnings(record=True) as caught:
+        warnings.simplefilter("always")
+        items = draw_all(calls, workers=2, meanwhile=(_warns, (3,), {}))
+    assert items == [(Path("p0.png"), "caption 0"), (Path("ready.png"), "ready"),
+                     (Path("p2.png"), "caption 2"), (Path("p3.png"), "caption 3")]
+    assert sorted(str(w.message) for w in caught) == ["trouble 0", "trouble 2", "trouble 3"]
+    assert all(issubclass(w.category, RuntimeWarning) for w in caught)
+
+
+def test_draw_all_raises_a_picture_error_and_draws_serially_beside_threads():
+    with pytest.raises(ValueError, match="no picture"):
+        draw_all([(_fails, (), {}), (_warns, (1,), {})], workers=2)
+    out = []
+    th = threading.Thread(target=lambda: out.extend(draw_all([(_warns, (1,), {})] * 2, workers=2)))
+    with warnings.catch_warnings():
+        warnings.simplefilter("ignore")
+        th.start()
+        th.join()
+    assert out == [(Path("p1.png"), "caption 1")] * 2
+
+
+@pytest.mark.parametrize("load, cpu_s, expect", [
+    (0.1, 0.0, 2),    # quiet machine: both cores
+    (4.8, 0.0, 1),    # busy with other work: one by one
+    (1.0, 1e4, 2),    # the load is this long-running process itself (its share ~1)
+    (1.0, 0.0, 1),    # the load is another process: one core left, drawn here
+])
+def test_idle_cores_follow_the_load_average_less_this_process(monkeypatch, load, cpu_s, expect):
+    import os
+    import time
+
+    monkeypatch.setattr(os, "cpu_count", lambda: 2)
+    monkeypatch.setattr(os, "getloadavg", lambda: (load, load, load))
+    monkeypatch.setattr(time, "process_time", lambda: cpu_s)
+    from ridesim.jobs.render import idle_cores
+
+    assert idle_cores() == expect
