@@ -408,6 +408,38 @@ def scenario_toml(sc) -> str:
     return "\n".join(lines) + "\n"
 
 
+def _page_head(sc, verdict: str) -> list[str]:
+    """The page's opening: document head, title, description and the verdict box."""
+    return [
+        "<!doctype html><html lang=en><head><meta charset=utf-8>",
+        '<meta name=viewport content="width=device-width, initial-scale=1">',
+        f"<title>ridesim report: {_e(sc.name)}</title><style>{_CSS}</style></head>",
+        f"<body><main><section class=first><h1>{_e(sc.name)}</h1>",
+        f"<p class=lead>{_e(sc.description)}</p>" if sc.description else "",
+        verdict,
+    ]
+
+
+def _page_tail(sc, figures: dict, blocks) -> list[str]:
+    """The appendix of every figure of ``blocks`` (key, title) and the scenario as run."""
+    parts = ["<section><h2>Appendix: every figure</h2><p class=muted>Key paths as in the"
+             " JSON outputs; lengths in mm, angles in degrees, four significant digits and no"
+             " finer than the unit's resolution.</p>"]
+    for block, title in blocks:
+        if block in figures:
+            parts.append(f"<h3>{title}</h3>" + _appendix_table(block, figures[block]))
+    src = getattr(sc, "source", None)
+    if src is None:
+        note = "As run, every key given."
+    elif _as_written(sc):
+        note = f"As written in {_e(Path(src).name)}."
+    else:
+        note = f"Changed from {_e(Path(src).name)}: as run, every key given."
+    parts.append("<h3>The scenario</h3>" + f"<p class=muted>{note}</p>"
+                 + "<pre>" + _e(scenario_toml(sc)) + "</pre></section></main></body></html>")
+    return parts
+
+
 def report_page(sc, figures: dict, items) -> str:
     """The HTML page of a scenario's report.
 
@@ -431,14 +463,8 @@ def report_page(sc, figures: dict, items) -> str:
     pics = [(Path(p), cap) for p, cap in items if Path(p).exists()]
     small = next((pc for pc in pics if pc[0].stem == "track"), None) or \
         next((pc for pc in pics if pc[0].stem == "wheel"), None)
-    src = getattr(sc, "source", None)
     parts = [
-        "<!doctype html><html lang=en><head><meta charset=utf-8>",
-        '<meta name=viewport content="width=device-width, initial-scale=1">',
-        f"<title>ridesim report: {_e(sc.name)}</title><style>{_CSS}</style></head>",
-        f"<body><main><section class=first><h1>{_e(sc.name)}</h1>",
-        f"<p class=lead>{_e(sc.description)}</p>" if sc.description else "",
-        _verdict(sc, c, sim, sm),
+        *_page_head(sc, _verdict(sc, c, sim, sm)),
         "<h2>The build at a glance</h2><div class=glance>",
         _grid(["part", "as specified"], _build_rows(sc), numeric_from=9),
     ]
@@ -460,18 +486,8 @@ def report_page(sc, figures: dict, items) -> str:
                      + "</section>")
     parts.append("<section><h2>Findings and cautions</h2>" + _findings_section(figures)
                  + "</section>")
-    parts.append("<section><h2>Appendix: every figure</h2><p class=muted>Key paths as in the"
-                 " JSON outputs; lengths in mm, angles in degrees, four significant digits and no"
-                 " finer than the unit's resolution.</p>")
-    for block, title in (("check", "Will it roll (check)"), ("size_motor", "Motor sizing"),
-                         ("simulate", "Simulation")):
-        if block in figures:
-            parts.append(f"<h3>{title}</h3>" + _appendix_table(block, figures[block]))
-    note = ("As run, every key given." if not src else
-            f"As written in {_e(Path(src).name)}." if _as_written(sc) else
-            f"Changed from {_e(Path(src).name)}: as run, every key given.")
-    parts.append("<h3>The scenario</h3>" + f"<p class=muted>{note}</p>"
-                 + "<pre>" + _e(scenario_toml(sc)) + "</pre></section></main></body></html>")
+    parts += _page_tail(sc, figures, (("check", "Will it roll (check)"),
+                                      ("size_motor", "Motor sizing"), ("simulate", "Simulation")))
     return "\n".join(parts)
 
 
@@ -541,32 +557,14 @@ def hub_report_page(sc, figures: dict, items) -> str:
                      f" centre distance {e_txt}"],
             ["Surface", f"friction {format_value(sc.surface.friction)}"]]
     pics = [(Path(p), cap) for p, cap in items if Path(p).exists()]
-    src = getattr(sc, "source", None)
     parts = [
-        "<!doctype html><html lang=en><head><meta charset=utf-8>",
-        '<meta name=viewport content="width=device-width, initial-scale=1">',
-        f"<title>ridesim report: {_e(sc.name)}</title><style>{_CSS}</style></head>",
-        f"<body><main><section class=first><h1>{_e(sc.name)}</h1>",
-        f"<p class=lead>{_e(sc.description)}</p>" if sc.description else "",
-        verdict,
+        *_page_head(sc, verdict),
         "<h2>The build at a glance</h2>", _grid(["part", "as specified"], rows, numeric_from=9),
         "</section><section><h2>Pictures</h2>",
         *(_img(path, caption) for path, caption in pics),
         "</section>",
         "<section><h2>Findings and cautions</h2>" + _findings_section(figures) + "</section>",
-        "<section><h2>Appendix: every figure</h2><p class=muted>Key paths as in the JSON outputs;"
-        " lengths in mm, angles in degrees.</p>",
     ]
-    for block, title in (("check", "Will it roll (check)"), ("simulate", "Simulation")):
-        if block in figures:
-            parts.append(f"<h3>{title}</h3>" + _appendix_table(block, figures[block]))
-    if src is None:
-        note = "As run, every key given."
-    elif _as_written(sc):
-        note = f"As written in {_e(Path(src).name)}."
-    else:
-        note = f"Changed from {_e(Path(src).name)}: as run, every key given."
-    parts.append("<h3>The scenario</h3>" + f"<p class=muted>{note}</p>"
-                 + "<pre>" + _e(scenario_toml(sc)) + "</pre></section></main></body></html>")
+    parts += _page_tail(sc, figures, (("check", "Will it roll (check)"), ("simulate", "Simulation")))
     return "\n".join(parts)
 
