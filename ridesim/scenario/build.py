@@ -223,12 +223,7 @@ def wheel_from_spec(spec: WheelSpec) -> Wheel:
                                     " to mark the axle; give wheel.axle_m = [x, y] (m, drawing frame)")
             ax = drawn.axle_m
     else:
-        if spec.points_m is not None:
-            pts = spec.points_m
-        elif spec.file is not None:
-            pts = read_points_csv(spec.file, "wheel.file")
-        else:
-            raise ScenarioError("wheel: give its outline as wheel.points_m or wheel.file")
+        pts = _listed_points(spec, "wheel")
     if ax is None:
         ax = (0.0, 0.0)
     return _wrap("wheel", Wheel.outline, pts, axle=ax, **_corner_args(spec))
@@ -239,6 +234,15 @@ def _corner_args(spec) -> dict:
     if spec.corners is not None:
         out["corners"] = spec.corners if isinstance(spec.corners, str) else list(spec.corners)
     return out
+
+
+def _listed_points(spec: WheelSpec | TrackSpec, section: str) -> np.ndarray | tuple:
+    """The points of an outline or profile given inline (``points_m``) or as a CSV ``file``."""
+    if spec.points_m is not None:
+        return spec.points_m
+    if spec.file is not None:
+        return read_points_csv(spec.file, f"{section}.file")
+    raise ScenarioError(f"{section}: give its outline as {section}.points_m or {section}.file")
 
 
 def track_from_spec(spec: TrackSpec) -> Track:
@@ -266,12 +270,7 @@ def track_from_spec(spec: TrackSpec) -> Track:
         pts = read_profile_drawing(spec.file, "track.file", layer=spec.layer, ident=spec.id,
                                    units=spec.units)
     else:
-        if spec.points_m is not None:
-            pts = spec.points_m
-        elif spec.file is not None:
-            pts = read_points_csv(spec.file, "track.file")
-        else:
-            raise ScenarioError("track: give its outline as track.points_m or track.file")
+        pts = _listed_points(spec, "track")
     return _wrap("track", Track.points, pts, period=spec.period_m, **_corner_args(spec))
 
 

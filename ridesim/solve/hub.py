@@ -35,7 +35,7 @@ import numpy as np
 from ridesim.errors import ClosureError, GeometryError, InputError
 from ridesim.model.path import HUB_SIDES
 from ridesim.model.wheel import Wheel
-from ridesim.solve.table import build_map
+from ridesim.solve.table import build_map, extend_periodic
 
 __all__ = ["HubPair", "hub_for", "wheel_for_hub", "gears_for_ratio", "hub_turn"]
 
@@ -336,15 +336,11 @@ class HubPair:
     # ---------------------------------------------------------------- angles
     def _b(self, a: np.ndarray | float) -> np.ndarray:
         m = self._map
-        a = np.asarray(a, dtype=float)
-        k = np.floor((a - m.a_lo) / m.a_span)
-        return m.b_of_a(a - k * m.a_span) + k * m.b_span
+        return extend_periodic(m.b_of_a, a, m.a_lo, m.a_span, m.b_span)
 
     def _a(self, b: np.ndarray | float) -> np.ndarray:
         m = self._map
-        b = np.asarray(b, dtype=float)
-        k = np.floor((b - m.b_lo) / m.b_span)
-        return m.a_of_b(b - k * m.b_span) + k * m.a_span
+        return extend_periodic(m.a_of_b, b, m.b_lo, m.b_span, m.a_span)
 
     def hub_angle(self, theta: np.ndarray | float) -> np.ndarray:
         """Hub turn ψ [rad] when the wheel has turned ``theta`` [rad] (vectorised).

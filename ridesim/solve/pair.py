@@ -21,7 +21,7 @@ import numpy as np
 from ridesim.errors import ClosureError
 from ridesim.model.track import Track
 from ridesim.model.wheel import Wheel
-from ridesim.solve.table import MonotoneMap
+from ridesim.solve.table import MonotoneMap, extend_periodic
 
 __all__ = ["RollingPair", "Cusp", "CatenaryMap", "TableMap", "SpiralMap"]
 
@@ -311,16 +311,12 @@ class RollingPair:
     def wheel_angle(self, x: np.ndarray | float) -> np.ndarray:
         """Clockwise wheel rotation [rad] when the axle is above ``x`` [m] (vectorised)."""
         m = self._map
-        x = np.asarray(x, dtype=float)
-        k = np.floor((x - m.x_lo) / m.x_span)
-        return m.theta_of_x(x - k * m.x_span) + k * m.theta_span
+        return extend_periodic(m.theta_of_x, x, m.x_lo, m.x_span, m.theta_span)
 
     def axle_x(self, theta: np.ndarray | float) -> np.ndarray:
         """Axle position [m] at which the wheel has turned ``theta`` [rad] (vectorised)."""
         m = self._map
-        theta = np.asarray(theta, dtype=float)
-        k = np.floor((theta - m.theta_lo) / m.theta_span)
-        return m.x_of_theta(theta - k * m.theta_span) + k * m.x_span
+        return extend_periodic(m.x_of_theta, theta, m.theta_lo, m.theta_span, m.x_span)
 
     def contact_radius(self, x: np.ndarray | float) -> np.ndarray:
         """Axle-to-contact distance [m] when the axle is above ``x`` [m]: ``-y(x)``."""

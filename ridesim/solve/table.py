@@ -348,3 +348,28 @@ def _inverse_table(fwd: PolyTable, G0: float, tol: float = 1e-13) -> PolyTable:
     at_minus1 = inv.G_coef[:, 1:] @ ((-1.0) ** k[1:])
     inv.G_coef[:, 0] = s_of(inv_edges[:-1]) - at_minus1
     return inv
+
+
+def extend_periodic(fn, v, lo: float, span: float, step: float) -> np.ndarray:
+    """Evaluate a map tabulated over one period ``[lo, lo + span)`` at any ``v`` (vectorised).
+
+    A rolling pair repeats: moving ``v`` by one ``span`` moves the result by one ``step``
+    (a track period and the wheel turn it takes, say), so ``fn(v) = fn(v - k span) + k step``.
+
+    Parameters
+    ----------
+    fn : callable
+        The map over one period, vectorised.
+    v : array_like
+        Where to evaluate it.
+    lo, span, step : float
+        Start and length of the tabulated period, and the result's advance per period.
+
+    Returns
+    -------
+    ndarray
+    """
+    v = np.asarray(v, dtype=float)
+    k = np.floor((v - lo) / span)
+    return fn(v - k * span) + k * step
+
