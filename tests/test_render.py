@@ -220,3 +220,28 @@ def test_series_plot_shades_the_windows_left_out(tmp_path):
     rows = slice(int(0.3 * h), int(0.4 * h))  # above the zero line, below the legend
     left, right = img[rows, int(0.25 * w):int(0.3 * w)], img[rows, int(0.75 * w):int(0.8 * w)]
     assert np.median(left) < np.median(right) - 5
+
+
+def test_hub_ratio_plot_keeps_the_callers_backend(tmp_path):
+    # The speed-ratio plot draws on a figure of its own (the caller's matplotlib backend is left
+    # alone, DEVELOPERS.md); its mean line is 1/ratio: two identical ellipses about their foci
+    # turn one for one (Litvin et al., Noncircular Gears, 2009).
+    import struct
+
+    import matplotlib
+
+    import ridesim as rs
+    from ridesim.render.hub import plot_hub_ratio
+
+    pair = rs.hub_for(rs.Wheel.ellipse(semi_axes=(0.06, 0.05), axle=(0.033166247903554, 0.0)), ratio=1)
+    before = matplotlib.get_backend()
+    try:
+        matplotlib.use("pdf")
+        out, caption = plot_hub_ratio(pair, tmp_path / "hub_ratio.png")
+        assert matplotlib.get_backend().lower() == "pdf"
+    finally:
+        matplotlib.use(before)
+    data = out.read_bytes()
+    assert data[:8] == b"\x89PNG\r\n\x1a\n"  # PNG signature (ISO/IEC 15948, 5.2)
+    assert struct.unpack(">II", data[16:24]) == (1100, 760)
+    assert pair.ratio == 1.0 and "1/ratio" in caption

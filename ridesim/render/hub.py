@@ -14,6 +14,7 @@ from pathlib import Path
 import numpy as np
 
 from ridesim.export.results import write_bytes_atomic
+from ridesim.render.clip import _round_length
 
 __all__ = ["render_hub_clip", "plot_hub_ratio"]
 
@@ -71,6 +72,9 @@ def render_hub_clip(pair, path: str | Path, *, duration_s: float = 4.0, fps: int
     def px(xy: np.ndarray) -> list[tuple[float, float]]:
         return [(cx + scale * x, cy - scale * y) for x, y in xy]
 
+    bar_m = _round_length(0.2 * W / scale)
+    bar_px = bar_m * scale
+    bar_text = f"{bar_m * 1000:g} mm" if bar_m < 1.0 else f"{bar_m:g} m"
     th0 = float(pair.wheel_angle(0.0))
     thetas = th0 + TWO_PI * wheel_turns * np.arange(n) / n
     arm, axle, spin = pair.poses(thetas)
@@ -91,6 +95,11 @@ def render_hub_clip(pair, path: str | Path, *, duration_s: float = 4.0, fps: int
         d.line(px(mark), fill=_MARK, width=1)  # a spoke to see the wheel turn
         d.line(px(np.array([[0.0, 0.0], axle[i]])), fill=_ARM, width=3)
         d.ellipse([cx - 3, cy - 3, cx + 3, cy + 3], fill=_ARM)
+        d.text((8, 6), f"t = {i / fps:.2f} s   wheel turn {thetas[i] - th0:.2f} rad", fill=_MARK)
+        d.line([10, H - 10, 10 + bar_px, H - 10], fill=_MARK, width=2)  # scale bar
+        for xb in (10, 10 + bar_px):
+            d.line([xb, H - 14, xb, H - 7], fill=_MARK, width=1)
+        d.text((10 + bar_px / 2, H - 14), bar_text, fill=_MARK, anchor="mb")
         frames.append(im)
         if progress is not None and i % 10 == 0:
             progress(i / n)
@@ -121,26 +130,26 @@ def plot_hub_ratio(pair, path: str | Path) -> tuple[Path, str]:
     (Path, str)
         The picture and a one-line caption.
     """
-    import matplotlib
-
-    matplotlib.use("Agg")
-    import matplotlib.pyplot as plt
+    from ridesim.render.plots import _save
+    from ridesim.render.style import SERIES_COLOURS, new_figure, style_context
 
     th = np.linspace(0.0, TWO_PI, 721)
-    fig, (a1, a2) = plt.subplots(2, 1, figsize=(7, 5), sharex=True)
-    a1.plot(th, pair.speed_ratio(th), color="C0")
-    a1.axhline(1.0 / pair.ratio, color="0.6", lw=0.8, ls="--")
-    a1.set_ylabel("hub / wheel speed")
-    a2.plot(th, pair.wheel_radius(th) * 1000, label="wheel r", color="C1")
-    a2.plot(th, pair.hub_radius(th) * 1000, label="hub ρ", color="C2")
-    a2.set_ylabel("contact radius [mm]")
-    a2.set_xlabel("wheel angle θ [rad]")
-    a2.legend(loc="best")
-    fig.tight_layout()
-    buf = io.BytesIO()
-    suffix = Path(path).suffix.lower().lstrip(".") or "png"
-    fig.savefig(buf, format=suffix, dpi=100)
-    plt.close(fig)
-    out = write_bytes_atomic(Path(path), buf.getvalue())
+    part = "ring" if pair.side == "inside" else "hub"
+    with style_context():  # the house style on a figure of its own: the caller's backend is untouched
+        fig = new_figure((1100, 760))
+        a1, a2 = fig.subplots(2, 1, sharex=True)
+        a1.plot(th, pair.speed_ratio(th), color=SERIES_COLOURS[0], label=f"{part} / wheel speed")
+        a1.axhline(1.0 / pair.ratio, color="0.6", lw=0.8, ls="--", label="mean (1 / ratio)")
+        a1.set_ylabel(f"{part} / wheel speed [-]")
+        a1.set_title(f"Wheel {'inside a ring' if part == 'ring' else 'around a hub'}:\ncentre distance"
+                     f" {pair.centre_distance * 1000:.1f} mm, {pair.ratio:.4g} wheel turns per {part} turn",
+                     loc="left")
+        a1.legend(loc="upper left", bbox_to_anchor=(1.0, 1.0))
+        a2.plot(th, pair.wheel_radius(th) * 1000, label="wheel r", color=SERIES_COLOURS[1])
+        a2.plot(th, pair.hub_radius(th) * 1000, label=f"{part} ρ", color=SERIES_COLOURS[2])
+        a2.set_ylabel("contact radius [mm]")
+        a2.set_xlabel("wheel angle θ [rad]")
+        a2.legend(loc="upper left", bbox_to_anchor=(1.0, 1.0))
+        out = _save(fig, path, svg=Path(path).suffix.lower() == ".svg")
     return out, ("Speed ratio dψ/dθ = r/ρ of the hub against the wheel (dashed: its mean, 1/ratio)"
                  " and the contact radii, over one wheel turn.")
