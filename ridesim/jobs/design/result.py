@@ -401,12 +401,8 @@ class DesignResult:
                                     "Run it: ridesim check THIS.toml (simulate, report, export)."])
 
     def _plot_front(self, path: Path) -> Path:
-        import matplotlib
-
-        matplotlib.use("Agg")
-        import matplotlib.pyplot as plt
-
-        from ridesim.export.results import write_bytes_atomic
+        from ridesim.render.plots import _save
+        from ridesim.render.style import COLOURS, SERIES_COLOURS, new_figure, style_context
 
         g0, g1 = self.brief.goals
         ok = [d for d in self.outcome.designs if d.feasible and
@@ -414,24 +410,22 @@ class DesignResult:
         bad = [d for d in self.outcome.designs if not d.feasible and
                all(isinstance(v, (int, float)) for v in d.goals)]
         front = pareto_front(self.outcome.designs, self.sense)
-        fig, ax = plt.subplots(figsize=(6.4, 4.2), dpi=100)
-        if bad:
-            ax.scatter([d.goals[0] for d in bad], [d.goals[1] for d in bad], s=12, c="#bbbbbb",
-                       label="misses the brief")
-        ax.scatter([d.goals[0] for d in ok], [d.goals[1] for d in ok], s=16, c="#1f5f8b",
-                   label="meets the brief")
-        ax.plot([d.goals[0] for d in front], [d.goals[1] for d in front], "o-", c="#c8553d",
-                label="trade-off front")
-        ax.set_xlabel(g0.text())
-        ax.set_ylabel(g1.text())
-        ax.grid(alpha=0.3)
-        ax.legend(frameon=False)
-        ax.set_title(f"{Path(self.brief.source).name}: {len(front)} designs on the front")
-        fig.tight_layout()
-        buf = io.BytesIO()
-        fig.savefig(buf, format="png")
-        plt.close(fig)
-        return write_bytes_atomic(path, buf.getvalue())
+        # The house style on a figure of its own: the caller's matplotlib backend is untouched.
+        with style_context():
+            fig = new_figure((1000, 660))
+            ax = fig.add_subplot()
+            if bad:
+                ax.scatter([d.goals[0] for d in bad], [d.goals[1] for d in bad], s=14,
+                           c=COLOURS["grid"], label="misses the brief")
+            ax.scatter([d.goals[0] for d in ok], [d.goals[1] for d in ok], s=18,
+                       c=SERIES_COLOURS[0], label="meets the brief")
+            ax.plot([d.goals[0] for d in front], [d.goals[1] for d in front], "o-",
+                    c=SERIES_COLOURS[1], label="trade-off front")
+            ax.set_xlabel(g0.text())
+            ax.set_ylabel(g1.text())
+            ax.legend()
+            ax.set_title(f"{Path(self.brief.source).name}: {len(front)} designs on the front")
+            return _save(fig, path, svg=False)
 
 
 def _miss(q: dict) -> str:
