@@ -961,6 +961,9 @@ class SimResult:
                 for t in tq
             ],
         }
+        seat = corner_seating(self.probes)
+        if seat is not None:
+            top["corner_torque_per_mm_Nm"] = 1e-3 * seat["torque_per_shift_Nm_m"]
         phases = {k: v for k, v in top["by_phase"].items() if v.get("peak_Nm") is not None}
         top["peak_phase"] = max(phases, key=lambda k: phases[k]["peak_Nm"]) if phases else None
         info = self.probes.info
@@ -1138,6 +1141,11 @@ def _torque_lines(tq: dict) -> list[str]:
         w0, w1 = s["window_s"]
         pk = "" if s.get("peak_Nm") is None else f": peak {s['peak_Nm']:.4g} N m there"
         lines.append(f"  skipped   {w0:.3g}-{w1:.3g} s ({s['reason']}){pk}")
+    if tq.get("corner_torque_per_mm_Nm") is not None:
+        lines.append(f"  corners   ROUGH: the rounded corners seat in valleys fitted to them, where"
+                     f" every 0.1 mm the contact wanders is {1e-1 * tq['corner_torque_per_mm_Nm']:.2g}"
+                     " N m; peaks there are not the ride's: take corner torques from `ridesim check`"
+                     " (see the limits below)")
     return lines
 
 
@@ -1171,6 +1179,42 @@ def _finite_or_none(obj):
     return obj
 
 
+def corner_seating(probes: Probes) -> dict | None:
+    """How finely the contact of rounded corners seated in valleys fitted to them is resolved.
+
+    A rounded corner (radius ``rho``) rolling in a valley solved for it matches the valley's
+    curvature to within ``cos(phi)/r`` (Euler-Savary; ``r`` about the corner's distance from the
+    axle, REFERENCES.md): a sink ``eps`` closes the gap out to ``s = sqrt(2 eps r)`` either side
+    of the contact, and, the two centres of curvature being only about ``rho^2 / r`` apart, a
+    phase error ``dx`` turns the contact by ``dx r / rho^2``, moving it ``dx r / rho`` along the
+    arc [derived]. The contact's shift under the axle times the wheel's load is shaft torque.
+
+    Parameters
+    ----------
+    probes : Probes
+        Probe record (its ``info`` names the corner radius and where it came from).
+
+    Returns
+    -------
+    dict or None
+        ``contact_spread_m`` (``s`` for 1 micrometre of sink), ``phase_gain`` (``r / rho``)
+        and ``torque_per_shift_Nm_m`` (the load on one wheel, body share and wheel, times g);
+        None when the wheel's corners do not seat in valleys fitted to them.
+    """
+    info = probes.info
+    if not (info.get("corner_radius_source") == "wheel" and info.get("corner_radius_m")
+            and info.get("r_max_m")):
+        return None
+    from ridesim.sim.world import STANDARD_GRAVITY_M_S2
+
+    r_c, rho = float(info["r_max_m"]), float(info["corner_radius_m"])
+    n_ax = max(int(probes.axle_y_m.shape[1]), 1)
+    load = (float(info.get("body_mass_kg") or 0.0) / n_ax
+            + float(info.get("wheel_mass_kg") or 0.0)) * STANDARD_GRAVITY_M_S2
+    return {"contact_spread_m": math.sqrt(2e-6 * r_c), "phase_gain": r_c / rho,
+            "torque_per_shift_Nm_m": load}
+
+
 def _model_cautions(probes: Probes) -> list[str]:
     info = probes.info
     m = settled(probes)
@@ -1199,26 +1243,16 @@ def _model_cautions(probes: Probes) -> list[str]:
                    " cusps, so the wheel dips there and rocks a little out of phase (more the larger"
                    " the radius). For a polygon wheel, wheel.fit_track_to_corners = true solves the"
                    " track for the rounded corners.")
-    if info.get("corner_radius_source") == "wheel" and info.get("corner_radius_m") and info.get("r_max_m"):
-        # Euler-Savary: the corner arc (radius rho) and the valley fitted to it differ in
-        # curvature by cos(phi)/r (phi = 0 at the valley bottom, r about r_max): a sink eps
-        # closes the gap out to s = sqrt(2 eps r) either side, and, the two centres being only
-        # about rho^2 / r apart, a phase error dx turns the contact by dx r / rho^2, moving it
-        # dx r / rho along the arc.
-        from ridesim.sim.world import STANDARD_GRAVITY_M_S2
-
-        r_c, rho = float(info["r_max_m"]), float(info["corner_radius_m"])
-        s_um = math.sqrt(2e-6 * r_c)
-        n_ax = max(int(probes.axle_y_m.shape[1]), 1)
-        load = (float(info.get("body_mass_kg") or 0.0) / n_ax
-                + float(info.get("wheel_mass_kg") or 0.0)) * STANDARD_GRAVITY_M_S2
+    seat = corner_seating(probes)
+    if seat is not None:
         out.append(f"The wheel's rounded corners seat in valleys fitted to them, which they match in"
                    f" curvature to within cos(phi)/r: 1 micrometre of sink spreads the contact there"
-                   f" over about +-{1e3 * s_um:.2g} mm, and a phase error moves it {r_c / rho:.3g} times"
-                   f" as far along the corner (10 micrometres: {1e-2 * r_c / rho:.2g} mm); each"
-                   f" millimetre is {1e-3 * load:.2g} N m of shaft torque, so torque peaks at the"
-                   " corners are no finer than that (on a square of apothem 0.15 m at 0.5 rad/s the"
-                   " 10 ms peak read 2 to 3 times the exact 0.13 N m). Take corner torques from the"
+                   f" over about +-{1e3 * seat['contact_spread_m']:.2g} mm, and a phase error moves it"
+                   f" {seat['phase_gain']:.3g} times as far along the corner (10 micrometres:"
+                   f" {1e-2 * seat['phase_gain']:.2g} mm); each millimetre is"
+                   f" {1e-3 * seat['torque_per_shift_Nm_m']:.2g} N m of shaft torque, so torque peaks"
+                   " at the corners are no finer than that (on a square of apothem 0.15 m at 0.5 rad/s"
+                   " the 10 ms peak read 2 to 3 times the exact 0.13 N m). Take corner torques from the"
                    " analytic model (ridesim check).")
     if info.get("body_inertia_estimated") and not info.get("pitch_held"):
         out.append("Body inertia was estimated as a box spanning the wheels; give"
