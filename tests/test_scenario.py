@@ -789,6 +789,8 @@ def test_wheelbase_in_periods_and_its_replacement():
     assert sc.vehicle.wheelbase_periods == 3.0 and sc.vehicle.wheelbase_m == 0.0
     assert sc.vehicle.wheelbase_tolerance_m == 1e-3
     assert scenario_from_dict(sc.to_dict()) == sc
+    # Written back (a design's best.toml, a template), the unset length stays out of the file.
+    assert "wheelbase_m" not in sc.to_dict()["vehicle"]
     # Setting one form of the wheelbase in a sweep drops the other.
     by_length = sc.replace("vehicle.wheelbase_m", 0.4)
     assert by_length.vehicle.wheelbase_m == 0.4 and by_length.vehicle.wheelbase_periods is None

@@ -292,7 +292,9 @@ class CheckResult:
             lines.append(f"  - {r}")
         c = d["clearance"]
         if c.get("min_m") is not None:
-            lines.append(f"clearance: least {1000 * c['min_m']:.3f} mm at x = {c['at_x_m']:.4f} m"
+            # (+ 0.0 after rounding: a gap of -1e-10 m within tolerance reads 0.000, not -0.000)
+            least_mm = round(1000 * c["min_m"], 3) + 0.0
+            lines.append(f"clearance: least {least_mm:.3f} mm at x = {c['at_x_m']:.4f} m"
                          + (" (interferes)" if c.get("interferes") else ""))
         fr = d["friction"]
         if fr.get("required_peak") is not None:

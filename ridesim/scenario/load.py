@@ -670,6 +670,8 @@ class Scenario:
         if self.track is not None:
             out["track"] = _spec_dict(self.track)
         out["vehicle"] = _spec_dict(self.vehicle)
+        if self.vehicle.wheelbase_periods is not None and self.vehicle.wheelbase_m == 0.0:
+            del out["vehicle"]["wheelbase_m"]  # unset: solved from the periods
         out["drive"] = _spec_dict(self.drive)
         out["surface"] = _spec_dict(self.surface)
         out["run"] = _spec_dict(self.run)
