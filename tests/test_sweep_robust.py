@@ -169,20 +169,34 @@ def _alive(pid: int) -> bool:
     return state != "Z"
 
 
+def _has_dask() -> bool:
+    try:
+        import distributed  # noqa: F401
+    except ImportError:
+        return False
+    return True
+
+
 @pytest.mark.skipif(not Path("/proc/self/stat").exists(), reason="needs /proc (Linux)")
-def test_workers_exit_when_the_sweep_is_killed(tmp_path):
+@pytest.mark.parametrize("where, wanted", [
+    (["--workers", "2"], 2),  # the local pool's two workers
+    # A local Dask cluster: its two worker processes and multiprocessing's resource tracker.
+    pytest.param(["--workers", "2", "--cluster", "local"], 3,
+                 marks=pytest.mark.skipif(not _has_dask(), reason="needs dask.distributed")),
+], ids=["pool", "dask-local"])
+def test_workers_exit_when_the_sweep_is_killed(tmp_path, where, wanted):
     f = write_sweep(tmp_path, 'run = "check"\n[vary]\n"surface.friction" = '
                     '{ from = 0.5, to = 0.9, count = 40 }\n')
     env = {**os.environ, "PYTHONPATH": str(ROOT)}
     p = subprocess.Popen([sys.executable, "-m", "ridesim.cli", "sweep", str(f), "--out",
-                          str(tmp_path / "out"), "--workers", "2"], cwd=ROOT, env=env,
+                          str(tmp_path / "out"), *where], cwd=ROOT, env=env,
                          stdout=subprocess.DEVNULL, stderr=subprocess.DEVNULL)
     workers: list[int] = []
-    deadline = time.monotonic() + 30
-    while time.monotonic() < deadline and len(workers) < 2:
+    deadline = time.monotonic() + 60
+    while time.monotonic() < deadline and len(workers) < wanted:
         time.sleep(0.2)
         workers = _children(p.pid)
-    assert workers, "the sweep started no workers"
+    assert len(workers) >= wanted, f"the sweep started {len(workers)} of {wanted} worker processes"
     p.send_signal(signal.SIGKILL)
     p.wait()
     deadline = time.monotonic() + 10
