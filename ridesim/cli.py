@@ -175,7 +175,8 @@ def _cmd_new(args) -> int:
     name = args.name.strip()
     if not name or Path(name).name != name or name.endswith(".toml"):
         raise ScenarioError_(f"NAME must be a plain name without a folder or .toml, got {args.name!r}")
-    text = scenario_template(name, wheel=args.wheel, track=args.track)
+    text = scenario_template(name, wheel=args.wheel, track=args.track, hub=args.hub,
+                             ratio=args.ratio)
     path = Path(args.out or ".") / f"{name}.toml"
     if path.exists():
         raise ScenarioError_(f"{path} already exists; choose another NAME or remove it")
@@ -376,6 +377,11 @@ def _build_parser(commands: dict) -> _Parser:
                     help="wheel shape: polygon | ellipse | circle | polar | outline (default polygon)")
     nw.add_argument("--track", metavar="SHAPE", default=None,
                     help="track shape instead: wave | sawtooth | formula | points")
+    nw.add_argument("--hub", metavar="SHAPE", default=None,
+                    help="hub shape instead (a hub path, the wheel solved for the hub): polygon |"
+                    " ellipse | circle | polar | outline")
+    nw.add_argument("--ratio", action="store_true",
+                    help="a gear pair designed for a required speed ratio instead ([ratio])")
     nw.add_argument("--out", metavar="DIR", help="folder for the file (default: here)")
     nw.add_argument("--json", action="store_true", help="print exactly one JSON object")
     sw = sub.add_parser("sweep", help="run a design sweep or tolerance study (resumable)",

@@ -25,6 +25,7 @@ SPECS = {
     "duty": scenario_module.DutySpec, "motor": scenario_module.MotorSpec,
     "path": scenario_module.PathSpec,
     "export": scenario_module.ExportSpec,
+    "hub": scenario_module.HubSpec, "ratio": scenario_module.RatioSpec,
 }
 
 # A valid base scenario for the keys of each wheel or track shape.
@@ -86,6 +87,12 @@ def test_every_default_lies_within_its_bounds_and_its_plausible_range():
 
 
 def _base_for(k):
+    if k.section == "hub":  # the hub's outline rows are the wheel's: the same bases
+        shape = k.shapes[0] if k.shapes else "polygon"
+        data = copy.deepcopy(BASES[("wheel", shape)])
+        if k.name in ("circumradius_m", "side_m"):
+            del data["wheel"]["apothem_m"]
+        return {"hub": data["wheel"], "path": {"kind": "hub"}}
     if k.section in ("wheel", "track"):
         shape = k.shapes[0] if k.shapes else ("polygon" if k.section == "wheel" else "wave")
         data = copy.deepcopy(BASES[(k.section, shape)])

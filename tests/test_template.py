@@ -12,21 +12,29 @@ from ridesim.scenario.load import scenario_from_dict
 from ridesim.scenario.schema import KEYS, SECTIONS, TRACK_SHAPES, WHEEL_SHAPES
 from ridesim.scenario.template import scenario_template
 
-CASES = [("wheel", s) for s in WHEEL_SHAPES] + [("track", s) for s in TRACK_SHAPES]
+CASES = ([("wheel", s) for s in WHEEL_SHAPES] + [("track", s) for s in TRACK_SHAPES]
+         + [("hub", s) for s in WHEEL_SHAPES] + [("ratio", None)])
 
 
 @pytest.mark.parametrize("part,shape", CASES, ids=[f"{p}-{s}" for p, s in CASES])
 def test_template_loads_solves_and_lists_every_key(part, shape):
-    text = scenario_template("demo", **{part: shape})
+    text = scenario_template("demo", **({part: shape} if part != "ratio" else {"ratio": True}))
     sc = scenario_from_dict(tomllib.loads(text))
-    assert getattr(sc, part).shape == shape
+    if part != "ratio":
+        assert getattr(sc, part).shape == shape
+    else:
+        assert sc.ratio.formula is not None
+    if part in ("hub", "ratio"):
+        assert sc.path.kind == "hub" and sc.track is None
     solve_scenario(sc)
     for k in KEYS:
         if k.section == part and (k.shapes and shape not in k.shapes or k.name == "shape"):
             continue
-        if k.section in ("wheel", "track") and k.section != part:
+        if k.section in ("wheel", "track", "hub", "ratio") and k.section != part:
             continue  # the other part is solved: only its material or as-built keys appear
-        if k.path == "wheel.axle_m" and shape == "polar":
+        if k.path in ("wheel.axle_m", "hub.axle_m") and shape == "polar":
+            continue
+        if k.path == "hub.lobes" and shape == "circle":
             continue
         block = text.split(f"[{k.section}]\n", 1)[1].split("\n[", 1)[0]
         line = re.search(rf"^(# )?{re.escape(k.name)} =", block, flags=re.M)
@@ -36,7 +44,8 @@ def test_template_loads_solves_and_lists_every_key(part, shape):
         if k.unit not in ("", "-"):
             assert comment.startswith(f"# {k.unit};"), k.path
     for section in SECTIONS:
-        assert f"[{section}]" in text
+        given = section == part or section not in ("hub", "ratio", "track")
+        assert (f"[{section}]" in text) == (given or section == "track" and part == "wheel"), section
 
 
 def test_new_writes_the_file_once(tmp_path, capsys):

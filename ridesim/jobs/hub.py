@@ -16,7 +16,7 @@ from ridesim.assess.hub import HubAssessment, assess_hub
 from ridesim.errors import ScenarioError
 from ridesim.safety import caution_lines, with_safety
 from ridesim.scenario.build import solve_hub_scenario
-from ridesim.scenario.load import Scenario
+from ridesim.scenario.load import Scenario, WheelSpec
 
 __all__ = ["HUB_JOBS", "HubCheckResult", "HubSimResult", "check_hub", "simulate_hub", "solve_hub_text",
            "require_line", "render_hub"]
@@ -69,12 +69,21 @@ def solve_hub_text(sc: Scenario, out: dict) -> str:
     -------
     str
     """
-    if sc.wheel is None:
-        raise ScenarioError("a hub needs a [wheel] with its shape")
     where = "around the hub" if out["side"] == "outside" else "inside the ring"
+    hub = "hub" if out["side"] == "outside" else "ring"
+    if sc.hub is not None:
+        solved = (f"solved the wheel rolling {where} for the {sc.hub.shape} {hub}"
+                  + ("" if sc.hub.lobes is None else f" (hub.lobes = {sc.hub.lobes})"))
+    elif sc.ratio is not None:
+        kind = "external" if out["side"] == "outside" else "internal"
+        key = "ratio.formula" if sc.ratio.formula is not None else "ratio.points_rad"
+        solved = f"designed both pitch curves ({kind} gears) for the required speed ratio ({key})"
+    elif sc.wheel is not None:
+        solved = f"solved the {hub} for the {sc.wheel.shape} wheel rolling {where}"
+    else:
+        raise ScenarioError("a hub path needs a [wheel] with its shape, a [hub] or a [ratio]")
     lines = [f"scenario: {sc.name}",
-             f"solved the {'hub' if out['side'] == 'outside' else 'ring'} for the"
-             f" {sc.wheel.shape} wheel rolling {where}",
+             solved,
              f"centre distance:       {_mm(out['centre_distance_m'])}",
              f"ratio:                 {out['ratio']:.9g} wheel turns per hub turn"
              f" ({out['hub_lobes']} hub lobe(s))"]
@@ -313,9 +322,7 @@ def simulate_hub(sc: Scenario) -> HubSimResult:
     if sc.drive.mode == "torque":
         raise ScenarioError("simulate turns a hub pair's wheel at a constant shaft speed: use"
                             " drive.mode = \"shaft_speed\" (or \"speed\")")
-    if sc.wheel is None:
-        raise ScenarioError("a hub needs a [wheel] with its shape")
-    spec = sc.wheel
+    spec = sc.wheel if sc.wheel is not None else WheelSpec(shape=None)
     pair = solve_hub_scenario(sc)
     if not pair.closed:
         raise ScenarioError("the hub does not close at path.centre_distance_m; give path.ratio")

@@ -19,14 +19,14 @@ from ridesim.errors import RidesimError, ScenarioError
 from ridesim.model.track import Track
 from ridesim.model.wheel import MassProperties, Wheel
 from ridesim.scenario.drawing import is_drawing, read_drawing, read_profile_drawing
-from ridesim.scenario.load import Scenario, TrackSpec, WheelSpec
+from ridesim.scenario.load import HubSpec, OutlineSpec, PathSpec, RatioSpec, Scenario, TrackSpec, WheelSpec
 from ridesim.solve.forward import track_for
-from ridesim.solve.hub import HubPair, hub_for
+from ridesim.solve.hub import HubPair, gears_for_ratio, hub_for, wheel_for_hub
 from ridesim.solve.inverse import wheel_for
 from ridesim.solve.pair import RollingPair
 
-__all__ = ["read_points_csv", "wheel_from_spec", "track_from_spec", "solve_scenario", "wheel_mass",
-           "resolve_wheelbase", "solve_hub_scenario"]
+__all__ = ["read_points_csv", "wheel_from_spec", "outline_from_spec", "track_from_spec",
+           "solve_scenario", "wheel_mass", "resolve_wheelbase", "solve_hub_scenario"]
 
 
 _CSV_UNITS_M = {"m": 1.0, "mm": 1e-3}
@@ -195,38 +195,60 @@ def wheel_from_spec(spec: WheelSpec) -> Wheel:
     -------
     Wheel
     """
+    # Rounded corners shape the wheel itself only when the track is to fit them; else they
+    # are the simulated wheel's edge radius on the track solved for sharp corners.
+    cr = float(spec.corner_radius_m) if spec.fit_track_to_corners else 0.0
+    return outline_from_spec(spec, "wheel", corner_radius=cr)
+
+
+def outline_from_spec(spec: OutlineSpec, section: str, *, corner_radius: float = 0.0) -> Wheel:
+    """Build the outline of a ``[wheel]`` or a ``[hub]`` (the same shapes and keys).
+
+    Parameters
+    ----------
+    spec : OutlineSpec
+        Validated section (a :class:`WheelSpec` or a :class:`HubSpec`).
+    section : str
+        ``"wheel"`` or ``"hub"``: the key prefix of error messages.
+    corner_radius : float
+        Polygon corners rounded to this radius [m] (0: sharp).
+
+    Returns
+    -------
+    Wheel
+        The outline about its axle (a hub: about its centre).
+    """
     s = spec.shape
     ax = spec.axle_m
     if s == "polygon":
-        # Rounded corners shape the wheel itself only when the track is to fit them; else they
-        # are the simulated wheel's edge radius on the track solved for sharp corners.
-        cr = float(spec.corner_radius_m) if spec.fit_track_to_corners else 0.0
         if spec.vertices_m is not None:
-            return _wrap("wheel", Wheel.polygon_from_vertices, spec.vertices_m, axle=ax,
-                         corner_radius=cr)
-        return _wrap("wheel", Wheel.polygon, spec.sides, apothem=spec.apothem_m,
+            return _wrap(section, Wheel.polygon_from_vertices, spec.vertices_m, axle=ax,
+                         corner_radius=corner_radius)
+        return _wrap(section, Wheel.polygon, spec.sides, apothem=spec.apothem_m,
                      circumradius=spec.circumradius_m, side=spec.side_m, axle=ax,
-                     corner_radius=cr)
+                     corner_radius=corner_radius)
     if s == "ellipse":
-        return _wrap("wheel", Wheel.ellipse, spec.semi_axes_m, axle=ax)
+        return _wrap(section, Wheel.ellipse, spec.semi_axes_m, axle=ax)
     if s == "circle":
-        return _wrap("wheel", Wheel.circle, spec.radius_m, axle=ax)
+        return _wrap(section, Wheel.circle, spec.radius_m, axle=ax)
     if s == "polar":
-        return _wrap("wheel.radius_formula", Wheel.polar, spec.radius_formula)
+        return _wrap(f"{section}.radius_formula", Wheel.polar, spec.radius_formula)
     pts: np.ndarray | tuple[tuple[float, float], ...]
     if spec.file is not None and is_drawing(spec.file):
-        drawn = read_drawing(spec.file, "wheel.file", layer=spec.layer, ident=spec.id, units=spec.units)
+        drawn = read_drawing(spec.file, f"{section}.file", layer=spec.layer, ident=spec.id,
+                             units=spec.units)
         pts = drawn.points_m
         if ax is None:
             if drawn.axle_m is None:
-                raise ScenarioError(f"wheel.file: {Path(spec.file).name} has no circle inside the outline"
-                                    " to mark the axle; give wheel.axle_m = [x, y] (m, drawing frame)")
+                raise ScenarioError(f"{section}.file: {Path(spec.file).name} has no circle inside the"
+                                    f" outline to mark the centre; give {section}.axle_m = [x, y]"
+                                    " (m, drawing frame)")
             ax = drawn.axle_m
     else:
-        pts = _listed_points(spec, "wheel")
+        pts = _listed_points(spec, section)
     if ax is None:
         ax = (0.0, 0.0)
-    return _wrap("wheel", Wheel.outline, pts, axle=ax, **_corner_args(spec))
+    return _wrap(section, Wheel.outline, pts, axle=ax, **_corner_args(spec))
 
 
 def _corner_args(spec) -> dict:
@@ -236,7 +258,7 @@ def _corner_args(spec) -> dict:
     return out
 
 
-def _listed_points(spec: WheelSpec | TrackSpec, section: str) -> np.ndarray | tuple:
+def _listed_points(spec: OutlineSpec | TrackSpec, section: str) -> np.ndarray | tuple:
     """The points of an outline or profile given inline (``points_m``) or as a CSV ``file``."""
     if spec.points_m is not None:
         return spec.points_m
@@ -325,7 +347,8 @@ def solve_track_scenario(sc: Scenario) -> RollingPair:
     return _check_pair(where, pair)
 
 
-def _check_size(where: str, wheel: Wheel, corner_radius_m: float | None = None) -> None:
+def _check_size(where: str, wheel: Wheel, corner_radius_m: float | None = None, *,
+                what: str = "wheel") -> None:
     """Refuse a wheel whose radius is not finite or lies outside the sizes ridesim computes with.
 
     The limits are :data:`~ridesim.scenario.schema.MIN_LENGTH_M` and
@@ -337,11 +360,11 @@ def _check_size(where: str, wheel: Wheel, corner_radius_m: float | None = None) 
     with np.errstate(all="ignore"):
         r = np.asarray(wheel.radius(np.linspace(0.0, 2.0 * np.pi, 720, endpoint=False)), float)
     if not np.all(np.isfinite(r)):
-        raise ScenarioError(f"{where}: the wheel's radius is not a finite number at every angle;"
+        raise ScenarioError(f"{where}: the {what}'s radius is not a finite number at every angle;"
                             " check the formula or the values")
     lo, hi = float(r.min()), float(r.max())
     if lo < MIN_LENGTH_M * (1.0 - 1e-9) or hi > MAX_LENGTH_M * (1.0 + 1e-9):
-        raise ScenarioError(f"{where}: the wheel's radius runs from {lo:.3g} to {hi:.3g} m,"
+        raise ScenarioError(f"{where}: the {what}'s radius runs from {lo:.3g} to {hi:.3g} m,"
                             f" outside the sizes ridesim computes with ({MIN_LENGTH_M:g} to"
                             f" {MAX_LENGTH_M:g} m); check the values and their units")
     if corner_radius_m is not None and corner_radius_m >= lo:
@@ -366,25 +389,84 @@ def _check_pair(where: str, pair: RollingPair) -> RollingPair:
 
 
 def solve_hub_scenario(sc: Scenario) -> HubPair:
-    """Solve the hub (or ring) for the scenario's wheel with its axle on a circle.
+    """Solve a hub path's pair from its given side: the wheel, the hub, or a speed ratio.
+
+    A ``[wheel]`` shape: the hub (or ring) for it (:func:`~ridesim.solve.hub.hub_for`). A
+    ``[hub]``: the wheel for it (:func:`~ridesim.solve.hub.wheel_for_hub` with ``hub.lobes``;
+    a circle hub: the circle wheel that gives ``path.ratio`` or ``path.centre_distance_m``).
+    A ``[ratio]``: both pitch curves (:func:`~ridesim.solve.hub.gears_for_ratio` at
+    ``path.centre_distance_m``). Every job goes on from the pair alike.
 
     Parameters
     ----------
     sc : Scenario
-        Validated scenario with ``path.kind = "hub"`` and a ``[wheel]``.
+        Validated scenario with ``path.kind = "hub"``.
 
     Returns
     -------
     HubPair
     """
     p = sc.path
-    if not p.is_hub or sc.wheel is None or sc.wheel.shape is None:
-        raise ScenarioError("a hub solve needs path.kind = \"hub\" and a [wheel] with its shape")
+    if not p.is_hub:
+        raise ScenarioError("a hub solve needs path.kind = \"hub\"")
+    if sc.hub is not None:
+        return _pair_for_hub(sc.hub, p)
+    if sc.ratio is not None:
+        return _pair_for_ratio(sc.ratio, p)
+    if sc.wheel is None or sc.wheel.shape is None:
+        raise ScenarioError("a hub path needs a [wheel] with its shape, a [hub] or a [ratio]")
     w = wheel_from_spec(sc.wheel)
+    return _hub_for_wheel(w, sc)
+
+
+def _hub_for_wheel(w: Wheel, sc: Scenario) -> HubPair:
+    p = sc.path
     if p.centre_distance_m is not None:
         return _wrap("path.centre_distance_m", hub_for, w, centre_distance=p.centre_distance_m,
                      side=p.side)
     return _wrap("path.ratio", hub_for, w, ratio=p.ratio if p.ratio is not None else 1, side=p.side)
+
+
+def _pair_for_hub(spec: HubSpec, p: PathSpec) -> HubPair:
+    """The wheel for the scenario's ``[hub]``, with one-line errors naming the key to change."""
+    hub = outline_from_spec(spec, "hub")
+    _check_size("hub", hub, what="hub")
+    if hub.is_round:  # any circle wheel rolls on it: path.ratio or centre_distance_m sizes it
+        rho0 = float(hub.radius(0.0))
+        if p.centre_distance_m is not None:
+            E = float(p.centre_distance_m)
+            R = E - rho0 if p.side == "outside" else rho0 - E
+            if not R > 0:
+                need = f"> {rho0:.6g} m" if p.side == "outside" else f"< {rho0:.6g} m"
+                raise ScenarioError(f"path.centre_distance_m = {E:.6g} m leaves no room for a wheel on"
+                                    f" a circle hub of radius {rho0:.6g} m; use a centre distance"
+                                    f" {need} (the hub's radius plus or minus the wheel's)")
+        else:
+            k = float(p.ratio) if p.ratio is not None else 1.0
+            R = rho0 / k  # ratio = wheel turns per hub turn = rho0 / R (rolling circles)
+        _check_size("hub", Wheel.circle(R), what="wheel")
+        pair = _wrap("path.ratio", hub_for, Wheel.circle(R), ratio=rho0 / R, side=p.side)
+        pair.solved_from = "hub"
+        return pair
+    lobes = int(spec.lobes if spec.lobes is not None else 1)
+    pair = _wrap("hub.lobes", wheel_for_hub, hub, lobes=lobes, side=p.side)
+    if not pair.closed:
+        raise ScenarioError(f"hub.lobes = {lobes}: no wheel closes on this hub ({pair.closure_gap_rad:+.3g}"
+                            " rad from a full turn); try another lobes count")
+    _check_size("hub.lobes", pair.wheel, what="solved wheel")
+    return pair
+
+
+def _pair_for_ratio(spec: RatioSpec, p: PathSpec) -> HubPair:
+    """Both pitch curves for the scenario's ``[ratio]`` at ``path.centre_distance_m``."""
+    key = "ratio.formula" if spec.formula is not None else "ratio.points_rad"
+    if p.centre_distance_m is None:
+        raise ScenarioError("[ratio] needs path.centre_distance_m (the distance between the gear"
+                            " centres)")
+    given = spec.given if isinstance(spec.given, str) else np.asarray(spec.given, dtype=float)
+    pair = _wrap(key, gears_for_ratio, given, centre_distance=p.centre_distance_m, side=p.side)
+    _check_size(key, pair.wheel, what="driving pitch curve")
+    return pair
 
 
 def resolve_wheelbase(sc: Scenario, pair: RollingPair) -> Scenario:

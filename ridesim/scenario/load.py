@@ -62,6 +62,9 @@ __all__ = [
     "DEFAULT_WHEEL_DENSITY_KG_M3",
     "MAX_TIMESTEP_S",
     "WheelSpec",
+    "OutlineSpec",
+    "HubSpec",
+    "RatioSpec",
     "TrackSpec",
     "ExportSpec",
     "VehicleSpec",
@@ -92,6 +95,10 @@ _WHEEL_SHAPE_KEYS: dict[str, tuple[str, ...]] = {
     shape: section_keys("wheel", shape) for shape in WHEEL_SHAPES
 }
 _WHEEL_COMMON = tuple(k for k in section_keys("wheel") if not KEY[f"wheel.{k}"].shapes)
+_HUB_SHAPE_KEYS: dict[str, tuple[str, ...]] = {
+    shape: section_keys("hub", shape) for shape in WHEEL_SHAPES
+}
+_HUB_COMMON = tuple(k for k in section_keys("hub") if not KEY[f"hub.{k}"].shapes)
 _TRACK_SHAPE_KEYS: dict[str, tuple[str, ...]] = {
     shape: section_keys("track", shape) for shape in TRACK_SHAPES
 }
@@ -109,6 +116,8 @@ _EXCLUSIVE: dict[str, tuple[tuple[str, ...], ...]] = {
     "track": (("points_m", "file"), ("lobes", "depth_m")),
     "vehicle": (("wheelbase_m", "wheelbase_periods"),),
     "path": (("centre_distance_m", "ratio"),),
+    "hub": (_POLYGON_SIZES, ("points_m", "file")),
+    "ratio": (("formula", "points_rad"),),
 }
 
 _POLYGON_NAMES = {
@@ -134,7 +143,74 @@ _MISSING: Any = object()
 
 
 @dataclass(frozen=True)
-class WheelSpec:
+class OutlineSpec:
+    """A validated outline: the shape keys a ``[wheel]`` and a ``[hub]`` share.
+
+    See :class:`WheelSpec` for the fields; a hub's ``axle_m`` is its centre (pivot).
+    """
+
+    shape: str | None
+    sides: int | None = default_of("wheel.sides")
+    apothem_m: float | None = default_of("wheel.apothem_m")
+    circumradius_m: float | None = default_of("wheel.circumradius_m")
+    side_m: float | None = default_of("wheel.side_m")
+    vertices_m: tuple[Point, ...] | None = default_of("wheel.vertices_m")
+    semi_axes_m: Point | None = default_of("wheel.semi_axes_m")
+    radius_m: float | None = default_of("wheel.radius_m")
+    radius_formula: str | None = default_of("wheel.radius_formula")
+    points_m: tuple[Point, ...] | None = default_of("wheel.points_m")
+    file: str | None = default_of("wheel.file")
+    layer: str | None = default_of("wheel.layer")
+    id: str | None = default_of("wheel.id")
+    units: str | None = default_of("wheel.units")
+    corner_angle_deg: float | None = default_of("wheel.corner_angle_deg")
+    corners: str | tuple[int, ...] | None = default_of("wheel.corners")
+    axle_m: Point | None = default_of("wheel.axle_m")
+
+
+@dataclass(frozen=True)
+class HubSpec(OutlineSpec):
+    """Validated ``[hub]`` section: the given hub (or ring) outline; the wheel is solved for it.
+
+    The outline fields are those of :class:`WheelSpec` (``axle_m`` is the hub's centre).
+
+    Attributes
+    ----------
+    lobes : int or None
+        The solved wheel's lobes: hub pattern repeats per wheel turn (>= 1). None for a
+        circle hub, whose wheel is sized by ``path.ratio`` or ``path.centre_distance_m``.
+    """
+
+    lobes: int | None = default_of("hub.lobes")
+
+
+@dataclass(frozen=True)
+class RatioSpec:
+    """Validated ``[ratio]`` section: a gear pair's required speed ratio (both curves solved).
+
+    Attributes
+    ----------
+    formula : str or None
+        Driven over driving speed as a formula in ``theta`` [rad] (stored unparsed).
+    points_rad : tuple of (float, float) or None
+        The same as rows ``(theta_rad, ratio)``, theta rising over at most one turn.
+    """
+
+    formula: str | None = default_of("ratio.formula")
+    points_rad: tuple[Point, ...] | None = default_of("ratio.points_rad")
+
+    @property
+    def given(self) -> str | tuple[Point, ...]:
+        """The formula, or the table rows: what :func:`ridesim.solve.hub.gears_for_ratio` takes."""
+        if self.formula is not None:
+            return self.formula
+        if self.points_rad is None:  # not reached for a parsed section
+            raise ScenarioError("ratio: give ratio.formula or ratio.points_rad")
+        return self.points_rad
+
+
+@dataclass(frozen=True)
+class WheelSpec(OutlineSpec):
     """Validated ``[wheel]`` section: the wheel outline and its mass properties.
 
     Only the fields of the chosen ``shape`` are set; the others are None.
@@ -202,23 +278,6 @@ class WheelSpec:
         As-built axle hole position minus the nominal one [x, y] in m.
     """
 
-    shape: str | None
-    sides: int | None = default_of("wheel.sides")
-    apothem_m: float | None = default_of("wheel.apothem_m")
-    circumradius_m: float | None = default_of("wheel.circumradius_m")
-    side_m: float | None = default_of("wheel.side_m")
-    vertices_m: tuple[Point, ...] | None = default_of("wheel.vertices_m")
-    semi_axes_m: Point | None = default_of("wheel.semi_axes_m")
-    radius_m: float | None = default_of("wheel.radius_m")
-    radius_formula: str | None = default_of("wheel.radius_formula")
-    points_m: tuple[Point, ...] | None = default_of("wheel.points_m")
-    file: str | None = default_of("wheel.file")
-    layer: str | None = default_of("wheel.layer")
-    id: str | None = default_of("wheel.id")
-    units: str | None = default_of("wheel.units")
-    corner_angle_deg: float | None = default_of("wheel.corner_angle_deg")
-    corners: str | tuple[int, ...] | None = default_of("wheel.corners")
-    axle_m: Point | None = default_of("wheel.axle_m")
     thickness_m: float = default_of("wheel.thickness_m")
     density_kg_m3: float = default_of("wheel.density_kg_m3")
     mass_kg: float | None = default_of("wheel.mass_kg")
@@ -609,6 +668,10 @@ class Scenario:
         such as ``"<dict>"``.
     base_dir : str
         Absolute folder against which relative ``file`` keys are resolved.
+    hub : HubSpec or None
+        The given hub (or ring) of a hub path, its wheel solved; None otherwise.
+    ratio : RatioSpec or None
+        The required speed ratio of a gear pair, both pitch curves solved; None otherwise.
     warnings : tuple of str
         One line per value outside the plausible range of real builds (see
         :attr:`warnings`).
@@ -626,6 +689,8 @@ class Scenario:
     motor: MotorSpec = MotorSpec()
     path: PathSpec = PathSpec()
     export: ExportSpec = ExportSpec()
+    hub: HubSpec | None = None
+    ratio: RatioSpec | None = None
     source: str = field(default="<dict>", compare=False)
     base_dir: str = field(default=".", compare=False)
 
@@ -677,6 +742,13 @@ class Scenario:
         out["run"] = _spec_dict(self.run)
         out["duty"] = _spec_dict(self.duty)
         out["motor"] = _spec_dict(self.motor)
+        if self.hub is not None:
+            hub = _spec_dict(self.hub)
+            if self.hub.shape == "polar":
+                del hub["axle_m"]
+            out["hub"] = hub
+        if self.ratio is not None:
+            out["ratio"] = _spec_dict(self.ratio)
         if self.path != PathSpec():
             out["path"] = _spec_dict(self.path)
         out["export"] = _spec_dict(self.export)
@@ -741,7 +813,7 @@ class Scenario:
                     if name not in group:
                         continue
                     siblings = [g for g in group if g != name]
-                    if section == "wheel" and name == "vertices_m":
+                    if section in ("wheel", "hub") and name == "vertices_m":
                         siblings.append("sides")
                     for sibling in siblings:
                         if (section, sibling) not in changed:
@@ -911,6 +983,12 @@ def scenario_from_dict(
         MAX_DESCRIPTION_CHARS, allow="\n\t")
 
     has_wheel, has_track = "wheel" in data, "track" in data
+    given_pair = [s for s in ("hub", "ratio") if s in data]  # the given side of a hub pair
+    if len(given_pair) > 1:
+        raise ScenarioError("give [hub] or [ratio], not both: [hub] is a given hub (the wheel is"
+                            " solved), [ratio] a required speed ratio (both curves are solved)")
+    if given_pair:
+        return _hub_given_scenario(data, given_pair[0], base, source, name, description)
     material_only = (
         has_wheel and has_track and isinstance(data["wheel"], Mapping)
         and "shape" not in data["wheel"]
@@ -931,9 +1009,11 @@ def scenario_from_dict(
     path = _parse_path(data.get("path", {}))
     if path.is_hub and not has_wheel:
         raise ScenarioError(
-            "path.kind = \"hub\" needs a [wheel] (the hub is solved for it); a [track] belongs"
-            " to a straight path: remove [path] or give the wheel"
+            "path.kind = \"hub\" needs a [wheel] (the hub is solved for it), a [hub] or a"
+            " [ratio]; a [track] belongs to a straight path: remove [path] or give the wheel"
         )
+    if path.is_hub and path.side == "inside" and path.centre_distance_m is None and path.ratio is None:
+        raise ScenarioError("path.side = \"inside\" needs path.ratio (> 1) or path.centre_distance_m")
     if path.is_hub and has_track:
         raise ScenarioError("path.kind = \"hub\": the hub replaces the track; remove [track]")
     wheel: WheelSpec | None
@@ -964,51 +1044,121 @@ def scenario_from_dict(
     )
 
 
+def _hub_given_scenario(data: Mapping[str, Any], given: str, base: Path, source: str, name: str,
+                        description: str) -> Scenario:
+    """A hub scenario whose given side is ``[hub]`` (the wheel solved) or ``[ratio]`` (both).
+
+    ``[wheel]`` may then hold its material only (the hub's too, for the simulation); a wheel
+    shape, a ``[track]`` or a straight path is refused with one line.
+    """
+    other = "the wheel is solved for the hub" if given == "hub" else "both pitch curves are solved"
+    if "track" in data:
+        raise ScenarioError(f"[{given}] belongs to a hub path ({other}); remove [track]")
+    path = _parse_path(data.get("path", {}))
+    if not path.is_hub:
+        raise ScenarioError(f"[{given}] needs path.kind = \"hub\" ({other}); add [path] with"
+                            " kind = \"hub\"")
+    raw_wheel = data.get("wheel", {})
+    if isinstance(raw_wheel, Mapping) and "shape" in raw_wheel:
+        raise ScenarioError(
+            f"give the wheel's shape or [{given}], not both ({other}); remove wheel.shape and its"
+            f" size keys, [wheel] may then hold only {', '.join(_WHEEL_MATERIAL)}"
+        )
+    wheel = _parse_wheel_material(raw_wheel, beside=f"[{given}]") if "wheel" in data else None
+    hub: HubSpec | None = None
+    ratio: RatioSpec | None = None
+    if given == "hub":
+        hub = _parse_hub(data["hub"], base)
+        if hub.shape == "circle":
+            if path.side == "inside" and path.centre_distance_m is None and path.ratio is None:
+                raise ScenarioError("path.side = \"inside\" with a circle hub needs path.ratio"
+                                    " (> 1) or path.centre_distance_m to size the wheel")
+        else:
+            for k in ("ratio", "centre_distance_m"):
+                if getattr(path, k) is not None:
+                    raise ScenarioError(
+                        f"path.{k} cannot be given with a [hub] of shape \"{hub.shape}\": the"
+                        " hub and hub.lobes set the centre distance and the ratio; remove"
+                        f" path.{k}")
+    else:
+        ratio = _parse_ratio(data["ratio"])
+        if path.ratio is not None:
+            raise ScenarioError("path.ratio cannot be given with [ratio] (the required speed ratio"
+                                " sets the turns); give path.centre_distance_m instead")
+        if path.centre_distance_m is None:
+            raise ScenarioError("[ratio] needs path.centre_distance_m (the distance between the"
+                                " gear centres); add e.g. centre_distance_m = 0.1 to [path]")
+    return Scenario(
+        name=name,
+        description=description,
+        wheel=wheel,
+        track=None,
+        vehicle=_parse_vehicle(data.get("vehicle", {})),
+        drive=_parse_drive(data.get("drive", {})),
+        surface=_parse_surface(data.get("surface", {})),
+        run=_parse_run(data.get("run", {})),
+        duty=_parse_duty(data.get("duty", {})),
+        motor=_parse_motor(data.get("motor", {})),
+        path=path,
+        export=_parse_export(data.get("export", {})),
+        hub=hub,
+        ratio=ratio,
+        source=source,
+        base_dir=str(base),
+    )
+
+
 # ----------------------------------------------------------------------------
 # Sections
 # ----------------------------------------------------------------------------
 
 
-def _parse_wheel(raw: Any, base: Path) -> WheelSpec:
-    """Validate the ``[wheel]`` section."""
-    t = _Table("wheel", raw)
+def _parse_outline(t: _Table, base: Path) -> dict[str, Any]:
+    """Read an outline's shape and shape keys (``[wheel]`` or ``[hub]``, same keys and checks).
+
+    Returns the spec values of the shape keys and ``axle_m``; the caller reads the rest.
+    """
+    sec = t.path
+    shape_keys = _HUB_SHAPE_KEYS if sec == "hub" else _WHEEL_SHAPE_KEYS
+    common = _HUB_COMMON if sec == "hub" else _WHEEL_COMMON
     if not t.has("shape"):
-        raise ScenarioError(f"wheel.shape is required; use one of {', '.join(WHEEL_SHAPES)}")
+        raise ScenarioError(f"{sec}.shape is required; use one of {', '.join(WHEEL_SHAPES)}")
     shape = t.get("shape", hint=_polygon_name_hint)
-    own = _WHEEL_SHAPE_KEYS[shape]
-    allowed = set(_WHEEL_COMMON) | set(own)
+    own = shape_keys[shape]
+    allowed = set(common) | set(own)
     if shape == "polar":
         allowed.discard("axle_m")
-    every = set(_WHEEL_COMMON).union(*_WHEEL_SHAPE_KEYS.values())
+    every = set(common).union(*shape_keys.values())
     for key in t.keys():
         if key in allowed:
             continue
         if key in every:
             if key == "axle_m":
-                fix = "the polar radius is measured from the axle; shift the formula instead"
+                centre = "the axle" if sec == "wheel" else "the hub's centre"
+                fix = f"the polar radius is measured from {centre}; shift the formula instead"
             elif key == "fit_track_to_corners":
                 fix = "it applies to polygon wheels only; remove it"
             else:
                 fix = ("use one of "
                        + ", ".join(k for k in own if k not in ("sides", "fit_track_to_corners")))
-            raise ScenarioError(f"wheel.{key} is not used by shape \"{shape}\"; {fix}")
-        raise _unknown("wheel", key, sorted(allowed), sorted(every))
+            raise ScenarioError(f"{sec}.{key} is not used by shape \"{shape}\"; {fix}")
+        raise _unknown(sec, key, sorted(allowed), sorted(every))
 
     values: dict[str, Any] = {"shape": shape}
     if shape == "polygon":
         sizes = [k for k in _POLYGON_SIZES if t.has(k)]
         if len(sizes) != 1:
             raise ScenarioError(
-                f"wheel: give exactly one of {', '.join(_POLYGON_SIZES)}" + _got_keys(sizes)
+                f"{sec}: give exactly one of {', '.join(_POLYGON_SIZES)}" + _got_keys(sizes)
             )
         if sizes == ["vertices_m"]:
             vertices = t.points("vertices_m")
-            _check_area("wheel.vertices_m", vertices)
+            _check_area(f"{sec}.vertices_m", vertices)
             values["vertices_m"] = vertices
             sides = t.get("sides")
             if sides is not None and sides != len(vertices):
                 raise ScenarioError(
-                    f"wheel.sides must equal the {len(vertices)} points of vertices_m, "
+                    f"{sec}.sides must equal the {len(vertices)} points of vertices_m, "
                     f"got {sides}; remove sides"
                 )
             values["sides"] = sides
@@ -1035,7 +1185,7 @@ def _parse_wheel(raw: Any, base: Path) -> WheelSpec:
     else:  # outline
         _point_source(t, "outline", values, base)
         if values["points_m"] is not None:
-            _check_area("wheel.points_m", values["points_m"])
+            _check_area(f"{sec}.points_m", values["points_m"])
         drawing = _drawing_keys(t, values)
         values["corner_angle_deg"] = t.get("corner_angle_deg")
         values["corners"] = _corners(t)
@@ -1044,6 +1194,14 @@ def _parse_wheel(raw: Any, base: Path) -> WheelSpec:
         values["axle_m"] = t.get("axle_m")
         if shape == "outline" and drawing and not t.has("axle_m"):
             values["axle_m"] = None  # the smallest circle inside the drawn outline
+    return values
+
+
+def _parse_wheel(raw: Any, base: Path) -> WheelSpec:
+    """Validate the ``[wheel]`` section."""
+    t = _Table("wheel", raw)
+    values = _parse_outline(t, base)
+    shape = values["shape"]
     values.update({name: t.get(name) for name in _WHEEL_MATERIAL})
     if shape == "polygon" and t.get("fit_track_to_corners"):
         if values["corner_radius_m"] <= 0:
@@ -1059,16 +1217,47 @@ _WHEEL_MATERIAL = ("thickness_m", "density_kg_m3", "mass_kg", "inertia_kg_m2", "
                    "scale", "axle_error_m")
 
 
-def _parse_wheel_material(raw: Any) -> WheelSpec:
-    """Validate a shape-less ``[wheel]`` beside ``[track]``: material keys only."""
+def _parse_wheel_material(raw: Any, beside: str = "[track]") -> WheelSpec:
+    """Validate a shape-less ``[wheel]`` beside ``[track]`` (or ``[hub]``, ``[ratio]``)."""
     t = _Table("wheel", raw)
     for key in t.keys():
         if key not in _WHEEL_MATERIAL:
             raise ScenarioError(
-                f"wheel.{key} cannot be given beside [track] (the solver derives the wheel's"
+                f"wheel.{key} cannot be given beside {beside} (the solver derives the wheel's"
                 f" shape); only {', '.join(_WHEEL_MATERIAL)} are allowed"
             )
     return WheelSpec(shape=None, axle_m=(0.0, 0.0), **{name: t.get(name) for name in _WHEEL_MATERIAL})
+
+
+def _parse_hub(raw: Any, base: Path) -> HubSpec:
+    """Validate the ``[hub]`` section: an outline read as a wheel's is, and ``lobes``."""
+    t = _Table("hub", raw)
+    values = _parse_outline(t, base)
+    if values["shape"] == "circle":
+        if t.has("lobes"):
+            raise ScenarioError("hub.lobes does not apply to a circle hub (any wheel size rolls on"
+                                " it); remove it and size the wheel by path.ratio or"
+                                " path.centre_distance_m")
+        values["lobes"] = None
+    else:
+        values["lobes"] = t.get("lobes")
+    return HubSpec(**values)
+
+
+def _parse_ratio(raw: Any) -> RatioSpec:
+    """Validate the ``[ratio]`` section: exactly one of ``formula`` and ``points_rad``."""
+    t = _Table("ratio", raw)
+    t.only(("formula", "points_rad"))
+    given = [k for k in ("formula", "points_rad") if t.has(k)]
+    if len(given) != 1:
+        raise ScenarioError("ratio: give exactly one of formula, points_rad" + _got_keys(given))
+    if t.has("formula"):
+        return RatioSpec(formula=t.get("formula"))
+    rows = t.points("points_rad")
+    if len(rows) < 4:
+        raise ScenarioError(f"ratio.points_rad must list at least 4 [theta_rad, ratio] rows, got"
+                            f" {len(rows)}")
+    return RatioSpec(points_rad=rows)
 
 
 def _parse_track(raw: Any, base: Path) -> TrackSpec:
@@ -1339,8 +1528,6 @@ def _parse_path(raw: Any) -> PathSpec:
             )
     if spec.centre_distance_m is not None and spec.ratio is not None:
         raise ScenarioError("give path.centre_distance_m or path.ratio, not both")
-    if kind == "hub" and spec.side == "inside" and spec.centre_distance_m is None and spec.ratio is None:
-        raise ScenarioError("path.side = \"inside\" needs path.ratio (> 1) or path.centre_distance_m")
     if kind == "hub" and spec.side == "inside" and spec.view == "gears":
         raise ScenarioError("path.view = \"gears\" needs path.side = \"outside\" (a ring is simulated"
                             " as a carousel); use path.view = \"carousel\" or remove it")

@@ -42,7 +42,7 @@ import math
 import numbers
 import sys
 from collections.abc import Iterable
-from dataclasses import dataclass
+from dataclasses import dataclass, replace
 from typing import Any
 
 from ridesim.validate import is_number
@@ -125,8 +125,8 @@ HUB_SIDES = ("outside", "inside")
 HUB_VIEWS = ("gears", "carousel")
 """Allowed values of ``path.view``: how ``simulate`` runs a hub pair."""
 
-SECTIONS = ("wheel", "track", "path", "vehicle", "drive", "surface", "run", "duty", "motor",
-            "export")
+SECTIONS = ("wheel", "track", "hub", "ratio", "path", "vehicle", "drive", "surface", "run", "duty",
+            "motor", "export")
 """The scenario's sections, in the order of the reference."""
 
 
@@ -231,7 +231,7 @@ _COORD: dict[str, Any] = {"most": MAX_LENGTH_M}
 _POLYGON = ("polygon",)
 _OUTLINE = ("outline",)
 
-KEYS: tuple[Key, ...] = (
+_BASE_KEYS: tuple[Key, ...] = (
     # ---------------------------------------------------------------- [wheel]
     Key("wheel", "shape", "choice", REQUIRED, "",
         "outline type; left out only beside [track] (the wheel is then solved)",
@@ -528,6 +528,56 @@ KEYS: tuple[Key, ...] = (
         "rails the vehicle runs on: wheels per axle and strips per track piece in the cut list",
         ge=1, plausible=(1.0, 4.0), source="common practice: a cart runs on two rails"),
 )
+
+_HUB_SIZE_M = (0.005, 20.0)
+_HUB_SIZE_SRC = "common practice: desk-top gear models to fairground carousels"
+
+
+def _hub_rows(rows: tuple[Key, ...]) -> tuple[Key, ...]:
+    """The ``[hub]`` rows: the wheel's outline keys, for the given hub (or ring).
+
+    A hub is described the same way as a wheel (the same shapes and keys, read by the same
+    parser), about its centre instead of the axle; its material is the ``[wheel]``'s. Only
+    ``shape``, the shape keys (less ``fit_track_to_corners``) and ``axle_m`` (here the hub's
+    centre) are taken, plus ``lobes``.
+    """
+    out = [Key("hub", "shape", "choice", REQUIRED, "",
+               "outline type of the given hub (or ring, path.side = \"inside\"); the wheel is"
+               " solved for it (path.kind = \"hub\"; [wheel] then holds material keys only)",
+               choices=WHEEL_SHAPES)]
+    for k in rows:
+        if k.section != "wheel" or not k.shapes or k.name == "fit_track_to_corners":
+            continue
+        plaus, src = k.plausible, k.source
+        if plaus == _WHEEL_SIZE_M:
+            plaus, src = _HUB_SIZE_M, _HUB_SIZE_SRC
+        out.append(replace(k, section="hub", doc=k.doc.replace("the axle", "the hub's centre"),
+                           plausible=plaus, source=src))
+    out += [
+        Key("hub", "axle_m", "pair", (0.0, 0.0), "m",
+            "the hub's centre (its pivot) [x, y] in the outline's coordinates (not for polar); a"
+            " DXF or SVG outline: unset means the circle drawn inside it", **_COORD),
+        Key("hub", "lobes", "int", 1, "-",
+            "the solved wheel's lobes: repeats of the hub's pattern the wheel rolls over per"
+            " wheel turn (inside a ring: fewer than the ring's repeats); not for a circle hub,"
+            " whose wheel is sized by path.ratio or path.centre_distance_m", ge=1, most=1000),
+    ]
+    return tuple(out)
+
+
+_RATIO_KEYS: tuple[Key, ...] = (
+    Key("ratio", "formula", "str", REQUIRED, "-",
+        "required speed ratio of a gear pair (driven speed over driving speed) as a formula in"
+        " the driver's angle theta (rad), 2*pi-periodic; both pitch curves are designed for it at"
+        " path.centre_distance_m (path.kind = \"hub\"; give exactly one of formula, points_rad)"),
+    Key("ratio", "points_rad", "points", REQUIRED, "rad",
+        "the same as a table: rows [theta_rad, ratio] (the driver's angle in rad, rising, over"
+        " at most one turn; the ratio dimensionless), at least 4, a periodic cubic spline"
+        " between them (give exactly one of formula, points_rad)",
+        **_COORD, max_len=MAX_POINTS),
+)
+
+KEYS: tuple[Key, ...] = _BASE_KEYS + _hub_rows(_BASE_KEYS) + _RATIO_KEYS
 """Every scenario key, grouped by section (the order of the reference)."""
 
 KEY: dict[str, Key] = {k.path: k for k in KEYS}

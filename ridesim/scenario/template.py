@@ -31,10 +31,17 @@ EXAMPLES: dict[str, Any] = {
     "track.formula": "0.02*cos(2*pi*x/0.3)",
     "track.period_m": 0.3,
     "track.points_m": ((0.0, 0.0), (0.1, -0.02), (0.3, 0.0)),
+    "ratio.formula": "1 + 0.3*cos(2*theta)",
+    "path.kind": "hub",
+    "path.centre_distance_m": 0.12,
 }
+EXAMPLES.update({"hub." + k.split(".", 1)[1]: v for k, v in list(EXAMPLES.items())
+                 if k.startswith("wheel.")})
 
 # Keys of a shape that are alternatives to the example's (written commented out).
-_ALTERNATIVES = {"wheel.circumradius_m", "wheel.side_m", "wheel.vertices_m", "wheel.file", "track.file"}
+_ALTERNATIVES = {"wheel.circumradius_m", "wheel.side_m", "wheel.vertices_m", "wheel.file", "track.file",
+                 "hub.circumradius_m", "hub.side_m", "hub.vertices_m", "hub.file", "ratio.points_rad"}
+_WHEEL_MATERIAL = ("thickness_m", "density_kg_m3", "mass_kg", "inertia_kg_m2")
 
 
 def _toml(value: Any) -> str:
@@ -63,7 +70,8 @@ def _comment(k) -> str:
     return "; ".join(parts)
 
 
-def scenario_template(name: str, wheel: str | None = None, track: str | None = None) -> str:
+def scenario_template(name: str, wheel: str | None = None, track: str | None = None,
+                      hub: str | None = None, ratio: bool = False) -> str:
     """Text of a commented scenario file.
 
     Parameters
@@ -74,21 +82,29 @@ def scenario_template(name: str, wheel: str | None = None, track: str | None = N
         Wheel shape (one of :data:`WHEEL_SHAPES`); default ``"polygon"`` unless ``track``.
     track : str, optional
         Track shape (one of :data:`TRACK_SHAPES`): the wheel is then solved for it.
+    hub : str, optional
+        Hub shape (one of :data:`WHEEL_SHAPES`): a hub path whose wheel is solved for the hub.
+    ratio : bool
+        A gear pair designed for a required speed ratio (``[ratio]``): both curves solved.
 
     Returns
     -------
     str
         TOML text that loads as it is.
     """
-    if wheel is not None and track is not None:
-        raise InputError("give --wheel or --track, not both: the solver derives the other")
-    if track is None and wheel is None:
+    if sum(x is not None for x in (wheel, track, hub)) + bool(ratio) > 1:
+        raise InputError("give one of --wheel, --track, --hub, --ratio: the solver derives the rest")
+    if hub is not None and hub not in WHEEL_SHAPES:
+        raise InputError(f"--hub must be one of {', '.join(WHEEL_SHAPES)}, got {hub!r}")
+    if track is None and wheel is None and hub is None and not ratio:
         wheel = "polygon"
     if wheel is not None and wheel not in WHEEL_SHAPES:
         raise InputError(f"--wheel must be one of {', '.join(WHEEL_SHAPES)}, got {wheel!r}")
     if track is not None and track not in TRACK_SHAPES:
         raise InputError(f"--track must be one of {', '.join(TRACK_SHAPES)}, got {track!r}")
-    given, shape = ("wheel", wheel) if wheel is not None else ("track", track)
+    given, shape = (("wheel", wheel) if wheel is not None else ("track", track) if track is not None
+                    else ("hub", hub) if hub is not None else ("ratio", None))
+    hub_path = given in ("hub", "ratio")
     lines = [
         f"# {name}: a ridesim scenario. Units are SI; every key is listed with its unit, meaning,",
         "# default and ranges (docs/scenario-keys.md has the same table). Lines starting with '#'",
@@ -98,12 +114,15 @@ def scenario_template(name: str, wheel: str | None = None, track: str | None = N
     ]
     for section in SECTIONS:
         rows = [k for k in KEYS if k.section == section]
-        if section in ("wheel", "track"):
+        if section in ("hub", "ratio") and section != given:
+            continue  # the given side of a hub path only
+        if section == "track" and hub_path:
+            continue  # a hub path has no track
+        if section in ("wheel", "track", "hub", "ratio"):
             if section == given:
                 rows = [k for k in rows if not k.shapes or shape in k.shapes]
-            elif section == "wheel":  # beside [track]: the solved wheel's material only
-                rows = [k for k in rows if k.name in ("thickness_m", "density_kg_m3", "mass_kg",
-                                                      "inertia_kg_m2")]
+            elif section == "wheel":  # beside [track], [hub], [ratio]: the wheel's material only
+                rows = [k for k in rows if k.name in _WHEEL_MATERIAL]
             else:  # beside [wheel]: the track's as-built errors only
                 rows = [k for k in rows if k.name in ("height_error_m", "error_seed", "joint_step_m",
                                                       "section_length_m")]
@@ -111,13 +130,17 @@ def scenario_template(name: str, wheel: str | None = None, track: str | None = N
         for k in rows:
             if k.name == "shape":
                 if section == given:
-                    others = WHEEL_SHAPES if section == "wheel" else TRACK_SHAPES
+                    others = TRACK_SHAPES if section == "track" else WHEEL_SHAPES
                     lines.append(f'shape = "{shape}"  # one of {" | ".join(others)}')
                 continue
             if k.name == "axle_m" and shape == "polar":
                 continue
+            if k.path == "hub.lobes" and shape == "circle":
+                continue  # a circle hub's wheel is sized by path.ratio
             lines.append(f"# {_comment(k)}")
-            if k.path in EXAMPLES and k.path not in _ALTERNATIVES and section == given:
+            example = section == given or (hub_path and k.path == "path.kind") or (
+                given == "ratio" and k.path == "path.centre_distance_m")
+            if k.path in EXAMPLES and k.path not in _ALTERNATIVES and example:
                 lines.append(f"{k.name} = {_toml(EXAMPLES[k.path])}")
             elif k.default not in (None, REQUIRED):
                 lines.append(f"# {k.name} = {_toml(k.default)}")
