@@ -377,7 +377,12 @@ def _probe_arrays(result):
 
 @pytest.mark.parametrize("first", ["wheel", "track"])
 def test_explicit_nominal_tolerance_keys_change_nothing(first):
-    """A nominal build with every tolerance key given at its default gives bit-identical results."""
+    """A nominal build with every tolerance key given at its default gives the same results.
+
+    The figures are equal; the probe records are equal to the last bit or two (numpy's vector
+    reductions can round a sum differently with the memory alignment of its operands: one
+    normal force in 600 differed by 1 unit in the last place in one full-suite run, measured).
+    """
     common = {
         "vehicle": {"body_mass_kg": 2.0, "axles": 2, "wheelbase_m": 0.3},
         "drive": {"mode": "speed", "speed_m_s": 0.3},
@@ -398,7 +403,7 @@ def test_explicit_nominal_tolerance_keys_change_nothing(first):
     assert a.to_dict() == b.to_dict()
     pa, pb = _probe_arrays(a), _probe_arrays(b)
     for k in pa:
-        np.testing.assert_array_equal(pa[k], pb[k], err_msg=k)
+        np.testing.assert_allclose(pa[k], pb[k], rtol=4 * np.finfo(float).eps, atol=0.0, err_msg=k)
 
 
 # ----------------------------------------------------------------------------- AsBuilt record
