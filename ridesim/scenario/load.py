@@ -42,6 +42,7 @@ from ridesim.scenario.schema import (
     KEY,
     MAX_DESCRIPTION_CHARS,
     MAX_FILE_BYTES,
+    MAX_HARMONIC,
     MAX_NAME_CHARS,
     MAX_NESTING,
     MAX_TIMESTEP_S,
@@ -87,6 +88,8 @@ DEFAULT_WHEEL_DENSITY_KG_M3 = default_of("wheel.density_kg_m3")
 Point = tuple[float, float]
 
 _POLYGON_SIZES = ("apothem_m", "circumradius_m", "side_m", "vertices_m")
+# Wheel shapes whose radius is measured from the axle (no axle_m).
+_AXLE_AT_ORIGIN = ("polar", "harmonic")
 # Which keys each shape uses, from the key table (ridesim/scenario/schema.py).
 _WHEEL_SHAPE_KEYS: dict[str, tuple[str, ...]] = {
     shape: section_keys("wheel", shape) for shape in WHEEL_SHAPES
@@ -159,6 +162,12 @@ class WheelSpec:
     radius_formula : str or None
         Polar: radius in m as a formula in the polar angle ``phi`` (rad),
         measured from the axle. Stored unparsed.
+    mean_radius_m : float or None
+        Harmonic: ``r0`` in m of ``r(phi) = r0 (1 + sum a_k cos(k phi) + b_k sin(k phi))``
+        about the axle, the radius averaged over the polar angle.
+    harmonics : tuple of (int, float, float) or None
+        Harmonic: the terms ``(k, a_k, b_k)``, coefficients as fractions of ``r0``; ``()``
+        for a circle.
     points_m : tuple of (float, float) or None
         Outline given inline: points [x, y] in m, at least 3.
     file : str or None
@@ -175,7 +184,7 @@ class WheelSpec:
         Outline: "all", "none" or point indices overriding ``corner_angle_deg``.
     axle_m : (float, float) or None
         Axle position [x, y] in m in the coordinates of the outline. Always
-        (0, 0) for ``polar``, whose radius is measured from the axle. None for a
+        (0, 0) for ``polar`` and ``harmonic``, whose radius is measured from the axle. None for a
         drawn outline without it: the smallest circle inside the outline.
     thickness_m : float
         Plate thickness in m.
@@ -211,6 +220,8 @@ class WheelSpec:
     semi_axes_m: Point | None = default_of("wheel.semi_axes_m")
     radius_m: float | None = default_of("wheel.radius_m")
     radius_formula: str | None = default_of("wheel.radius_formula")
+    mean_radius_m: float | None = default_of("wheel.mean_radius_m")
+    harmonics: tuple[tuple[int, float, float], ...] | None = default_of("wheel.harmonics")
     points_m: tuple[Point, ...] | None = default_of("wheel.points_m")
     file: str | None = default_of("wheel.file")
     layer: str | None = default_of("wheel.layer")
@@ -664,7 +675,7 @@ class Scenario:
         out: dict[str, Any] = {"name": self.name, "description": self.description}
         if self.wheel is not None:
             wheel = _spec_dict(self.wheel)
-            if self.wheel.shape in ("polar", None):
+            if self.wheel.shape in (*_AXLE_AT_ORIGIN, None):
                 del wheel["axle_m"]
             out["wheel"] = wheel
         if self.track is not None:
@@ -975,15 +986,18 @@ def _parse_wheel(raw: Any, base: Path) -> WheelSpec:
     shape = t.get("shape", hint=_polygon_name_hint)
     own = _WHEEL_SHAPE_KEYS[shape]
     allowed = set(_WHEEL_COMMON) | set(own)
-    if shape == "polar":
+    if shape in _AXLE_AT_ORIGIN:
         allowed.discard("axle_m")
     every = set(_WHEEL_COMMON).union(*_WHEEL_SHAPE_KEYS.values())
     for key in t.keys():
         if key in allowed:
             continue
         if key in every:
-            if key == "axle_m":
+            if key == "axle_m" and shape == "polar":
                 fix = "the polar radius is measured from the axle; shift the formula instead"
+            elif key == "axle_m":
+                fix = ("the harmonic radius is measured from the axle; a k = 1 term shifts the"
+                       " rim instead")
             elif key == "fit_track_to_corners":
                 fix = "it applies to polygon wheels only; remove it"
             else:
@@ -1030,6 +1044,10 @@ def _parse_wheel(raw: Any, base: Path) -> WheelSpec:
             "radius_formula",
             required="for shape \"polar\"; add e.g. radius_formula = \"0.1 + 0.01*cos(3*phi)\"",
         )
+    elif shape == "harmonic":
+        values["mean_radius_m"] = t.get(
+            "mean_radius_m", required="for shape \"harmonic\"; add e.g. mean_radius_m = 0.1")
+        values["harmonics"] = _terms(t, "harmonics") if t.has("harmonics") else ()
     else:  # outline
         _point_source(t, "outline", values, base)
         if values["points_m"] is not None:
@@ -1038,7 +1056,7 @@ def _parse_wheel(raw: Any, base: Path) -> WheelSpec:
         values["corner_angle_deg"] = t.get("corner_angle_deg")
         values["corners"] = _corners(t)
 
-    if shape != "polar":
+    if shape not in _AXLE_AT_ORIGIN:
         values["axle_m"] = t.get("axle_m")
         if shape == "outline" and drawing and not t.has("axle_m"):
             values["axle_m"] = None  # the smallest circle inside the drawn outline
@@ -1163,6 +1181,30 @@ def _drawing_keys(t: _Table, values: dict[str, Any]) -> bool:
         raise ScenarioError(f"{t.key('units')} must be one of m, cm, mm, in, ft,"
                             f" got {_show(values['units'])}")
     return drawing
+
+
+def _terms(t: _Table, name: str) -> tuple[tuple[int, float, float], ...]:
+    """A list of Fourier terms ``[k, a_k, b_k]``: k a whole number in its range, each k once."""
+    path = t.key(name)
+    items = _as_list(path, t.raw(name), "a list of [k, a_k, b_k] terms, e.g. [[3, 0.05, 0.0]]")
+    out: list[tuple[int, float, float]] = []
+    for i, item in enumerate(items):
+        where = f"{path}[{i}]"
+        row = _as_list(where, item, "a term [k, a_k, b_k] of three numbers")
+        if len(row) != 3:
+            raise ScenarioError(f"{where} must be [k, a_k, b_k] (three numbers), got {_show(item)}"
+                                f" ({len(row)} values)")
+        k = _as_int(f"{where}[0]", row[0])
+        if not 1 <= k <= MAX_HARMONIC:
+            raise ScenarioError(f"{where}[0] is the mode number k: a whole number from 1 to"
+                                f" {MAX_HARMONIC}, got {k}")
+        if any(k == o[0] for o in out):
+            raise ScenarioError(f"{where}: mode k = {k} is listed twice; give each k once (add"
+                                " the coefficients)")
+        a = _as_float(f"{where}[1]", row[1])
+        b = _as_float(f"{where}[2]", row[2])
+        out.append((k, a, b))
+    return tuple(out)
 
 
 def _corners(t: _Table) -> str | tuple[int, ...] | None:
