@@ -29,6 +29,7 @@ import difflib
 import json
 import math
 import numbers
+import re
 import tomllib
 from collections.abc import Iterable, Mapping
 from dataclasses import dataclass, field, fields
@@ -698,8 +699,9 @@ class Scenario:
         ----------
         key : str
             ``"section.key"`` such as ``"surface.friction"``, a top-level key
-            (``"name"``, ``"description"``) or a whole section (``"track"``,
-            with a dict as value).
+            (``"name"``, ``"description"``), a whole section (``"track"``,
+            with a dict as value), or one number of a list key by its indexes
+            counted from 0 (``"wheel.harmonics[0][1]"``: the first term's a_k).
         value : object
             New value in the key's unit; None removes the key so that its
             default applies. Setting one key of a mutually exclusive group
@@ -741,7 +743,10 @@ class Scenario:
             If a key path is malformed or the changed scenario is invalid.
         """
         data = self.to_dict()
-        parsed = [(_split_key_path(k), v) for k, v in changes.items()]
+        items = [(k, v) for k, v in changes.items() if not (isinstance(k, str) and "[" in k)]
+        indexed = [(split_indexed_key(k), v) for k, v in changes.items()
+                   if isinstance(k, str) and "[" in k]
+        parsed = [(_split_key_path(k), v) for k, v in items]
         changed = {parts for parts, _ in parsed}
         for parts, _ in parsed:
             if len(parts) == 2:
@@ -765,6 +770,13 @@ class Scenario:
                     table = {}
                     data[section] = table
                 table[name] = value
+        for (key, index), value in indexed:  # one number of a list, after the whole keys
+            section, name = key.split(".")
+            table = data.get(section)
+            if not isinstance(table, dict) or name not in table:
+                raise ScenarioError(f"{key}{_index_text(index)}: {key} is not set in this scenario;"
+                                    f" set the whole list ({key} = [...]) first")
+            table[name] = set_item(key, table[name], index, value)
         return scenario_from_dict(data, base_dir=self.base_dir, source=self.source)
 
 
@@ -782,6 +794,113 @@ def _plain(value: Any) -> Any:
     if isinstance(value, tuple):
         return [_plain(v) for v in value]
     return value
+
+
+#: Scenario key kinds whose value is a list (of numbers or of lists), whose single numbers
+#: a key path with indexes names (``"wheel.harmonics[0][1]"``).
+LIST_KINDS = ("pair", "points", "reals", "ints", "terms")
+
+_INDEXED = re.compile(r"^([A-Za-z_][A-Za-z0-9_]*\.[A-Za-z_][A-Za-z0-9_]*)((?:\[\d+\])+)$")
+
+
+def _index_text(index: tuple[int, ...]) -> str:
+    return "".join(f"[{i}]" for i in index)
+
+
+def split_indexed_key(key: str) -> tuple[str, tuple[int, ...]]:
+    """Split ``"wheel.harmonics[0][1]"`` into the key and its indexes, ``("wheel.harmonics", (0, 1))``.
+
+    Indexes count from 0. The key must be a list key of the table (:data:`LIST_KINDS`).
+
+    Parameters
+    ----------
+    key : str
+        A dotted key path followed by one or more ``[i]``.
+
+    Returns
+    -------
+    tuple
+        The dotted key and the indexes.
+
+    Raises
+    ------
+    ScenarioError
+        A malformed path, an unknown key, or a key whose value is not a list.
+    """
+    m = _INDEXED.match(key)
+    if m is None:
+        raise ScenarioError(f"{key} is not a key path with indexes; write e.g."
+                            " \"wheel.harmonics[0][1]\" (indexes count from 0)")
+    base, index = m.group(1), tuple(int(i) for i in re.findall(r"\d+", m.group(2)))
+    row = KEY.get(base)
+    if row is None:
+        raise ScenarioError(f"{key}: unknown scenario key {base}; docs/scenario-keys.md lists them")
+    if row.kind not in LIST_KINDS:
+        raise ScenarioError(f"{key}: {base} is not a list key (it holds one {row.kind}); name it"
+                            " without an index")
+    return base, index
+
+
+def item_at(key: str, value: Any, index: tuple[int, ...]) -> Any:
+    """The item of a list key's ``value`` at ``index`` (one line naming a bad index).
+
+    Parameters
+    ----------
+    key : str
+        The dotted key, for the message.
+    value : object
+        The key's value (nested lists or tuples).
+    index : tuple of int
+        Indexes from 0, outermost first.
+
+    Returns
+    -------
+    object
+        The item.
+    """
+    node = value
+    for depth, i in enumerate(index):
+        if not isinstance(node, (list, tuple)):
+            raise ScenarioError(f"{key}{_index_text(index)}: {key}{_index_text(index[:depth])} is a"
+                                f" number, not a list; use fewer indexes")
+        if i >= len(node):
+            raise ScenarioError(f"{key}{_index_text(index)}: index {i} is outside"
+                                f" {key}{_index_text(index[:depth])}, which has {len(node)} items"
+                                f" (0 to {len(node) - 1})")
+        node = node[i]
+    return node
+
+
+def set_item(key: str, value: Any, index: tuple[int, ...], item: Any) -> list:
+    """A copy of a list key's ``value`` (nested lists) with the item at ``index`` replaced.
+
+    Parameters
+    ----------
+    key : str
+        The dotted key, for the message.
+    value : list or tuple
+        The key's value.
+    index : tuple of int
+        Indexes from 0, outermost first (at least one).
+    item : object
+        The new item.
+
+    Returns
+    -------
+    list
+        The new value, as lists.
+    """
+    item_at(key, value, index)  # refuses a bad index in one line
+
+    def lists(v: Any) -> Any:
+        return [lists(x) for x in v] if isinstance(v, (list, tuple)) else v
+
+    out = lists(value)
+    node = out
+    for i in index[:-1]:
+        node = node[i]
+    node[index[-1]] = item
+    return out
 
 
 def _split_key_path(key: Any) -> tuple[str, ...]:
