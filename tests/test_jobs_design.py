@@ -423,3 +423,14 @@ def test_lobed_wheel_demo_brief_finds_a_design_within_its_grip(tmp_path):
     # Its valleys lie deeper than a pure three-lobed wheel's on the same grip can reach:
     # r0 (1 + a*) with a* = 0.4 / sqrt(9 + 0.4^2) (the closed form of the test above).
     assert check["pair"]["depth_max_m"] > 0.12 * (1 + 0.4 / math.sqrt(9.16))
+
+
+def test_trade_off_plot_axes_are_words_with_units():
+    from ridesim.jobs.design.result import figure_label
+
+    assert figure_label("simulate.axle_bounce_m") == "axle bounce [m]"
+    assert figure_label("size-motor.peak_torque_Nm") == "peak motor torque [N m]"
+    assert figure_label("check.friction.required_peak") == "friction needed (peak)"
+    assert figure_label("wheel.harmonics[0][1]") == ("harmonics term 0: cosine coefficient a_k"
+                                                     " [fraction of mean radius]")
+    assert figure_label("simulate.some_new_figure_s") == "simulate.some_new_figure_s [s]"
