@@ -374,7 +374,8 @@ def _build_parser(commands: dict) -> _Parser:
                         " and range.")
     nw.add_argument("name", metavar="NAME", help="scenario name (the file is NAME.toml)")
     nw.add_argument("--wheel", metavar="SHAPE", default=None,
-                    help="wheel shape: polygon | ellipse | circle | polar | outline (default polygon)")
+                    help="wheel shape: polygon | ellipse | circle | polar | harmonic | outline"
+                    " (default polygon)")
     nw.add_argument("--track", metavar="SHAPE", default=None,
                     help="track shape instead: wave | sawtooth | formula | points")
     nw.add_argument("--hub", metavar="SHAPE", default=None,

@@ -336,3 +336,101 @@ def test_ctrl_c_keeps_finished_designs_and_resumes(tmp_path):
     again = run_design(f, out, workers=1).to_dict()
     assert again["computed_now"] == full["evaluations"] - 5
     assert json.dumps(again["candidates"]) == json.dumps(full["candidates"])
+
+
+# ------------------------------------------------------ one number of a list key: harmonics
+
+LOBE = """
+seed = 2
+[base]
+[base.wheel]
+shape = "harmonic"
+mean_radius_m = 0.12
+harmonics = [[3, 0.05, 0.0], [6, 0.0, 0.0]]
+[base.surface]
+friction = 0.5
+[vary]
+"wheel.harmonics[0][1]" = { from = 0.0, to = 0.3 }
+[require]
+"check.friction.required_peak" = { max = 0.4 }
+[goal]
+maximize = "wheel.harmonics[0][1]"
+[search]
+samples = 8
+refine = 1
+xtol = 1e-4
+"""
+
+
+def test_largest_lobe_of_a_harmonic_wheel_on_grip(tmp_path):
+    # r = r0 (1 + a cos 3phi) rolls on a track of slope -r'/r (y = -r, dx = r dtheta: Hall &
+    # Wagon 1992), so it needs friction max |r'|/r = max 3a |sin t| / (1 + a cos t); the
+    # maximum is at cos t = -a, giving 3a / sqrt(1 - a^2) [derived]. The largest lobe
+    # coefficient within 0.4 is therefore a* = 0.4 / sqrt(9 + 0.4^2).
+    out = tmp_path / "out"
+    res = run_design(brief(tmp_path, LOBE), out, workers=1).to_dict()
+    a_star = 0.4 / math.sqrt(9 + 0.4**2)
+    a = res["best"]["values"]["wheel.harmonics[0][1]"]
+    assert a == pytest.approx(a_star, rel=1e-3)
+    assert a <= a_star * (1 + 1e-6)
+    # best.toml and the journal hold the whole list, with that one number set.
+    from ridesim.scenario.load import load_scenario
+
+    assert load_scenario(out / "best.toml").wheel.harmonics == ((3, a, 0.0), (6, 0.0, 0.0))
+    rows = [json.loads(line) for line in (out / JOURNAL).read_text().splitlines()]
+    assert rows and all(r["lists"]["wheel.harmonics"] == [[3, r["values"]["wheel.harmonics[0][1]"],
+                                                           0.0], [6, 0.0, 0.0]] for r in rows)
+
+
+@pytest.mark.parametrize("change, words", [
+    ('"wheel.harmonics[2][1]"', 'vary."wheel.harmonics[2][1]": index 2 is outside wheel.harmonics'),
+    ('"wheel.harmonics[0][1][0]"', "wheel.harmonics[0][1] is a number, not a list"),
+    ('"wheel.harmonics[0]"', "names a list of 3 items, not one number"),
+    ('"wheel.mean_radius_m[0]"', "wheel.mean_radius_m is not a list key"),
+    ('"wheel.harmonic[0][1]"', "unknown scenario key wheel.harmonic"),
+    ('"wheel.harmonics[x][1]"', "not a key path with indexes"),
+    ('"wheel.axle_m[0]"', "the base scenario sets no wheel.axle_m"),
+])
+def test_bad_list_index_in_a_brief_one_line_exit_2(tmp_path, capsys, change, words):
+    f = brief(tmp_path, LOBE.replace('"wheel.harmonics[0][1]" = {', change + " = {", 1))
+    code = main(["design", str(f), "--json", "--out", str(tmp_path / "out")])
+    err = capsys.readouterr().err.strip()
+    assert code == 2
+    assert len(err.splitlines()) == 1 and words in err, err
+    assert not (tmp_path / "out").exists()  # refused before any design ran
+
+
+def test_a_list_and_its_number_varied_together_are_refused(tmp_path, capsys):
+    text = LOBE.replace("[require]", '"wheel.harmonics[00][1]" = [0.1, 0.2]\n[require]')
+    code = main(["design", str(brief(tmp_path, text)), "--json"])
+    err = capsys.readouterr().err.strip()
+    assert code == 2 and "both set wheel.harmonics[0][1]" in err and len(err.splitlines()) == 1
+
+
+def test_lobed_wheel_demo_brief_finds_a_design_within_its_grip(tmp_path):
+    from ridesim.jobs import run_job
+    from ridesim.scenario.load import load_scenario
+
+    out = tmp_path / "out"
+    res = run_design(ROOT / "scenarios" / "briefs" / "lobed_wheel_brief.toml", out, workers=1)
+    d = res.to_dict()
+    assert d["feasible"]
+    a3, a6 = d["best"]["values"]["wheel.harmonics[0][1]"], d["best"]["values"]["wheel.harmonics[1][1]"]
+    sc = load_scenario(out / "best.toml")
+    assert sc.wheel.harmonics == ((3, a3, 0.0), (6, a6, 0.0))
+    check = run_job("check", sc)  # the written design meets the brief by the check itself
+    assert check["rollable"] and check["friction"]["required_peak"] <= 0.4
+    # Its valleys lie deeper than a pure three-lobed wheel's on the same grip can reach:
+    # r0 (1 + a*) with a* = 0.4 / sqrt(9 + 0.4^2) (the closed form of the test above).
+    assert check["pair"]["depth_max_m"] > 0.12 * (1 + 0.4 / math.sqrt(9.16))
+
+
+def test_trade_off_plot_axes_are_words_with_units():
+    from ridesim.jobs.design.result import figure_label
+
+    assert figure_label("simulate.axle_bounce_m") == "axle bounce [m]"
+    assert figure_label("size-motor.peak_torque_Nm") == "peak motor torque [N m]"
+    assert figure_label("check.friction.required_peak") == "friction needed (peak)"
+    assert figure_label("wheel.harmonics[0][1]") == ("harmonics term 0: cosine coefficient a_k"
+                                                     " [fraction of mean radius]")
+    assert figure_label("simulate.some_new_figure_s") == "simulate.some_new_figure_s [s]"

@@ -219,6 +219,18 @@ def test_circle_polar_and_outline_shapes():
     assert scenario_from_dict(polar.to_dict()) == polar
 
 
+def test_harmonic_shape_reads_its_terms_and_round_trips():
+    sc = scenario_from_dict({"wheel": {"shape": "harmonic", "mean_radius_m": 0.1,
+                                       "harmonics": [[3, 0.05, 0], [6, 0.0, -0.01]]}})
+    assert sc.wheel.mean_radius_m == 0.1
+    assert sc.wheel.harmonics == ((3, 0.05, 0.0), (6, 0.0, -0.01))
+    assert sc.wheel.axle_m == (0.0, 0.0)
+    assert "axle_m" not in sc.to_dict()["wheel"]
+    assert scenario_from_dict(sc.to_dict()) == sc
+    plain = scenario_from_dict({"wheel": {"shape": "harmonic", "mean_radius_m": 0.1}})
+    assert plain.wheel.harmonics == ()  # no terms: a circle
+
+
 def test_track_shapes_and_lobes_or_depth():
     saw = scenario_from_dict({"track": {"shape": "sawtooth", "rise_m": 0.01, "run_m": 0.1}})
     assert (saw.track.rise_m, saw.track.run_m, saw.track.lobes) == (0.01, 0.1, 1)
@@ -323,7 +335,7 @@ def test_scenario_error_is_an_input_and_value_error():
         ({**HEX, "solver": {}}, r"^unknown key solver; allowed keys: "),
         # shapes
         (with_keys(HEX, wheel={"shape": "hexagon"}),
-         r'^wheel\.shape must be one of polygon, ellipse, circle, polar, outline, got "hexagon"'
+         r'^wheel\.shape must be one of polygon, ellipse, circle, polar, harmonic, outline, got "hexagon"'
          r'; for a hexagon use shape = "polygon" with sides = 6$'),
         (with_keys(HEX, wheel={"shape": "polygn"}),
          r'^wheel\.shape must be one of .*, got "polygn"; did you mean "polygon"\?$'),
@@ -369,6 +381,23 @@ def test_scenario_error_is_an_input_and_value_error():
          r'^wheel\.radius_formula must not be empty, got "  "$'),
         ({"wheel": {"shape": "polar", "radius_formula": 0.1}},
          r"^wheel\.radius_formula must be a string, got 0\.1 \(float\)$"),
+        ({"wheel": {"shape": "harmonic"}},
+         r'^wheel\.mean_radius_m is required for shape "harmonic"'),
+        ({"wheel": {"shape": "harmonic", "mean_radius_m": 0.1, "harmonics": 3}},
+         r"^wheel\.harmonics must be a list of \[k, a_k, b_k\] terms"),
+        ({"wheel": {"shape": "harmonic", "mean_radius_m": 0.1, "harmonics": [[3, 0.1]]}},
+         r"^wheel\.harmonics\[0\] must be \[k, a_k, b_k\] \(three numbers\)"),
+        ({"wheel": {"shape": "harmonic", "mean_radius_m": 0.1, "harmonics": [[3.5, 0.1, 0]]}},
+         r"^wheel\.harmonics\[0\]\[0\] must be an integer, got 3\.5"),
+        ({"wheel": {"shape": "harmonic", "mean_radius_m": 0.1, "harmonics": [[0, 0.1, 0]]}},
+         r"^wheel\.harmonics\[0\]\[0\] is the mode number k: a whole number from 1 to 64"),
+        ({"wheel": {"shape": "harmonic", "mean_radius_m": 0.1,
+                    "harmonics": [[2, 0.1, 0], [2, 0, 0.1]]}},
+         r"^wheel\.harmonics\[1\]: mode k = 2 is listed twice"),
+        ({"wheel": {"shape": "harmonic", "mean_radius_m": 0.1, "harmonics": [[2, "a", 0]]}},
+         r"^wheel\.harmonics\[0\]\[1\] must be a number"),
+        ({"wheel": {"shape": "harmonic", "mean_radius_m": 0.1, "axle_m": [0.01, 0]}},
+         r'^wheel\.axle_m is not used by shape "harmonic"; the harmonic radius is measured'),
         ({"wheel": {"shape": "outline"}},
          r"^wheel: give exactly one of points_m, file \(got none\)$"),
         ({"wheel": {"shape": "outline", "file": "a.csv",

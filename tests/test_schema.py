@@ -33,6 +33,8 @@ BASES = {
     ("wheel", "polygon"): HEX,
     ("wheel", "ellipse"): {"wheel": {"shape": "ellipse", "semi_axes_m": [0.05, 0.04]}},
     ("wheel", "circle"): {"wheel": {"shape": "circle", "radius_m": 0.1}},
+    ("wheel", "harmonic"): {"wheel": {"shape": "harmonic", "mean_radius_m": 0.1,
+                                      "harmonics": [[3, 0.05, 0.0]]}},
     ("track", "wave"): {"track": {"shape": "wave", "amplitude_m": 0.02, "wavelength_m": 0.3}},
     ("track", "sawtooth"): {"track": {"shape": "sawtooth", "rise_m": 0.02, "run_m": 0.1}},
     ("track", "formula"): {"track": {"shape": "formula", "formula": "0.02*cos(2*pi*x/0.3)",

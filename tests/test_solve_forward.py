@@ -514,3 +514,84 @@ def test_rounded_corners_limits_and_errors():
                                        axle=(0.0, 0.1), corner_radius=0.01)
     with pytest.raises(rs.RidesimError, match="corner_radius"):
         rs.Wheel.polygon(sides=4, apothem=0.1, corner_radius=-0.01)
+
+
+# ------------------------------------------------------------- harmonic (Fourier) wheels
+
+
+def test_harmonic_wheel_without_terms_is_a_circle_on_a_flat_track():
+    """``r = r0``: a circle about its centre rolls on a flat track at depth r0, one turn a
+    revolution of ``2 pi r0`` (the circumference; Hall & Wagon 1992, ``x = ∫ r dθ``)."""
+    r0 = 0.1
+    for w in (rs.Wheel.harmonic(r0), rs.Wheel.harmonic(r0, [(2, 0.0, 0.0), (5, 0.0, 0.0)])):
+        assert w.is_round
+        pair = rs.track_for(w)
+        x = np.linspace(-0.5, 0.5, 101)
+        np.testing.assert_allclose(pair.track.y(x), -r0, rtol=0, atol=1e-15)
+        np.testing.assert_allclose(pair.revolution_length, TWO_PI * r0, rtol=1e-12)
+
+
+def test_harmonic_wheel_rolls_2_pi_r0_whatever_its_terms():
+    """``∫ r dφ = r0 ∫ (1 + Σ a_k cos kφ + b_k sin kφ) dφ = 2 pi r0``: every term integrates
+    to zero over a turn, so one revolution rolls ``2 pi r0`` (Hall & Wagon 1992, x = ∫ r dθ),
+    and the track's period is that over the symmetry (the gcd of the k, here 1 and 3)."""
+    r0 = 0.15
+    for terms, sym in (([(3, 0.05, 0.02), (5, -0.01, 0.03)], 1), ([(3, 0.04, -0.03), (6, 0.01, 0.0)], 3)):
+        pair = rs.track_for(rs.Wheel.harmonic(r0, terms))
+        assert pair.wheel.symmetry == sym
+        np.testing.assert_allclose(pair.revolution_length, TWO_PI * r0, rtol=1e-12)
+        np.testing.assert_allclose(pair.track.period, TWO_PI * r0 / sym, rtol=1e-12)
+
+
+@pytest.mark.parametrize("eps", [0.01, 0.02, 0.05])
+def test_harmonic_cos_2phi_wheel_track_in_closed_form(eps):
+    """``r = r0 (1 + ε cos 2φ)`` in closed form, and its first-order perturbation.
+
+    Measured by the angle s from the least radius (φ = π/2, where x = 0):
+    ``r = r0 (1 - ε cos 2s)``, and ``x = ∫ r ds = r0 (s - (ε/2) sin 2s)``, ``y = -r``
+    (Hall & Wagon 1992) exactly [derived]. Inverting x(s) to first order,
+    ``s = u + (ε/2) sin 2u + O(ε²)`` with ``u = x / r0``, so
+    ``y = -r0 (1 - ε cos 2u + ε² sin² 2u) + O(ε³)`` [derived]: the first-order track
+    ``-r0 (1 - ε cos(2x/r0))`` is off by ``r0 ε² sin²(2x/r0)`` at most, and the second-order
+    one by O(ε³).
+    """
+    r0 = 0.1
+    pair = rs.track_for(rs.Wheel.harmonic(r0, [(2, eps, 0.0)]))
+    s = np.linspace(-3.0, 3.0, 2001)
+    np.testing.assert_allclose(pair.track.y(r0 * (s - 0.5 * eps * np.sin(2 * s))),
+                               -r0 * (1 - eps * np.cos(2 * s)), rtol=0, atol=1e-10 * r0)
+    np.testing.assert_allclose(pair.track.period, math.pi * r0, rtol=1e-12)
+    u = s
+    y = pair.track.y(r0 * u)
+    first = -r0 * (1 - eps * np.cos(2 * u))
+    second = first - r0 * eps**2 * np.sin(2 * u) ** 2
+    off1 = np.max(np.abs(y - first))
+    assert 0.99 * r0 * eps**2 <= off1 <= r0 * eps**2 * (1 + eps)  # the ε² term, no more
+    assert np.max(np.abs(y - second)) <= r0 * eps**3
+
+
+def test_harmonic_cos_2phi_wheel_second_order_residual_is_third_order():
+    """Halving ε divides what the second-order form of the previous test leaves by 8
+    (an O(ε³) residual), within 5 %."""
+    r0 = 0.1
+    u = np.linspace(-3.0, 3.0, 2001)
+
+    def residual(eps):
+        y = rs.track_for(rs.Wheel.harmonic(r0, [(2, eps, 0.0)])).track.y(r0 * u)
+        return np.max(np.abs(y + r0 * (1 - eps * np.cos(2 * u) + eps**2 * np.sin(2 * u) ** 2)))
+
+    assert residual(0.02) / residual(0.01) == pytest.approx(8.0, rel=0.05)
+
+
+def test_harmonic_wheel_matches_the_same_rim_as_listed_points():
+    """The rim ``r0 (1 + 0.05 cos 2φ + 0.02 sin 3φ)`` sampled at 720 points and read back as a
+    smooth outline (a periodic cubic spline: ``Wheel.outline``, another code path) rolls on the
+    same track. The spline's error is ``(5/384) h^4 max|f''''|`` (de Boor, A Practical Guide to
+    Splines, 1978 [memory]), about 1e-11 m here for h = 2 pi r0 / 720; 1e-9 m leaves room."""
+    r0 = 0.1
+    w = rs.Wheel.harmonic(r0, [(2, 0.05, 0.0), (3, 0.0, 0.02)])
+    pts = w.outline_points(720)
+    a, b = rs.track_for(w), rs.track_for(rs.Wheel.outline(pts, corners="none"))
+    x = np.linspace(-0.7, 0.7, 1401)
+    np.testing.assert_allclose(b.track.y(x), a.track.y(x), rtol=0, atol=1e-9)
+    np.testing.assert_allclose(b.revolution_length, a.revolution_length, rtol=1e-9)

@@ -444,3 +444,65 @@ def test_polar_formula_must_stay_positive(raises_one_line, formula):
 def test_polar_formula_syntax_error_is_a_formula_error():
     with pytest.raises(FormulaError):
         rs.Wheel.polar("0.3 + * cos(phi)")
+
+
+# ------------------------------------------------------------- harmonic (Fourier) wheels
+
+
+def test_harmonic_wheel_area_by_parseval_and_symmetry_by_its_modes():
+    # Area = 1/2 ∫ r² dφ = π r0² (1 + Σ (a_k² + b_k²)/2) by Parseval's identity for the
+    # Fourier series r/r0 = 1 + Σ a_k cos kφ + b_k sin kφ (each cos², sin² integrates to π,
+    # cross terms to 0). The symmetry is the gcd of the mode numbers: r(φ + 2π/g) = r(φ)
+    # exactly when every k present is a multiple of g.
+    r0 = 0.2
+    terms = [(3, 0.05, -0.02), (6, 0.01, 0.03), (9, 0.0, 0.01)]
+    w = rs.Wheel.harmonic(r0, terms)
+    assert w.kind == "harmonic" and not w.is_polygon and w.symmetry == 3
+    area = math.pi * r0**2 * (1 + sum(a * a + b * b for _, a, b in terms) / 2)
+    np.testing.assert_allclose(w.mass_properties(0.01, 1000.0).area_m2, area, rtol=1e-12)
+    assert rs.Wheel.harmonic(r0, [(2, 0.1, 0.0), (3, 0.0, 0.05)]).symmetry == 1
+    assert rs.Wheel.harmonic(r0, [(4, 0.1, 0.0), (6, 0.0, 0.05)]).symmetry == 2
+    assert w.params == {"mean_radius_m": r0, "harmonics": tuple(terms)}
+
+
+def test_harmonic_wheel_extremes_of_one_term():
+    # r = r0 (1 + a cos kφ + b sin kφ) = r0 (1 + hypot(a, b) cos(kφ - atan2(b, a))):
+    # least r0 (1 - hypot(a, b)), greatest r0 (1 + hypot(a, b)) (the harmonic-addition
+    # identity, elementary trigonometry).
+    r0, a, b = 0.1, 0.03, 0.04
+    rmin, rmax, phi_min = rs.Wheel.harmonic(r0, [(5, a, b)]).extremes()
+    np.testing.assert_allclose([rmin, rmax], [r0 * 0.95, r0 * 1.05], rtol=1e-12)
+    np.testing.assert_allclose(math.cos(5 * phi_min - math.atan2(b, a)), -1.0, atol=1e-12)
+
+
+@pytest.mark.parametrize("terms,where", [
+    ([(2, 1.2, 0.0)], r"-0\.02 m at phi = (1\.571|4\.712) rad"),  # r0 (1 - 1.2) at cos 2φ = -1
+    ([(2, 1.0, 0.0)], r"0 m at phi"),                              # touches zero
+    ([(2, 0.7, 0.0), (4, 0.0, 0.6)], r"falls to -"),               # each alone would do
+])
+def test_harmonic_wheel_radius_must_stay_positive(raises_one_line, terms, where):
+    raises_one_line(GeometryError, ["harmonics", "must stay > 0", where], rs.Wheel.harmonic,
+                    0.1, terms)
+
+
+def test_harmonic_wheel_just_positive_is_accepted():
+    # r0 (1 + 0.999 cos 2φ) >= 0.001 r0 > 0: accepted, the least radius where it should be.
+    rmin = rs.Wheel.harmonic(0.1, [(2, 0.999, 0.0)]).extremes()[0]
+    np.testing.assert_allclose(rmin, 0.1 * 0.001, rtol=1e-9)
+
+
+@pytest.mark.parametrize("terms,patterns", [
+    ([(0, 0.1, 0.0)], [r"harmonics\[0\]\[0\]", "whole number from 1 to 64"]),
+    ([(65, 0.1, 0.0)], [r"harmonics\[0\]\[0\]", "1 to 64"]),
+    ([(2.0, 0.1, 0.0)], [r"harmonics\[0\]\[0\]", "whole number"]),
+    ([(2, 0.1, 0.0), (2, 0.0, 0.1)], [r"harmonics\[1\]", "listed twice"]),
+    ([(2, math.nan, 0.0)], [r"harmonics\[0\]\[1\]", "finite"]),
+    ([(2, 0.1)], [r"harmonics\[0\]", r"\[k, a_k, b_k\]"]),
+    ("2, 0.1, 0", ["harmonics", "list of"]),
+])
+def test_harmonic_wheel_refuses_bad_terms(raises_one_line, terms, patterns):
+    raises_one_line(InputError, patterns, rs.Wheel.harmonic, 0.1, terms)
+
+
+def test_harmonic_wheel_refuses_a_bad_mean_radius(raises_one_line):
+    raises_one_line(InputError, ["mean_radius", "> 0"], rs.Wheel.harmonic, -0.1, [])

@@ -408,6 +408,10 @@ def _wheel_lines(wheel, name: str, rmin: float, rmax: float, hole_m: float, thic
         lines.append(f"axle at ({_mm(ax[0])}, {_mm(ax[1])}) from the shape's centre")
     elif wheel.kind == "polar":
         lines.append(f"radius about the axle: r(phi) = {p['radius_formula']} [m]")
+    elif wheel.kind == "harmonic":
+        terms = ", ".join(f"[{k}, {a:g}, {b:g}]" for k, a, b in p["harmonics"]) or "none"
+        lines.append(f"radius about the axle: r(phi) = r0 (1 + sum a_k cos(k phi) + b_k sin(k phi)),"
+                     f" r0 {_mm(p['mean_radius_m'])}, terms [k, a_k, b_k]: {terms}")
     elif wheel.kind == "solved":
         lines.append(f"solved for a {p.get('from_track', '?')} track, {p.get('lobes', '?')} lobes,"
                      f" track lowered by {_mm(pair_depth)}")

@@ -7,7 +7,7 @@ measured anticlockwise from +x. Every wheel must be star-shaped about its axle
 
 Polygon-like wheels (regular polygons, vertex lists, outlines from points) keep
 their vertices so that solvers can use closed forms edge by edge; smooth wheels
-(ellipse, circle, polar formula, wheels solved from a track) keep a vectorised
+(ellipse, circle, polar formula, Fourier series, wheels solved from a track) keep a vectorised
 radius function.
 """
 
@@ -24,10 +24,12 @@ from ridesim.model.checks import finite as _finite
 from ridesim.model.checks import point as _point
 from ridesim.model.checks import positive as _positive
 from ridesim.model.outline import CORNER_ANGLE_DEG, ClosedSpline
+from ridesim.validate import is_integer, is_number
 
 __all__ = ["Wheel", "MassProperties"]
 
 TWO_PI = 2.0 * math.pi
+
 
 
 @dataclass(frozen=True)
@@ -56,7 +58,7 @@ class Wheel:
     """A wheel outline in the axle frame (axle at the origin).
 
     Build one with the class methods :meth:`polygon`, :meth:`polygon_from_vertices`,
-    :meth:`ellipse`, :meth:`circle`, :meth:`polar` or :meth:`outline`.
+    :meth:`ellipse`, :meth:`circle`, :meth:`polar`, :meth:`harmonic` or :meth:`outline`.
 
     Examples
     --------
@@ -411,6 +413,106 @@ class Wheel:
             )
         return cls("polar", radius_fn=radius_fn, params={"radius_formula": formula})
 
+    @classmethod
+    def harmonic(cls, mean_radius: float,
+                 harmonics: Sequence[Sequence[float]] = ()) -> Wheel:
+        """Wheel whose radius about the axle is a short Fourier series.
+
+        ``r(phi) = mean_radius * (1 + sum_k a_k cos(k phi) + b_k sin(k phi))``, the sum over
+        the listed terms. Every term averages to zero over a turn, so ``mean_radius`` is the
+        radius averaged over the polar angle, and the revolution length on a straight track
+        (the integral of ``r`` over a turn, Hall & Wagon 1992) is ``2 pi mean_radius`` whatever
+        the coefficients. Only the multiples of ``k`` present set the wheel's symmetry (a
+        single ``k = 3`` term: three lobes).
+
+        Parameters
+        ----------
+        mean_radius : float
+            ``r0`` [m], the radius averaged over the polar angle.
+        harmonics : sequence of (k, a_k, b_k)
+            The terms: ``k`` a whole number from 1 to 64
+            (``ridesim.scenario.schema.MAX_HARMONIC``), each ``k`` once; ``a_k`` and ``b_k``
+            the cosine and sine coefficients, as fractions of ``r0`` [-]. Empty: a circle
+            about its centre. The radius must stay > 0 all round (it does
+            whenever the sum of ``hypot(a_k, b_k)`` is below 1).
+
+        Returns
+        -------
+        Wheel
+
+        Examples
+        --------
+        >>> import ridesim as rs
+        >>> w = rs.Wheel.harmonic(0.1, [(3, 0.05, 0.0)])
+        >>> round(float(w.radius(0.0)), 12), w.symmetry
+        (0.105, 3)
+        """
+        r0 = _positive("mean_radius", mean_radius)
+        ks, a, b = cls._harmonic_terms(harmonics)
+
+        def radius_fn(phi: np.ndarray) -> np.ndarray:
+            phi = np.asarray(phi, dtype=float)
+            if not ks.size:
+                return np.full(np.shape(phi), r0)
+            kp = phi[..., None] * ks
+            return r0 * (1.0 + (np.cos(kp) * a + np.sin(kp) * b).sum(axis=-1))
+
+        if ks.size:
+            # The least of 1 + sum(...): sampled 64 times over the shortest period, then the
+            # lowest sample's bracket refined (a trigonometric sum of degree K has at most 2K
+            # minima, each far wider than one sample).
+            from ridesim.roots import find_minimum
+
+            n = max(4096, 64 * int(ks.max()))
+            phi = np.linspace(0.0, TWO_PI, n, endpoint=False)
+            rel = radius_fn(phi) / r0
+            j = int(np.argmin(rel))
+            h = TWO_PI / n
+            m = find_minimum(lambda p: float(radius_fn(np.array(p))) / r0, phi[j] - h, phi[j] + h,
+                             xatol=1e-12)
+            low, at = min((float(rel[j]), float(phi[j])), (m.fun, m.x))
+            if not low > 1e-9:
+                raise GeometryError(
+                    f"harmonics: the radius falls to {low * r0:.4g} m at phi = {at % TWO_PI:.4g}"
+                    " rad; it must stay > 0 all round: make the coefficients smaller (the sum"
+                    " of hypot(a_k, b_k) below 1 always is)")
+        terms = tuple((int(k), float(x), float(y)) for k, x, y in zip(ks, a, b, strict=True))
+        return cls("harmonic", radius_fn=radius_fn,
+                   params={"mean_radius_m": r0, "harmonics": terms})
+
+    @staticmethod
+    def _harmonic_terms(harmonics: Sequence[Sequence[float]]
+                        ) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+        """Mode numbers and coefficients of :meth:`harmonic`'s terms, checked."""
+        from ridesim.scenario.schema import MAX_HARMONIC  # the limit beside the scenario key's
+
+        if isinstance(harmonics, (str, bytes)) or not isinstance(harmonics, (Sequence, np.ndarray)):
+            raise InputError("harmonics must be a list of [k, a_k, b_k] terms, got"
+                             f" {harmonics!r}")
+        ks: list[int] = []
+        cs: list[float] = []
+        ss: list[float] = []
+        for i, term in enumerate(harmonics):
+            if isinstance(term, (str, bytes)) or not isinstance(term, (Sequence, np.ndarray)) \
+                    or len(term) != 3:
+                raise InputError(f"harmonics[{i}] must be [k, a_k, b_k] (three numbers), got"
+                                 f" {term!r}")
+            k, x, y = term
+            if not is_integer(k) or not 1 <= int(k) <= MAX_HARMONIC:
+                raise InputError(f"harmonics[{i}][0] is the mode number k: a whole number from 1"
+                                 f" to {MAX_HARMONIC}, got {k!r}")
+            if int(k) in ks:
+                raise InputError(f"harmonics[{i}]: mode k = {int(k)} is listed twice; give each k"
+                                 " once (add the coefficients)")
+            for j, v in ((1, x), (2, y)):
+                if not is_number(v) or not math.isfinite(float(v)):
+                    raise InputError(f"harmonics[{i}][{j}] must be a finite number (a fraction"
+                                     f" of the mean radius), got {v!r}")
+            ks.append(int(k))
+            cs.append(float(x))
+            ss.append(float(y))
+        return np.array(ks, dtype=float), np.array(cs), np.array(ss)
+
     # ------------------------------------------------------------------ helpers
     @staticmethod
     def _vertex_array(name: str, points: Sequence[Sequence[float]]) -> np.ndarray:
@@ -563,7 +665,10 @@ class Wheel:
     # ------------------------------------------------------------------ public API
     @property
     def kind(self) -> str:
-        """Constructor family: polygon, rounded_polygon, outline, ellipse, circle, polar or solved."""
+        """Constructor family.
+
+        One of polygon, rounded_polygon, outline, ellipse, circle, polar, harmonic or solved.
+        """
         return self._kind
 
     @property

@@ -137,6 +137,9 @@ def _wheel_title(wheel) -> str:
         return f"circle, radius {p['radius_m'] * 1000:.1f} mm"
     if wheel.kind == "polar":
         return f"r(φ) = {p['radius_formula']} m"
+    if wheel.kind == "harmonic":
+        modes = ", ".join(str(k) for k, _, _ in p["harmonics"]) or "none"
+        return f"Fourier wheel, mean radius {p['mean_radius_m'] * 1000:.1f} mm, modes k = {modes}"
     if wheel.kind == "solved":
         return f"{p.get('lobes', '?')} lobes, solved for a {p.get('from_track', '?')} track"
     return f"{wheel.kind} outline"

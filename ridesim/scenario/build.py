@@ -233,6 +233,11 @@ def outline_from_spec(spec: OutlineSpec, section: str, *, corner_radius: float =
         return _wrap(section, Wheel.circle, spec.radius_m, axle=ax)
     if s == "polar":
         return _wrap(f"{section}.radius_formula", Wheel.polar, spec.radius_formula)
+    if s == "harmonic":
+        try:
+            return Wheel.harmonic(float(spec.mean_radius_m or 0.0), spec.harmonics or ())
+        except RidesimError as exc:  # its messages name the argument: harmonics, mean_radius
+            raise type(exc)(f"{section}.{exc}") from None
     pts: np.ndarray | tuple[tuple[float, float], ...]
     if spec.file is not None and is_drawing(spec.file):
         drawn = read_drawing(spec.file, f"{section}.file", layer=spec.layer, ident=spec.id,

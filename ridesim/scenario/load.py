@@ -29,6 +29,7 @@ import difflib
 import json
 import math
 import numbers
+import re
 import tomllib
 from collections.abc import Iterable, Mapping
 from dataclasses import dataclass, field, fields
@@ -42,6 +43,7 @@ from ridesim.scenario.schema import (
     KEY,
     MAX_DESCRIPTION_CHARS,
     MAX_FILE_BYTES,
+    MAX_HARMONIC,
     MAX_NAME_CHARS,
     MAX_NESTING,
     MAX_TIMESTEP_S,
@@ -90,6 +92,8 @@ DEFAULT_WHEEL_DENSITY_KG_M3 = default_of("wheel.density_kg_m3")
 Point = tuple[float, float]
 
 _POLYGON_SIZES = ("apothem_m", "circumradius_m", "side_m", "vertices_m")
+# Wheel shapes whose radius is measured from the axle (no axle_m).
+_AXLE_AT_ORIGIN = ("polar", "harmonic")
 # Which keys each shape uses, from the key table (ridesim/scenario/schema.py).
 _WHEEL_SHAPE_KEYS: dict[str, tuple[str, ...]] = {
     shape: section_keys("wheel", shape) for shape in WHEEL_SHAPES
@@ -158,6 +162,8 @@ class OutlineSpec:
     semi_axes_m: Point | None = default_of("wheel.semi_axes_m")
     radius_m: float | None = default_of("wheel.radius_m")
     radius_formula: str | None = default_of("wheel.radius_formula")
+    mean_radius_m: float | None = default_of("wheel.mean_radius_m")
+    harmonics: tuple[tuple[int, float, float], ...] | None = default_of("wheel.harmonics")
     points_m: tuple[Point, ...] | None = default_of("wheel.points_m")
     file: str | None = default_of("wheel.file")
     layer: str | None = default_of("wheel.layer")
@@ -235,6 +241,12 @@ class WheelSpec(OutlineSpec):
     radius_formula : str or None
         Polar: radius in m as a formula in the polar angle ``phi`` (rad),
         measured from the axle. Stored unparsed.
+    mean_radius_m : float or None
+        Harmonic: ``r0`` in m of ``r(phi) = r0 (1 + sum a_k cos(k phi) + b_k sin(k phi))``
+        about the axle, the radius averaged over the polar angle.
+    harmonics : tuple of (int, float, float) or None
+        Harmonic: the terms ``(k, a_k, b_k)``, coefficients as fractions of ``r0``; ``()``
+        for a circle.
     points_m : tuple of (float, float) or None
         Outline given inline: points [x, y] in m, at least 3.
     file : str or None
@@ -251,7 +263,7 @@ class WheelSpec(OutlineSpec):
         Outline: "all", "none" or point indices overriding ``corner_angle_deg``.
     axle_m : (float, float) or None
         Axle position [x, y] in m in the coordinates of the outline. Always
-        (0, 0) for ``polar``, whose radius is measured from the axle. None for a
+        (0, 0) for ``polar`` and ``harmonic``, whose radius is measured from the axle. None for a
         drawn outline without it: the smallest circle inside the outline.
     thickness_m : float
         Plate thickness in m.
@@ -729,7 +741,7 @@ class Scenario:
         out: dict[str, Any] = {"name": self.name, "description": self.description}
         if self.wheel is not None:
             wheel = _spec_dict(self.wheel)
-            if self.wheel.shape in ("polar", None):
+            if self.wheel.shape in (*_AXLE_AT_ORIGIN, None):
                 del wheel["axle_m"]
             out["wheel"] = wheel
         if self.track is not None:
@@ -761,8 +773,9 @@ class Scenario:
         ----------
         key : str
             ``"section.key"`` such as ``"surface.friction"``, a top-level key
-            (``"name"``, ``"description"``) or a whole section (``"track"``,
-            with a dict as value).
+            (``"name"``, ``"description"``), a whole section (``"track"``,
+            with a dict as value), or one number of a list key by its indexes
+            counted from 0 (``"wheel.harmonics[0][1]"``: the first term's a_k).
         value : object
             New value in the key's unit; None removes the key so that its
             default applies. Setting one key of a mutually exclusive group
@@ -804,7 +817,10 @@ class Scenario:
             If a key path is malformed or the changed scenario is invalid.
         """
         data = self.to_dict()
-        parsed = [(_split_key_path(k), v) for k, v in changes.items()]
+        items = [(k, v) for k, v in changes.items() if not (isinstance(k, str) and "[" in k)]
+        indexed = [(split_indexed_key(k), v) for k, v in changes.items()
+                   if isinstance(k, str) and "[" in k]
+        parsed = [(_split_key_path(k), v) for k, v in items]
         changed = {parts for parts, _ in parsed}
         for parts, _ in parsed:
             if len(parts) == 2:
@@ -828,6 +844,13 @@ class Scenario:
                     table = {}
                     data[section] = table
                 table[name] = value
+        for (key, index), value in indexed:  # one number of a list, after the whole keys
+            section, name = key.split(".")
+            table = data.get(section)
+            if not isinstance(table, dict) or name not in table:
+                raise ScenarioError(f"{key}{_index_text(index)}: {key} is not set in this scenario;"
+                                    f" set the whole list ({key} = [...]) first")
+            table[name] = set_item(key, table[name], index, value)
         return scenario_from_dict(data, base_dir=self.base_dir, source=self.source)
 
 
@@ -845,6 +868,113 @@ def _plain(value: Any) -> Any:
     if isinstance(value, tuple):
         return [_plain(v) for v in value]
     return value
+
+
+#: Scenario key kinds whose value is a list (of numbers or of lists), whose single numbers
+#: a key path with indexes names (``"wheel.harmonics[0][1]"``).
+LIST_KINDS = ("pair", "points", "reals", "ints", "terms")
+
+_INDEXED = re.compile(r"^([A-Za-z_][A-Za-z0-9_]*\.[A-Za-z_][A-Za-z0-9_]*)((?:\[\d+\])+)$")
+
+
+def _index_text(index: tuple[int, ...]) -> str:
+    return "".join(f"[{i}]" for i in index)
+
+
+def split_indexed_key(key: str) -> tuple[str, tuple[int, ...]]:
+    """Split ``"wheel.harmonics[0][1]"`` into the key and its indexes, ``("wheel.harmonics", (0, 1))``.
+
+    Indexes count from 0. The key must be a list key of the table (:data:`LIST_KINDS`).
+
+    Parameters
+    ----------
+    key : str
+        A dotted key path followed by one or more ``[i]``.
+
+    Returns
+    -------
+    tuple
+        The dotted key and the indexes.
+
+    Raises
+    ------
+    ScenarioError
+        A malformed path, an unknown key, or a key whose value is not a list.
+    """
+    m = _INDEXED.match(key)
+    if m is None:
+        raise ScenarioError(f"{key} is not a key path with indexes; write e.g."
+                            " \"wheel.harmonics[0][1]\" (indexes count from 0)")
+    base, index = m.group(1), tuple(int(i) for i in re.findall(r"\d+", m.group(2)))
+    row = KEY.get(base)
+    if row is None:
+        raise ScenarioError(f"{key}: unknown scenario key {base}; docs/scenario-keys.md lists them")
+    if row.kind not in LIST_KINDS:
+        raise ScenarioError(f"{key}: {base} is not a list key (it holds one {row.kind}); name it"
+                            " without an index")
+    return base, index
+
+
+def item_at(key: str, value: Any, index: tuple[int, ...]) -> Any:
+    """The item of a list key's ``value`` at ``index`` (one line naming a bad index).
+
+    Parameters
+    ----------
+    key : str
+        The dotted key, for the message.
+    value : object
+        The key's value (nested lists or tuples).
+    index : tuple of int
+        Indexes from 0, outermost first.
+
+    Returns
+    -------
+    object
+        The item.
+    """
+    node = value
+    for depth, i in enumerate(index):
+        if not isinstance(node, (list, tuple)):
+            raise ScenarioError(f"{key}{_index_text(index)}: {key}{_index_text(index[:depth])} is a"
+                                f" number, not a list; use fewer indexes")
+        if i >= len(node):
+            raise ScenarioError(f"{key}{_index_text(index)}: index {i} is outside"
+                                f" {key}{_index_text(index[:depth])}, which has {len(node)} items"
+                                f" (0 to {len(node) - 1})")
+        node = node[i]
+    return node
+
+
+def set_item(key: str, value: Any, index: tuple[int, ...], item: Any) -> list:
+    """A copy of a list key's ``value`` (nested lists) with the item at ``index`` replaced.
+
+    Parameters
+    ----------
+    key : str
+        The dotted key, for the message.
+    value : list or tuple
+        The key's value.
+    index : tuple of int
+        Indexes from 0, outermost first (at least one).
+    item : object
+        The new item.
+
+    Returns
+    -------
+    list
+        The new value, as lists.
+    """
+    item_at(key, value, index)  # refuses a bad index in one line
+
+    def lists(v: Any) -> Any:
+        return [lists(x) for x in v] if isinstance(v, (list, tuple)) else v
+
+    out = lists(value)
+    node = out
+    for i in index[:-1]:
+        node = node[i]
+    node[index[-1]] = item
+    return out
 
 
 def _split_key_path(key: Any) -> tuple[str, ...]:
@@ -1126,7 +1256,7 @@ def _parse_outline(t: _Table, base: Path) -> dict[str, Any]:
     shape = t.get("shape", hint=_polygon_name_hint)
     own = shape_keys[shape]
     allowed = set(common) | set(own)
-    if shape == "polar":
+    if shape in _AXLE_AT_ORIGIN:
         allowed.discard("axle_m")
     every = set(common).union(*shape_keys.values())
     for key in t.keys():
@@ -1135,7 +1265,11 @@ def _parse_outline(t: _Table, base: Path) -> dict[str, Any]:
         if key in every:
             if key == "axle_m":
                 centre = "the axle" if sec == "wheel" else "the hub's centre"
-                fix = f"the polar radius is measured from {centre}; shift the formula instead"
+                if shape == "polar":
+                    fix = f"the polar radius is measured from {centre}; shift the formula instead"
+                else:
+                    fix = (f"the harmonic radius is measured from {centre}; a k = 1 term shifts"
+                           " the rim instead")
             elif key == "fit_track_to_corners":
                 fix = "it applies to polygon wheels only; remove it"
             else:
@@ -1182,6 +1316,10 @@ def _parse_outline(t: _Table, base: Path) -> dict[str, Any]:
             "radius_formula",
             required="for shape \"polar\"; add e.g. radius_formula = \"0.1 + 0.01*cos(3*phi)\"",
         )
+    elif shape == "harmonic":
+        values["mean_radius_m"] = t.get(
+            "mean_radius_m", required="for shape \"harmonic\"; add e.g. mean_radius_m = 0.1")
+        values["harmonics"] = _terms(t, "harmonics") if t.has("harmonics") else ()
     else:  # outline
         _point_source(t, "outline", values, base)
         if values["points_m"] is not None:
@@ -1190,7 +1328,7 @@ def _parse_outline(t: _Table, base: Path) -> dict[str, Any]:
         values["corner_angle_deg"] = t.get("corner_angle_deg")
         values["corners"] = _corners(t)
 
-    if shape != "polar":
+    if shape not in _AXLE_AT_ORIGIN:
         values["axle_m"] = t.get("axle_m")
         if shape == "outline" and drawing and not t.has("axle_m"):
             values["axle_m"] = None  # the smallest circle inside the drawn outline
@@ -1354,6 +1492,30 @@ def _drawing_keys(t: _Table, values: dict[str, Any]) -> bool:
         raise ScenarioError(f"{t.key('units')} must be one of m, cm, mm, in, ft,"
                             f" got {_show(values['units'])}")
     return drawing
+
+
+def _terms(t: _Table, name: str) -> tuple[tuple[int, float, float], ...]:
+    """A list of Fourier terms ``[k, a_k, b_k]``: k a whole number in its range, each k once."""
+    path = t.key(name)
+    items = _as_list(path, t.raw(name), "a list of [k, a_k, b_k] terms, e.g. [[3, 0.05, 0.0]]")
+    out: list[tuple[int, float, float]] = []
+    for i, item in enumerate(items):
+        where = f"{path}[{i}]"
+        row = _as_list(where, item, "a term [k, a_k, b_k] of three numbers")
+        if len(row) != 3:
+            raise ScenarioError(f"{where} must be [k, a_k, b_k] (three numbers), got {_show(item)}"
+                                f" ({len(row)} values)")
+        k = _as_int(f"{where}[0]", row[0])
+        if not 1 <= k <= MAX_HARMONIC:
+            raise ScenarioError(f"{where}[0] is the mode number k: a whole number from 1 to"
+                                f" {MAX_HARMONIC}, got {k}")
+        if any(k == o[0] for o in out):
+            raise ScenarioError(f"{where}: mode k = {k} is listed twice; give each k once (add"
+                                " the coefficients)")
+        a = _as_float(f"{where}[1]", row[1])
+        b = _as_float(f"{where}[2]", row[2])
+        out.append((k, a, b))
+    return tuple(out)
 
 
 def _corners(t: _Table) -> str | tuple[int, ...] | None:

@@ -59,6 +59,7 @@ __all__ = [
     "TINY",
     "tiny_of",
     "MAX_POINTS",
+    "MAX_HARMONIC",
     "MAX_FILE_BYTES",
     "MAX_NESTING",
     "MAX_NAME_CHARS",
@@ -75,7 +76,7 @@ __all__ = [
     "markdown_reference",
 ]
 
-WHEEL_SHAPES = ("polygon", "ellipse", "circle", "polar", "outline")
+WHEEL_SHAPES = ("polygon", "ellipse", "circle", "polar", "harmonic", "outline")
 """Allowed values of ``wheel.shape``."""
 
 TRACK_SHAPES = ("wave", "sawtooth", "formula", "points")
@@ -105,6 +106,10 @@ MAX_POINTS = 10000
 MAX_FILE_BYTES = 2_000_000
 """Largest points file in bytes read for ``wheel.file`` / ``track.file`` (2 MB holds far more
 than :data:`MAX_POINTS` lines)."""
+
+MAX_HARMONIC = 64
+"""Highest mode number ``k`` of a harmonic wheel's term (``wheel.harmonics``): a few Fourier
+terms shape a wheel; beyond this the rim is a saw that no cutter follows."""
 
 MAX_NESTING = 8
 """Deepest nesting of tables and lists a scenario or sweep file may hold (a scenario needs 4:
@@ -140,7 +145,8 @@ class _Required:
 REQUIRED: Any = _Required()
 """Default of a key that must be given; its spec field holds None until it is."""
 
-KINDS = ("real", "int", "bool", "str", "choice", "pair", "points", "file", "ints", "reals", "corners")
+KINDS = ("real", "int", "bool", "str", "choice", "pair", "points", "file", "ints", "reals", "corners",
+         "terms")
 """Value types of :attr:`Key.kind`."""
 
 
@@ -157,7 +163,8 @@ class Key:
     kind : str
         Value type, one of :data:`KINDS`: ``real``, ``int``, ``bool``, ``str``, ``choice``,
         ``pair`` ([x, y] of reals), ``points`` (list of [x, y]), ``file`` (a CSV path),
-        ``ints`` or ``reals`` (lists).
+        ``ints`` or ``reals`` (lists), ``terms`` (list of [k, a_k, b_k]: a whole mode number
+        and two reals).
     default : object
         Value when the key is left out; None: unset (the doc says what applies then);
         :data:`REQUIRED`: must be given.
@@ -258,6 +265,14 @@ _BASE_KEYS: tuple[Key, ...] = (
         **_SIZE, plausible=_WHEEL_SIZE_M, source=_WHEEL_SIZE_SRC, shapes=("circle",)),
     Key("wheel", "radius_formula", "str", REQUIRED, "m",
         "radius as a formula in the polar angle phi (rad) about the axle", shapes=("polar",)),
+    Key("wheel", "mean_radius_m", "real", REQUIRED, "m",
+        "r0 of r(phi) = r0 (1 + sum of a_k cos(k phi) + b_k sin(k phi)) about the axle: the radius"
+        " averaged over the polar angle (a revolution rolls 2 pi r0)",
+        **_SIZE, plausible=_WHEEL_SIZE_M, source=_WHEEL_SIZE_SRC, shapes=("harmonic",)),
+    Key("wheel", "harmonics", "terms", None, "-",
+        "the terms [k, a_k, b_k] of that sum: k a whole number 1 to 64, each k once; a_k, b_k"
+        " fractions of r0; the radius must stay > 0 all round (it does while the sum of"
+        " hypot(a_k, b_k) is below 1); unset: a circle", max_len=64, shapes=("harmonic",)),
     Key("wheel", "points_m", "points", REQUIRED, "m",
         "outline points [x, y], at least 3 (give exactly one of points_m, file)",
         **_COORD, max_len=MAX_POINTS, shapes=_OUTLINE),
@@ -287,8 +302,8 @@ _BASE_KEYS: tuple[Key, ...] = (
         "as-built axle hole position minus the nominal one [x, y]",
         **_COORD, plausible=(-0.05, 0.05), source=_ERROR_SRC),
     Key("wheel", "axle_m", "pair", (0.0, 0.0), "m",
-        "axle position [x, y] in the outline's coordinates (not for polar); a DXF or SVG"
-        " outline: unset means the smallest circle inside it", **_COORD),
+        "axle position [x, y] in the outline's coordinates (not for polar or harmonic); a DXF or"
+        " SVG outline: unset means the smallest circle inside it", **_COORD),
     Key("wheel", "thickness_m", "real", 0.02, "m", "plate thickness",
         **_SIZE, plausible=(0.001, 0.3),
         source="common practice: 1 mm sheet to 30 cm solid wheels"),
@@ -750,7 +765,8 @@ def _show_bounds(k: Key) -> str:
 _KIND_TEXT = {"real": "number", "int": "integer", "bool": "true/false", "str": "text",
               "choice": "text", "pair": "[x, y]", "points": "list of [x, y]", "file": "path",
               "ints": "list of integers", "reals": "list of numbers",
-              "corners": "\"all\", \"none\" or list of integers"}
+              "corners": "\"all\", \"none\" or list of integers",
+              "terms": "list of [k, a_k, b_k]"}
 
 
 def markdown_reference() -> str:

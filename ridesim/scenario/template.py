@@ -23,6 +23,8 @@ EXAMPLES: dict[str, Any] = {
     "wheel.semi_axes_m": (0.2, 0.15),
     "wheel.radius_m": 0.1,
     "wheel.radius_formula": "0.1 + 0.01*cos(3*phi)",
+    "wheel.mean_radius_m": 0.1,
+    "wheel.harmonics": ((3, 0.05, 0.0), (6, 0.0, 0.01)),
     "wheel.points_m": ((0.1, 0.0), (0.0, 0.08), (-0.1, 0.0), (0.0, -0.08)),
     "track.amplitude_m": 0.02,
     "track.wavelength_m": 0.3,
@@ -133,7 +135,7 @@ def scenario_template(name: str, wheel: str | None = None, track: str | None = N
                     others = TRACK_SHAPES if section == "track" else WHEEL_SHAPES
                     lines.append(f'shape = "{shape}"  # one of {" | ".join(others)}')
                 continue
-            if k.name == "axle_m" and shape == "polar":
+            if k.name == "axle_m" and shape in ("polar", "harmonic"):
                 continue
             if k.path == "hub.lobes" and shape == "circle":
                 continue  # a circle hub's wheel is sized by path.ratio

@@ -6,6 +6,7 @@ seed = 1                              # the search is deterministic for a given 
 [vary]                                # dotted scenario keys (the key table, scenario/schema.py)
 "wheel.sides" = [5, 6, 7, 8]          # discrete choices
 "wheel.apothem_m" = { from = 0.08, to = 0.2 }   # a continuous range (ints: every integer in it)
+"wheel.harmonics[0][1]" = { from = -0.1, to = 0.1 }  # one number of a list key, indexes from 0
 [require]                             # figures of solve / check / size-motor / simulate by JSON path
 "check.rollable" = true               # == for true/false, text and numbers
 "check.friction.required_peak" = { max = 0.45 }  # <= ; also { min = x } (>=) and { equals = x }
@@ -20,9 +21,15 @@ keep = 5                              # designs reported and written out
 screen = true                         # run check (must say rollable) before simulate
 ```
 
+A list key's single number is named by its indexes counted from 0, as the scenario's own
+error messages name it: ``"wheel.harmonics[1][2]"`` is the second term's ``b_k``,
+``"wheel.axle_m[0]"`` the axle's x. The base scenario must set the list; each design sets that
+one number in it, and its scenario files (``best.toml``) and journal lines hold the whole list.
+
 Everything is checked here, before any design is evaluated: the keys against the scenario
-key table and its hard bounds, each range's ends, each figure path against what its job
-really returns (by running the jobs once on the base scenario), and the goals for numbers.
+key table and its hard bounds, each index against the base scenario's list, each range's
+ends, each figure path against what its job really returns (by running the jobs once on the
+base scenario), and the goals for numbers.
 """
 
 from __future__ import annotations
@@ -304,9 +311,10 @@ def figure_of(result: Any, path: str) -> Any:
 
 
 def _bounds_check(key: str, value: float) -> None:
+    from ridesim.scenario.load import split_indexed_key
     from ridesim.scenario.schema import KEY
 
-    row = KEY[key]
+    row = KEY[split_indexed_key(key)[0] if "[" in key else key]
     for name, op, ok in (("gt", ">", lambda v, b: v > b), ("ge", ">=", lambda v, b: v >= b),
                          ("lt", "<", lambda v, b: v < b), ("le", "<=", lambda v, b: v <= b)):
         b = getattr(row, name)
@@ -315,30 +323,60 @@ def _bounds_check(key: str, value: float) -> None:
                         f" {op} {b:g}); narrow the range")
 
 
-def _variable(key: str, spec: Any) -> Variable:
+def _list_item_kind(key: str, base: Scenario | None) -> str:
+    """The kind (``real`` or ``int``) of the one number an indexed key names in ``base``."""
+    from ridesim.scenario.load import item_at, split_indexed_key
+    from ridesim.scenario.schema import KEY
+
+    try:
+        name, index = split_indexed_key(key)
+        section, field_name = name.split(".")
+        table = {} if base is None else base.to_dict().get(section, {})  # the keys it sets
+        value = table.get(field_name) if isinstance(table, dict) else None
+        if value is None:
+            raise ScenarioError(f"{key}: the base scenario sets no {name}; give the whole list"
+                                " there (this sets one number of it)")
+        item = item_at(name, value, index)
+    except ScenarioError as exc:
+        text = str(exc)
+        text = text[len(key):].lstrip(":") if text.startswith(key) else " " + text
+        raise _fail(f'vary."{key}":{text}') from None
+    if isinstance(item, (list, tuple)):
+        raise _fail(f'vary."{key}" names a list of {len(item)} items, not one number; add an'
+                    f" index (e.g. {key}[0])")
+    row = KEY[name]
+    return "int" if row.kind == "ints" or (row.kind == "terms" and index[-1] == 0) else "real"
+
+
+def _variable(key: str, spec: Any, base: Scenario | None = None) -> Variable:
     from ridesim.scenario.load import scenario_keys
     from ridesim.scenario.schema import KEY
 
-    if key not in scenario_keys() or key not in KEY:
+    choices: tuple[str, ...] = ()
+    if "[" in key:
+        kind = _list_item_kind(key, base)
+    elif key not in scenario_keys() or key not in KEY:
         raise _fail(f'unknown key vary."{key}"; use a dotted scenario key such as "wheel.sides"'
-                    " or \"surface.friction\" (docs/scenario-keys.md lists them)")
-    row = KEY[key]
+                    " or \"surface.friction\", or one number of a list key such as"
+                    " \"wheel.harmonics[0][1]\" (docs/scenario-keys.md lists them)")
+    else:
+        kind, choices = KEY[key].kind, KEY[key].choices
     if isinstance(spec, list):
         if not spec:
             raise _fail(f'vary."{key}" is an empty list; give at least one value')
         if len(set(map(repr, spec))) != len(spec):
             raise _fail(f'vary."{key}" lists a value twice; give each choice once')
         for v in spec:
-            if row.kind in ("real", "int") and _is_num(v):
-                if row.kind == "int" and not isinstance(v, int):
+            if kind in ("real", "int") and _is_num(v):
+                if kind == "int" and not isinstance(v, int):
                     raise _fail(f'vary."{key}" takes whole numbers, got {v!r}')
                 _bounds_check(key, float(v))
-            elif row.kind in ("real", "int"):
+            elif kind in ("real", "int"):
                 raise _fail(f'vary."{key}" takes numbers, got {v!r}')
-            elif row.kind == "bool" and not isinstance(v, bool):
+            elif kind == "bool" and not isinstance(v, bool):
                 raise _fail(f'vary."{key}" takes true or false, got {v!r}')
-            elif row.kind == "choice" and v not in row.choices:
-                raise _fail(f'vary."{key}": {v!r} is not one of {", ".join(row.choices)}')
+            elif kind == "choice" and v not in choices:
+                raise _fail(f'vary."{key}": {v!r} is not one of {", ".join(choices)}')
         return Variable(key, values=tuple(spec))
     if isinstance(spec, dict):
         if set(spec) != {"from", "to"}:
@@ -347,20 +385,39 @@ def _variable(key: str, spec: Any) -> Variable:
         a, b = spec["from"], spec["to"]
         if not (_is_num(a) and _is_num(b)):
             raise _fail(f'vary."{key}" from/to must be numbers, got {a!r} and {b!r}')
-        if row.kind not in ("real", "int"):
-            raise _fail(f'vary."{key}" is not a number key ({row.kind}); list its choices instead')
+        if kind not in ("real", "int"):
+            raise _fail(f'vary."{key}" is not a number key ({kind}); list its choices instead')
         if not a < b:
             raise _fail(f'vary."{key}" is an empty range (from = {a:g} is not below to = {b:g});'
                         " give from < to, or a one-value list to fix the key")
         _bounds_check(key, float(a))
         _bounds_check(key, float(b))
-        if row.kind == "int":
+        if kind == "int":
             lo, hi = math.ceil(a), math.floor(b)
             if lo > hi:
                 raise _fail(f'vary."{key}" holds no whole number between {a:g} and {b:g}')
             return Variable(key, values=tuple(range(lo, hi + 1)))
         return Variable(key, low=float(a), high=float(b))
     raise _fail(f'vary."{key}" must be a list of choices or {{ from = a, to = b }}, got {spec!r}')
+
+
+def _refuse_overlaps(keys: tuple[str, ...]) -> None:
+    """Refuse two varied keys that set the same number.
+
+    A list and one of its items, or one item written twice (``[1]`` and ``[01]``).
+    """
+    from ridesim.scenario.load import split_indexed_key
+
+    seen: dict[tuple, str] = {}
+    for k in keys:
+        name, index = split_indexed_key(k) if "[" in k else (k, ())
+        for other_id, other in seen.items():
+            n, i = other_id
+            if n == name and (i == index or not i or not index):
+                both = name + "".join(f"[{x}]" for x in (index or i))
+                raise _fail(f'vary."{k}" and vary."{other}" both set {both}; vary each number'
+                            " once")
+        seen[(name, index)] = k
 
 
 def _requirement(path: str, spec: Any) -> list[Requirement]:
@@ -502,8 +559,9 @@ def load_brief(path: str | Path, *, probe: bool = True) -> Brief:
     if not isinstance(vary, dict) or not vary:
         raise _fail('brief needs a [vary] table of dotted scenario keys, e.g. "wheel.sides" ='
                     " [4, 5, 6]")
-    variables = tuple(_variable(k, s) for k, s in vary.items())
+    variables = tuple(_variable(k, s, base) for k, s in vary.items())
     keys = tuple(v.key for v in variables)
+    _refuse_overlaps(keys)
     # A combination of values the scenario refuses (e.g. fit_track_to_corners with no corner
     # radius) is not bad input: that design is reported as not evaluated, with the reason.
 

@@ -50,7 +50,9 @@ def evaluate_design(payload: dict) -> dict:
     -------
     dict
         ``key``, ``values``, ``figures`` (path -> value), ``jobs_run``, ``error`` (None or
-        one line) and ``elapsed_s`` (for the log only).
+        one line) and ``elapsed_s`` (for the log only); with a varied number of a list key
+        (``"wheel.harmonics[0][1]"``) also ``lists``: each such list key -> its whole value
+        in this design.
     """
     from ridesim.jobs import run_job
     from ridesim.scenario.load import scenario_from_dict
@@ -62,6 +64,10 @@ def evaluate_design(payload: dict) -> dict:
     try:
         sc = scenario_from_dict(payload["base"], base_dir=payload["base_dir"],
                                 source=payload["source"]).replace_many(payload["values"])
+        lists = sorted({k.split("[", 1)[0] for k in payload["values"] if "[" in k})
+        if lists:  # a varied number of a list: the journal keeps the whole list it made
+            data = sc.to_dict()
+            row["lists"] = {k: data[k.split(".")[0]][k.split(".")[1]] for k in lists}
         for job in payload["jobs"]:
             result = run_job(job, sc)
             row["jobs_run"].append(job)

@@ -25,7 +25,7 @@ from ridesim.jobs.design.brief import Brief, load_brief
 from ridesim.jobs.design.evaluate import Evaluator
 from ridesim.jobs.design.search import Judged, SearchOutcome, run_search
 
-__all__ = ["DesignResult", "run_design", "scenario_toml", "pareto_front"]
+__all__ = ["DesignResult", "run_design", "scenario_toml", "pareto_front", "figure_label"]
 
 
 def _toml_value(v: Any) -> str:
@@ -421,11 +421,73 @@ class DesignResult:
                        c=SERIES_COLOURS[0], label="meets the brief")
             ax.plot([d.goals[0] for d in front], [d.goals[1] for d in front], "o-",
                     c=SERIES_COLOURS[1], label="trade-off front")
-            ax.set_xlabel(g0.text())
-            ax.set_ylabel(g1.text())
+            better = {1: "(lower is better)", -1: "(higher is better)"}
+            ax.set_xlabel(f"{figure_label(g0.path)} {better[g0.sense]}")
+            ax.set_ylabel(f"{figure_label(g1.path)} {better[g1.sense]}")
             ax.legend()
             ax.set_title(f"{Path(self.brief.source).name}: {len(front)} designs on the front")
             return _save(fig, path, svg=False)
+
+
+#: Plain words for the figures and keys briefs most often optimise (the rest keep their path).
+FIGURE_WORDS = {
+    "solve.period_m": "track period",
+    "check.pair.period_m": "track period",
+    "check.pair.depth_max_m": "greatest axle-to-rim distance",
+    "check.pair.depth_min_m": "least axle-to-rim distance",
+    "check.pair.wheel_mass_kg": "wheel mass",
+    "check.friction.required_peak": "friction needed (peak)",
+    "check.clearance.min_m": "least clearance",
+    "check.torque.peak_Nm": "peak torque per motor",
+    "check.torque.rms_Nm": "r.m.s. torque per motor",
+    "check.power_peak_W": "peak power",
+    "size-motor.peak_torque_Nm": "peak motor torque",
+    "simulate.axle_bounce_m": "axle bounce",
+    "simulate.torque.peak_Nm": "simulated peak torque per motor",
+    "simulate.comfort.weighted_rms_m_s2": "seat vibration (ISO 2631-1 weighted r.m.s.)",
+    "simulate.speed.ripple_pct": "speed ripple",
+    "wheel.sides": "number of sides",
+    "wheel.apothem_m": "wheel apothem",
+    "wheel.corner_radius_m": "corner radius",
+    "wheel.mean_radius_m": "mean wheel radius",
+    "surface.friction": "friction coefficient",
+}
+
+#: Units by the end of a path (SI suffixes of keys and figures), longest first.
+_UNITS = (("_m_s2", "m/s²"), ("_m_s", "m/s"), ("_rad_s", "rad/s"), ("_kg_m2", "kg m²"),
+          ("_Nm", "N m"), ("_pct", "%"), ("_kg", "kg"), ("_rad", "rad"), ("_W", "W"),
+          ("_s", "s"), ("_m", "m"))
+
+
+def figure_label(path: str) -> str:
+    """An axis label in plain words with the unit for a figure path or a varied key.
+
+    Parameters
+    ----------
+    path : str
+        ``"simulate.axle_bounce_m"``, ``"wheel.harmonics[0][1]"``...
+
+    Returns
+    -------
+    str
+        ``"axle bounce [m]"``; a coefficient of a harmonic wheel's term by its place in the
+        list; any other path itself, with the unit its name ends in.
+
+    Examples
+    --------
+    >>> figure_label("simulate.axle_bounce_m")
+    'axle bounce [m]'
+    >>> figure_label("wheel.harmonics[1][2]")
+    'harmonics term 1: sine coefficient b_k [fraction of mean radius]'
+    """
+    if path.startswith("wheel.harmonics[") and path.count("[") == 2:
+        i, j = (int(x) for x in path[len("wheel.harmonics"):].strip("[]").split("]["))
+        what = ("mode number k", "cosine coefficient a_k", "sine coefficient b_k")[min(j, 2)]
+        unit = "" if j == 0 else " [fraction of mean radius]"
+        return f"harmonics term {i}: {what}{unit}"
+    words = FIGURE_WORDS.get(path, path)
+    si = next((u for suffix, u in _UNITS if path.endswith(suffix)), None)
+    return f"{words} [{si}]" if si else words
 
 
 def _miss(q: dict) -> str:
