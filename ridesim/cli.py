@@ -441,9 +441,10 @@ def main(argv: list[str] | None = None) -> int:
         sc = load_scenario(args.scenario)
         for line in sc.warnings:  # valid but outside real builds: most likely a unit slip
             print(f"warning: {line}", file=sys.stderr)
-        from ridesim.jobs.hub import require_line
+        if sc.path.is_hub:  # the hub jobs' module is imported only for a hub path
+            from ridesim.jobs.hub import require_line
 
-        require_line(sc, args.command)
+            require_line(sc, args.command)
         fn = commands[args.command][0]
         staged = args.out and args.command in _SET_COMMANDS
         stage = begin_set(args.out, args.command) if staged else None

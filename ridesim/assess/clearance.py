@@ -84,6 +84,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
+from ridesim.arrays import unique_sorted
 from ridesim.errors import InputError
 from ridesim.roots import find_minimum
 from ridesim.solve.pair import RollingPair
@@ -605,7 +606,7 @@ class _SmoothRim:
         if points is None:
             phi = np.linspace(0.0, TWO_PI, int(n), endpoint=False)
             splits = np.array(tuple(w.kinks) + tuple(w.breaks), dtype=float)
-            phi = np.unique(np.concatenate([phi, np.mod(splits, TWO_PI)]))
+            phi = unique_sorted(np.concatenate([phi, np.mod(splits, TWO_PI)]))
             r = np.asarray(w.radius(phi), dtype=float)
             self.P = np.column_stack([r * np.cos(phi), r * np.sin(phi)])
             self.phi = phi
@@ -883,7 +884,7 @@ def _pose_grid(pair: RollingPair, x_start: float, n_base: int | None) -> np.ndar
         xs += [cx, (cx[:, None] - off).ravel(), (cx[:, None] + off).ravel()]
     x = np.concatenate(xs)
     x = x_start + np.mod(x - x_start, L)
-    return np.unique(x)
+    return unique_sorted(x)
 
 
 def clearance(
@@ -964,7 +965,7 @@ def _check_poses(pair: RollingPair, poses: np.ndarray | None) -> tuple[np.ndarra
     if poses is None:
         x = _pose_grid(pair, x_start, None)
     else:
-        x = np.unique(np.asarray(poses, dtype=float).ravel())
+        x = unique_sorted(np.asarray(poses, dtype=float).ravel())
         if x.size == 0 or not np.all(np.isfinite(x)):
             raise InputError("poses must be a non-empty array of finite axle positions in metres")
         x_start = float(x[0])
