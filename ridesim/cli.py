@@ -13,7 +13,6 @@ from __future__ import annotations
 import argparse
 import json
 import os
-import shutil
 import sys
 from collections.abc import Callable
 from pathlib import Path
@@ -24,10 +23,6 @@ from ridesim.errors import RidesimError
 from ridesim.errors import ScenarioError as ScenarioError_
 
 __all__ = ["main"]
-
-
-_SET_COMMANDS = ("render", "export", "report")
-"""Commands that write a set of files: staged, then swapped in whole (export/results.py)."""
 
 
 class _ArgumentError(Exception):
@@ -433,8 +428,7 @@ def main(argv: list[str] | None = None) -> int:
     except SystemExit as exc:  # --help / --version
         return int(exc.code or 0)
     try:
-        from ridesim.export.results import begin_set, commit_set, json_ready, write_json_atomic
-        from ridesim.jobs import check_figures, numeric_warnings
+        from ridesim.jobs import run_into
         from ridesim.scenario.load import load_scenario
 
         if args.out:
@@ -448,32 +442,16 @@ def main(argv: list[str] | None = None) -> int:
         sc = load_scenario(args.scenario)
         for line in sc.warnings:  # valid but outside real builds: most likely a unit slip
             print(f"warning: {line}", file=sys.stderr)
-        from ridesim.jobs.hub import require_line
+        if sc.path.is_hub:  # the hub jobs' module is imported only for a hub path
+            from ridesim.jobs.hub import require_line
 
-        require_line(sc, args.command)
+            require_line(sc, args.command)
         fn = commands[args.command][0]
-        staged = args.out and args.command in _SET_COMMANDS
-        stage = begin_set(args.out, args.command) if staged else None
-        try:
-            with numeric_warnings() as trouble:  # library noise becomes one line each, below
-                data, text = fn(sc, argparse.Namespace(**{**vars(args), "out": str(stage)})
-                                if staged else args)
-            check_figures(args.command, data, sc)  # divergence is an error, not a result
-            data = json_ready({**data, "warnings": list(sc.warnings) + trouble})
-            if staged:  # the set names its final place
-                data = json.loads(json.dumps(data).replace(json.dumps(str(stage))[1:-1],
-                                                           json.dumps(str(Path(args.out)))[1:-1]))
-                text = text.replace(str(stage), str(Path(args.out)))
-                if stage is not None:
-                    write_json_atomic(stage / f"{args.command}.json", data)
-                    commit_set(args.out, stage, args.command)
-        finally:
-            if stage is not None and stage.exists():
-                shutil.rmtree(stage, ignore_errors=True)  # not committed: the old set stays
+        data, text, trouble = run_into(
+            args.command, sc, args.out,
+            lambda folder: fn(sc, argparse.Namespace(**{**vars(args), "out": folder})))
         for line in trouble:
             print(f"warning: {line}", file=sys.stderr)
-        if args.out and not staged:
-            write_json_atomic(Path(args.out) / f"{args.command}.json", data)
         if args.json:
             sys.stdout.write(json.dumps(data) + "\n")
         else:

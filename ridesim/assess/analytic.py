@@ -59,6 +59,7 @@ from dataclasses import dataclass, field
 
 import numpy as np
 
+from ridesim.arrays import unique_sorted
 from ridesim.assess.friction import G_STANDARD_M_S2, ContactLoads, contact_loads, cycle_nodes
 from ridesim.errors import InputError
 from ridesim.model.vehicle import axle_offsets_m, drive_motors, motor_name
@@ -298,7 +299,7 @@ def _constant_torque_ripple(pair, x, w, offsets, driven_set, mp, body_mass, crr,
     I_A = 0.0 if mp is None else mp.inertia_kg_m2
     c0 = (0.0, 0.0) if mp is None else mp.com_m
     # Sorted, strictly increasing grid with both ends for cumulative integrals.
-    xs = np.unique(np.concatenate([x, [0.0, L]]))
+    xs = unique_sorted(np.concatenate([x, [0.0, L]]))
     Mx = np.full(xs.shape, float(body_mass))
     pe = np.zeros(xs.shape)
     theta_drv = np.zeros(xs.shape)

@@ -84,6 +84,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
+from ridesim.arrays import unique_sorted
 from ridesim.errors import InputError
 from ridesim.roots import find_minimum
 from ridesim.solve.pair import RollingPair
@@ -439,20 +440,20 @@ class _BoxTree:
         so its extremes over a box are at the corners.
         """
         kx, ky = self.levels[lev]
-        X = [x + kx[j][ni] * c + ky[j][ni] * s for j in range(4)]
-        Y = [-kx[j][ni] * s + ky[j][ni] * c for j in range(4)]
-        xl = np.minimum(np.minimum(X[0], X[1]), np.minimum(X[2], X[3]))
-        xr = np.maximum(np.maximum(X[0], X[1]), np.maximum(X[2], X[3]))
+        KX, KY = kx[:, ni], ky[:, ni]  # the four corners, one row each
+        X = x + KX * c + KY * s
+        Y = -KX * s + KY * c
+        xl = X.min(axis=0)
+        xr = X.max(axis=0)
         lines, wide = env.lines(xl, xr)
         per_line: list[np.ndarray] = []
         for centre, yc, mc, pad in lines:
-            u = [Y[j] - (yc + mc * (X[j] - centre)) for j in range(4)]
-            v = np.minimum(np.minimum(u[0], u[1]), np.minimum(u[2], u[3]))
+            v = (Y - (yc + mc * (X - centre))).min(axis=0)
             per_line.append(v - pad if lower else pad - v)
         res = per_line[0]  # env.lines gives two bins' lines per box
         for v in per_line[1:]:
             res = np.minimum(res, v) if lower else np.maximum(res, v)
-        ylo = np.minimum(np.minimum(Y[0], Y[1]), np.minimum(Y[2], Y[3]))
+        ylo = Y.min(axis=0)
         if lower:
             return np.where(wide, ylo - env.global_max, res)
         return np.where(wide, env.global_max - ylo, res)
@@ -605,7 +606,7 @@ class _SmoothRim:
         if points is None:
             phi = np.linspace(0.0, TWO_PI, int(n), endpoint=False)
             splits = np.array(tuple(w.kinks) + tuple(w.breaks), dtype=float)
-            phi = np.unique(np.concatenate([phi, np.mod(splits, TWO_PI)]))
+            phi = unique_sorted(np.concatenate([phi, np.mod(splits, TWO_PI)]))
             r = np.asarray(w.radius(phi), dtype=float)
             self.P = np.column_stack([r * np.cos(phi), r * np.sin(phi)])
             self.phi = phi
@@ -657,6 +658,13 @@ class _Checker:
         self.lines = _LineEnvelope(pair.track, min(1 << 17, 2 * self.n_points // per_rev + 1))
 
     @property
+    def _polygon(self) -> _PolygonRim:
+        """The polygon rim of a wheel checked edge by edge."""
+        if self.poly is None:
+            raise InputError("clearance: this wheel is not checked as a polygon")
+        return self.poly
+
+    @property
     def _rim(self) -> _SmoothRim:
         """The sampled rim of a wheel not checked as a polygon."""
         if self.smooth is None:
@@ -693,7 +701,7 @@ class _Checker:
         # at most this (inf inside the contact exclusion), so runs whose lower bound is above
         # it cannot hold the least gap. The margin covers the rounding by which the exact edge
         # evaluation (edge_min's catenary form) may differ from track.y here.
-        P = self.poly.V if self.poly is not None else self.smooth.P
+        P = self.poly.V if self.poly is not None else self._rim.P
         phi = self._probe_phi[ki]
         cp, sp = c[pi], s[pi]
         X = x[pi] + P[ki, 0] * cp + P[ki, 1] * sp
@@ -705,7 +713,7 @@ class _Checker:
     def _eval_poly_pairs(self, x, theta, c, s, thr, pi, ei):
         # The all-points path below, restricted to the (pose, edge) pairs ``pi, ei``:
         # the same arithmetic, element by element.
-        p = self.poly
+        p = self._polygon
         V = p.V
         en = (ei + 1) % p.n
         cp, sp, xp = c[pi], s[pi], x[pi]
@@ -723,7 +731,7 @@ class _Checker:
         return _per_pose_min(len(x), pi, ei, gap, t)
 
     def _eval_smooth_pairs(self, x, theta, c, s, thr, pi, ki):
-        P = self.smooth.P
+        P = self._rim.P
         cp, sp = c[pi], s[pi]
         Xc = x[pi] + P[ki, 0] * cp + P[ki, 1] * sp
         Yc = -P[ki, 0] * sp + P[ki, 1] * cp
@@ -732,12 +740,12 @@ class _Checker:
         keep = Yc - self.env.point_max(Xc) < thr
         pi, ki, Xc, Yc = pi[keep], ki[keep], Xc[keep], Yc[keep]
         gap = Yc - np.asarray(self.track.y(Xc), dtype=float)
-        near = np.abs(_wrap_pi(self.smooth.phi[ki] - (theta[pi] - HALF_PI))) < self.delta
+        near = np.abs(_wrap_pi(self._rim.phi[ki] - (theta[pi] - HALF_PI))) < self.delta
         gap = np.where(near, np.inf, gap)
         return _per_pose_min(len(x), pi, ki, gap, np.zeros(gap.shape))
 
     def _eval_poly(self, x, theta, c, s, thr):
-        p = self.poly
+        p = self._polygon
         V = p.V
         n = p.n
         X = x[:, None] + V[:, 0] * c + V[:, 1] * s
@@ -753,7 +761,7 @@ class _Checker:
         return _per_pose_min(len(x), pi, ei, gap, t)
 
     def _eval_smooth(self, x, theta, c, s, thr):
-        P = self.smooth.P
+        P = self._rim.P
         X = x[:, None] + P[:, 0] * c + P[:, 1] * s
         Y = -P[:, 0] * s + P[:, 1] * c
         pi, ki = np.nonzero(Y < thr + self.env.global_max)
@@ -761,7 +769,7 @@ class _Checker:
         keep = Yc - self.env.point_max(Xc) < thr
         pi, ki, Xc, Yc = pi[keep], ki[keep], Xc[keep], Yc[keep]
         gap = Yc - np.asarray(self.track.y(Xc), dtype=float)
-        near = np.abs(_wrap_pi(self.smooth.phi[ki] - (theta[pi] - HALF_PI))) < self.delta
+        near = np.abs(_wrap_pi(self._rim.phi[ki] - (theta[pi] - HALF_PI))) < self.delta
         gap = np.where(near, np.inf, gap)
         return _per_pose_min(len(x), pi, ki, gap, np.zeros(gap.shape))
 
@@ -883,7 +891,7 @@ def _pose_grid(pair: RollingPair, x_start: float, n_base: int | None) -> np.ndar
         xs += [cx, (cx[:, None] - off).ravel(), (cx[:, None] + off).ravel()]
     x = np.concatenate(xs)
     x = x_start + np.mod(x - x_start, L)
-    return np.unique(x)
+    return unique_sorted(x)
 
 
 def clearance(
@@ -964,7 +972,7 @@ def _check_poses(pair: RollingPair, poses: np.ndarray | None) -> tuple[np.ndarra
     if poses is None:
         x = _pose_grid(pair, x_start, None)
     else:
-        x = np.unique(np.asarray(poses, dtype=float).ravel())
+        x = unique_sorted(np.asarray(poses, dtype=float).ravel())
         if x.size == 0 or not np.all(np.isfinite(x)):
             raise InputError("poses must be a non-empty array of finite axle positions in metres")
         x_start = float(x[0])

@@ -76,6 +76,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
+from ridesim.arrays import unique_sorted
 from ridesim.errors import InputError
 from ridesim.model.checks import finite as _finite
 from ridesim.model.wheel import MassProperties
@@ -299,7 +300,7 @@ def cycle_nodes(pair: RollingPair, n: int = 2048, offsets_m=(0.0,)) -> tuple[np.
         x = L * np.arange(n) / n
         return x, np.full(n, L / n)
     b = np.mod((cusps[None, :] - offs[:, None]).ravel(), L)
-    b = np.unique(b)
+    b = unique_sorted(b)
     # merge breaks closer than 1e-9 L
     keep = np.concatenate(([True], np.diff(b) > 1e-9 * L))
     b = b[keep]

@@ -32,6 +32,7 @@ from typing import Any
 
 import numpy as np
 
+from ridesim.arrays import unique_sorted
 from ridesim.errors import InputError
 from ridesim.export.results import write_json_atomic, write_text_atomic
 from ridesim.model.checks import positive as _positive
@@ -99,7 +100,7 @@ def sample_curve(point_fn: Callable[[np.ndarray], np.ndarray], breaks: Sequence[
     ndarray
         Increasing parameter values, including every break.
     """
-    b = np.unique(np.asarray(breaks, dtype=float))
+    b = unique_sorted(np.asarray(breaks, dtype=float))
     span = float(b[-1] - b[0])
     out = []
     for lo, hi in zip(b[:-1], b[1:], strict=True):
@@ -118,7 +119,7 @@ def sample_curve(point_fn: Callable[[np.ndarray], np.ndarray], breaks: Sequence[
         t = np.interp(np.linspace(0.0, cum[-1], n + 1), cum, edges) if cum[-1] > 0 else np.array([lo, hi])
         t[0], t[-1] = lo, hi
         out.append(_refine(point_fn, t, tol_m))
-    return np.unique(np.concatenate(out))
+    return unique_sorted(np.concatenate(out))
 
 
 def _chord_deviation(point_fn: Callable[[np.ndarray], np.ndarray], t: np.ndarray) -> np.ndarray:

@@ -183,3 +183,66 @@ def run_job(name: str, sc: Scenario, progress=None) -> dict:
     if trouble:
         out = {**out, "warnings": list(out.get("warnings", [])) + trouble}
     return json_ready(out)
+
+
+#: Commands whose files form one set in ``--out``: written whole or not at all.
+SET_JOBS = ("render", "export", "report")
+
+
+def run_into(name: str, sc: Scenario, out: str | None,
+             produce: Callable[[str | None], tuple[dict, str]]) -> tuple[dict, str, list[str]]:
+    """Run a command's job and write its result into ``out``, nothing half-written.
+
+    ``produce(folder)`` runs the job, writing its files (if any) into ``folder``. For the
+    commands of :data:`SET_JOBS` with an output folder, that folder is a staging folder
+    (:func:`ridesim.export.results.begin_set`) moved into ``out`` whole only when the job
+    has finished and its figures passed :func:`check_figures`; paths in the result then
+    name ``out``. Any failure leaves the previous set in place. Other commands write
+    ``out/NAME.json`` atomically.
+
+    Parameters
+    ----------
+    name : str
+        The command (``check``, ``render``, ...), also the JSON file's name.
+    sc : Scenario
+        The scenario it runs (its warnings join the result's).
+    out : str or None
+        Output folder, or None for none.
+    produce : callable
+        ``produce(folder) -> (data, text)``: the job's dict and its text.
+
+    Returns
+    -------
+    data : dict
+        The JSON-ready result with ``warnings``.
+    text : str
+        The text to print.
+    trouble : list of str
+        The numerical warnings raised while it ran (also in ``data["warnings"]``).
+    """
+    import json
+    import shutil
+    from pathlib import Path
+
+    from ridesim.export.results import begin_set, commit_set, json_ready, write_json_atomic
+
+    staged = bool(out) and name in SET_JOBS
+    stage = begin_set(out, name) if staged and out else None
+    try:
+        with numeric_warnings() as trouble:  # library noise becomes one line each
+            data, text = produce(str(stage) if stage is not None else out)
+        check_figures(name, data, sc)  # divergence is an error, not a result
+        data = json_ready({**data, "warnings": list(sc.warnings) + trouble})
+        if stage is not None and out:  # the set names its final place
+            final = str(Path(out))
+            data = json.loads(json.dumps(data).replace(json.dumps(str(stage))[1:-1],
+                                                       json.dumps(final)[1:-1]))
+            text = text.replace(str(stage), final)
+            write_json_atomic(stage / f"{name}.json", data)
+            commit_set(out, stage, name)
+    finally:
+        if stage is not None and stage.exists():
+            shutil.rmtree(stage, ignore_errors=True)  # not committed: the old set stays
+    if out and not staged:
+        write_json_atomic(Path(out) / f"{name}.json", data)
+    return data, text, trouble

@@ -176,7 +176,7 @@ class CheckResult:
 
             _, ax = plt.subplots(figsize=(8, 3.5))
         st = self.steady
-        if st is not None:
+        if st is not None and st.motor_torque_Nm is not None:
             import numpy as np
 
             for k in range(len(st.motors)):

@@ -35,6 +35,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
+from ridesim.arrays import unique_sorted
 from ridesim.errors import GeometryError, InputError
 
 __all__ = ["CORNER_ANGLE_DEG", "ClosedSpline", "PolarRim", "closed_turns", "open_turns", "choose_corners",
@@ -100,7 +101,7 @@ def choose_corners(turns: np.ndarray, corner_angle_deg: float, corners) -> np.nd
         bad = [i for i in idx if not 0 <= i < n]
         if bad:
             raise InputError(f"corners: point index {bad[0]} is outside 0..{n - 1}; count points from 0")
-        return np.unique(np.asarray(idx, dtype=int))
+        return unique_sorted(np.asarray(idx, dtype=int))
     a = float(corner_angle_deg)
     if not math.isfinite(a) or not 0.0 <= a < 180.0:
         raise InputError(f"corner_angle_deg must be in [0, 180) degrees, got {corner_angle_deg!r}")

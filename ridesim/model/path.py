@@ -17,13 +17,12 @@ from dataclasses import dataclass
 import numpy as np
 
 from ridesim.errors import InputError
+from ridesim.scenario.schema import HUB_SIDES, PATH_KINDS
 
 __all__ = ["AxlePath", "PATH_KINDS", "HUB_SIDES"]
 
-#: Kinds of axle path.
-PATH_KINDS = ("line", "hub")
-#: Sides of a hub the wheel can roll on: around it, or inside it (a ring).
-HUB_SIDES = ("outside", "inside")
+# PATH_KINDS (kinds of axle path) and HUB_SIDES (around the hub, or inside it: a ring) are
+# the scenario keys' choices, defined once in the key table.
 
 
 def _opt_positive(name: str, value: float | None) -> float | None:

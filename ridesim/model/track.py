@@ -19,6 +19,7 @@ from collections.abc import Callable, Sequence
 
 import numpy as np
 
+from ridesim.arrays import unique_sorted
 from ridesim.errors import GeometryError, InputError
 from ridesim.model.checks import positive as _positive
 from ridesim.model.outline import CORNER_ANGLE_DEG
@@ -422,7 +423,7 @@ class Track:
             ks = np.array(self._kinks)
             allk = (ks[None, :] + self._period * np.arange(m0, m1 + 1)[:, None]).ravel()
             allk = allk[(allk > x_start) & (allk < x_end)]
-            x = np.unique(np.concatenate([x, allk]))
+            x = unique_sorted(np.concatenate([x, allk]))
         return np.column_stack([x, self.y(x)])
 
     def __repr__(self) -> str:

@@ -19,6 +19,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
+from ridesim.arrays import unique_sorted
 from ridesim.errors import GeometryError, InputError
 from ridesim.model.checks import finite as _finite
 from ridesim.model.checks import point as _point
@@ -847,7 +848,7 @@ class Wheel:
 
         Composite Gauss-Legendre between corners; doubled until it agrees to 1e-13.
         """
-        breaks = np.unique(np.concatenate([[0.0], np.array(self._kinks), [TWO_PI]]))
+        breaks = unique_sorted(np.concatenate([[0.0], np.array(self._kinks), [TWO_PI]]))
         xg, wg = np.polynomial.legendre.leggauss(16)
         prev = None
         for panels in (16, 32, 64, 128, 256, 512):

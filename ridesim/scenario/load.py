@@ -25,7 +25,6 @@ Examples
 
 from __future__ import annotations
 
-import difflib
 import json
 import math
 import numbers
@@ -1838,6 +1837,8 @@ class _Table:
             message += f" ({_type(value)})"
         else:
             extra = hint(value) if hint else None
+            import difflib  # only on the error path
+
             close = difflib.get_close_matches(value.lower(), options, n=1, cutoff=0.6)
             if extra:
                 message += f"; {extra}"
@@ -2072,6 +2073,8 @@ def _unknown(prefix: str, key: str, allowed: Iterable[str], fallback: Iterable[s
 
 def _closest(key: str, candidates: list[str]) -> str | None:
     """Closest candidate: a unit-suffixed completion, else difflib, else a key prefix."""
+    import difflib  # only on the error path
+
     lowered = {c.lower(): c for c in candidates}
     low = key.lower()
     completions = [c for c in lowered if c.startswith(low + "_")]

@@ -37,7 +37,6 @@ Examples
 
 from __future__ import annotations
 
-import argparse
 import math
 import numbers
 import sys
@@ -122,10 +121,10 @@ MAX_DESCRIPTION_CHARS = 2000
 """Longest scenario ``description`` in characters."""
 
 PATH_KINDS = ("line", "hub")
-"""Allowed values of ``path.kind`` (the same as ``ridesim.model.path.PATH_KINDS``)."""
+"""Allowed values of ``path.kind``: the kinds of axle path (``ridesim.model.path`` reads them here)."""
 
 HUB_SIDES = ("outside", "inside")
-"""Allowed values of ``path.side`` (the same as ``ridesim.model.path.HUB_SIDES``)."""
+"""Allowed values of ``path.side``: around the hub, or inside it (a ring)."""
 
 HUB_VIEWS = ("gears", "carousel")
 """Allowed values of ``path.view``: how ``simulate`` runs a hub pair."""
@@ -824,6 +823,8 @@ def markdown_reference() -> str:
 
 
 def _main(argv: list[str] | None = None) -> int:
+    import argparse
+
     parser = argparse.ArgumentParser(prog="python3 -m ridesim.scenario.schema",
                                      description="Print the scenario key reference.")
     parser.add_argument("--markdown", action="store_true", help="print it as Markdown")

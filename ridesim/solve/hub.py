@@ -821,10 +821,10 @@ def _ratio_function(ratio):
     spline = CubicSpline(th, val, bc_type="periodic")
     t0 = float(th[0])
 
-    def R(theta: np.ndarray) -> np.ndarray:
+    def R_table(theta: np.ndarray) -> np.ndarray:
         return spline(np.mod(np.asarray(theta, dtype=float) - t0, TWO_PI) + t0)
 
-    return R, "table"
+    return R_table, "table"
 
 
 def gears_for_ratio(ratio, *, centre_distance: float, side: str = "outside") -> HubPair:

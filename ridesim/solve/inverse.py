@@ -17,6 +17,7 @@ import math
 
 import numpy as np
 
+from ridesim.arrays import unique_sorted
 from ridesim.errors import ClosureError, GeometryError, InputError
 from ridesim.model.track import Track
 from ridesim.model.wheel import Wheel
@@ -64,7 +65,7 @@ class _ClosureRule:
         xq, wq = [], []
         for a, b in zip(edges_all[:-1], edges_all[1:], strict=True):
             u = np.linspace(0.0, 1.0, uniform + 1)
-            u = np.unique(np.concatenate([u, grade / uniform, 1.0 - grade / uniform]))
+            u = unique_sorted(np.concatenate([u, grade / uniform, 1.0 - grade / uniform]))
             e = a + (b - a) * u
             mid, half = 0.5 * (e[1:] + e[:-1]), 0.5 * np.diff(e)
             xq.append((mid[:, None] + half[:, None] * _XG[None, :]).ravel())

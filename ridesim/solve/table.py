@@ -17,8 +17,10 @@ of the number of output samples. Cells never straddle a kink. Pure numpy, no I/O
 
 from __future__ import annotations
 
+from bisect import bisect_right
 from collections.abc import Callable, Sequence
 from dataclasses import dataclass
+from functools import cached_property
 
 import numpy as np
 from numpy.polynomial import chebyshev as _cheb
@@ -41,16 +43,34 @@ for _j in range(_NODES):
     _CHEB2MONO[: len(_p), _j] = _p
 _VAL2MONO = _CHEB2MONO @ _VAL2CHEB
 _MAX_CELLS = 1 << 16
+#: Up to this many points a table is evaluated with Python floats (same operations).
+_SMALL = 8
 
 
-def _horner(coef: np.ndarray, t: np.ndarray) -> np.ndarray:
-    """Evaluate monomials ``coef[..., k] t**k`` with per-point or shared coefficients."""
-    out = np.array(coef[..., -1], dtype=float, copy=True) * t
-    for k in range(coef.shape[-1] - 2, 0, -1):
-        out += coef[..., k]
-        out *= t
-    out += coef[..., 0]
-    return out
+def _horner(coef: np.ndarray, idx: np.ndarray, t: np.ndarray) -> np.ndarray:
+    """Evaluate monomials ``coef[idx, k] t**k``, one cell ``idx`` per point ``t``.
+
+    The coefficients are gathered one power at a time from the transposed table (a
+    contiguous gather per step, not a strided walk over per-point rows); few points are
+    evaluated with Python floats, where numpy's per-call cost would dominate. Both do the
+    same floating-point operations in the same order, so the results are identical.
+    """
+    if t.size <= _SMALL:
+        out = []
+        for i, tt in zip(idx.tolist(), t.tolist(), strict=True):
+            c = coef[i].tolist()
+            acc = c[-1] * tt
+            for k in range(len(c) - 2, 0, -1):
+                acc = (acc + c[k]) * tt
+            out.append(acc + c[0])
+        return np.array(out, dtype=float)
+    ct = coef.T
+    acc = ct[-1][idx] * t
+    for k in range(ct.shape[0] - 2, 0, -1):
+        acc += ct[k][idx]
+        acc *= t
+    acc += ct[0][idx]
+    return acc
 
 
 def _eval_sorted(edges: np.ndarray, coefs: tuple[np.ndarray, ...], flat: np.ndarray) -> list[np.ndarray]:
@@ -109,7 +129,27 @@ class PolyTable:
         """Upper end of the table's domain."""
         return float(self.edges[-1])
 
+    @cached_property
+    def _edge_list(self) -> list[float]:
+        return self.edges.tolist()
+
+    @cached_property
+    def _dg_coef(self) -> np.ndarray:
+        k = np.arange(1, self.g_coef.shape[1])
+        half = 0.5 * np.diff(self.edges)
+        return self.g_coef[:, 1:] * k / half[:, None]
+
     def _locate(self, s: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+        if s.size <= _SMALL:  # Python floats: the same arithmetic without numpy's call costs
+            edges = self._edge_list
+            last = len(edges) - 2
+            ids, ts = [], []
+            for v in s.tolist():
+                i = min(max(bisect_right(edges, v) - 1, 0), last)
+                lo = edges[i]
+                ids.append(i)
+                ts.append((v - lo) / (0.5 * (edges[i + 1] - lo)) - 1.0)
+            return np.array(ids, dtype=np.intp), np.array(ts, dtype=float)
         idx = np.searchsorted(self.edges, s, side="right") - 1
         np.clip(idx, 0, len(self.edges) - 2, out=idx)
         left = self.edges[idx]
@@ -124,7 +164,7 @@ class PolyTable:
         if n >= 64 * (len(self.edges) - 1) and np.all(flat[1:] >= flat[:-1]):
             return _eval_sorted(self.edges, (coef,), flat)[0].reshape(s.shape)
         idx, t = self._locate(flat)
-        return _horner(coef[idx], t).reshape(s.shape)
+        return _horner(coef, idx, t).reshape(s.shape)
 
     def G_and_g(self, s: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
         """``G`` and ``g`` at ascending ``s`` in one pass over the cells (dense outputs).
@@ -152,9 +192,7 @@ class PolyTable:
 
     def dg(self, s: np.ndarray) -> np.ndarray:
         """Derivative of the integrand at ``s`` from the table."""
-        k = np.arange(1, self.g_coef.shape[1])
-        half = 0.5 * np.diff(self.edges)
-        return self._eval(self.g_coef[:, 1:] * k / half[:, None], s)
+        return self._eval(self._dg_coef, s)
 
 
 def _cells_for(
@@ -282,7 +320,7 @@ def _newton_inverse(table: PolyTable, targets: np.ndarray, guess: np.ndarray) ->
     span = abs(table.hi - table.lo)
     for _ in range(12):
         idx, t = table._locate(s)
-        step = (_horner(table.G_coef[idx], t) - targets) / _horner(table.g_coef[idx], t)
+        step = (_horner(table.G_coef, idx, t) - targets) / _horner(table.g_coef, idx, t)
         s -= step
         np.clip(s, table.lo, table.hi, out=s)
         if np.max(np.abs(step)) <= 4e-16 * span:
