@@ -47,7 +47,7 @@ BASES = {
 
 
 def test_committed_reference_is_the_generated_one():
-    # docs/scenario-keys.md is written by `python3 -m ridesim.scenario.schema --markdown`; if this
+    # docs/scenario-keys.md is written by `python3 tools/scenario_keys.py`; if this
     # fails, regenerate it rather than editing it.
     committed = (ROOT / "docs" / "scenario-keys.md").read_text(encoding="utf-8")
     assert committed == markdown_reference()

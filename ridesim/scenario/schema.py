@@ -3,7 +3,7 @@
 Every key of a scenario's sections is one :class:`Key` row of :data:`KEYS`. From this table
 come the spec dataclasses' defaults and the loader's bound checks (``ridesim.scenario.load``),
 the plausibility warnings, and the Markdown key reference (``docs/scenario-keys.md``,
-written by ``python3 -m ridesim.scenario.schema --markdown``), so none of them can drift.
+written by ``python3 tools/scenario_keys.py``), so none of them can drift.
 
 Two kinds of range:
 
@@ -23,7 +23,7 @@ Adding a key
    taken from here: ``name: float = default_of("section.name")``.
 3. Read it in the section's parser with ``t.get("name")`` (type, default and bounds come
    from the row).
-4. Regenerate the reference: ``python3 -m ridesim.scenario.schema --markdown >
+4. Regenerate the reference: ``python3 tools/scenario_keys.py >
    docs/scenario-keys.md``. ``tests/test_schema.py`` fails until the spec, the table and
    the reference agree.
 
@@ -39,7 +39,6 @@ from __future__ import annotations
 
 import math
 import numbers
-import sys
 from collections.abc import Iterable
 from dataclasses import dataclass, replace
 from typing import Any
@@ -779,7 +778,7 @@ def markdown_reference() -> str:
     lines = [
         "# Scenario keys",
         "",
-        "Generated from `ridesim/scenario/schema.py` by `python3 -m ridesim.scenario.schema --markdown`;"
+        "Generated from `ridesim/scenario/schema.py` by `python3 tools/scenario_keys.py`;"
         " do not edit by hand (a test compares this file with the table).",
         "",
         "Top-level keys: `name` (default: the file stem) and `description` (default: empty).",
@@ -820,21 +819,3 @@ def markdown_reference() -> str:
         lines.append("")
     lines.append("Keys with a [shape] list apply to those wheel or track shapes only.")
     return "\n".join(lines) + "\n"
-
-
-def _main(argv: list[str] | None = None) -> int:
-    import argparse
-
-    parser = argparse.ArgumentParser(prog="python3 -m ridesim.scenario.schema",
-                                     description="Print the scenario key reference.")
-    parser.add_argument("--markdown", action="store_true", help="print it as Markdown")
-    args = parser.parse_args(argv)
-    if not args.markdown:
-        parser.print_help()
-        return 2
-    sys.stdout.write(markdown_reference())
-    return 0
-
-
-if __name__ == "__main__":  # pragma: no cover
-    sys.exit(_main())
