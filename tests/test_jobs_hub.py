@@ -60,8 +60,18 @@ def test_drum_carousel_check_and_text():
     assert res["friction_demand"] == pytest.approx(math.tan(math.pi / 6), rel=1e-3)
     assert res["least_gap_m"] > -1e-9
     # Too little friction is a reason not to roll.
+    # Flat carousel, no brake: the driven wheel's contact force lies along the line of centres
+    # (moments about the pivot), so the demand is the hexagon face's tan(pi/6) [derived].
+    # (sampled 2 microradians beside each corner, where the peak sits: within 1e-5)
+    assert res["friction"]["required_peak"] == pytest.approx(math.tan(math.pi / 6), rel=1e-5)
     slick = run_job("check", sc.replace("surface.friction", 0.3))
     assert slick["rollable"] is False and any("friction" in r for r in slick["reasons"])
+    assert [f["code"] for f in slick["findings"]] == ["friction_exceeded"]
+    assert slick["findings"][0]["blocks"] is True
+    # Standing up (a vertical drum), gravity leans the contact force: more friction is needed.
+    drum = run_job("check", sc.replace("path.gravity_in_plane", True))
+    assert drum["friction"]["gravity_m_s2"] > 0
+    assert drum["friction"]["required_peak"] > res["friction"]["required_peak"] + 0.05
 
 
 def test_export_writes_both_parts(tmp_path):
