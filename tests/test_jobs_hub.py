@@ -119,8 +119,11 @@ def test_hub_with_track_or_unsupported_job_is_refused(tmp_path, capsys):
     f.write_text('[track]\nshape = "wave"\namplitude_m = 0.02\nwavelength_m = 0.3\n[path]\nkind = "hub"\n')
     assert main(["solve", str(f)]) == 2
     assert "needs a [wheel]" in capsys.readouterr().err
-    assert main(["size-motor", str(SCENARIOS / "drum_carousel.toml")]) == 2
-    assert "does not handle" in capsys.readouterr().err
+    from ridesim.errors import ScenarioError
+    from ridesim.jobs.hub import require_line
+
+    with pytest.raises(ScenarioError, match="does not handle"):  # a job not listed in HUB_JOBS
+        require_line(load_scenario(SCENARIOS / "drum_carousel.toml"), "some-new-job")
     f.write_text(f.read_text().replace('kind = "hub"', 'kind = "hub"\nview = "gears"\nside = "inside"'
                                        '\nratio = 1.5'))
     assert main(["simulate", str(f)]) == 2  # a ring turns as a carousel only

@@ -26,7 +26,7 @@ from dataclasses import dataclass
 import numpy as np
 
 __all__ = ["HUB_DRIVES", "HubAssessment", "HubFriction", "HubLoads", "assess_hub", "hub_cycle",
-           "hub_friction", "hub_loads", "least_curvature_radius"]
+           "hub_cycle_turns", "hub_friction", "hub_loads", "least_curvature_radius"]
 
 TWO_PI = 2.0 * math.pi
 
@@ -315,6 +315,28 @@ def hub_loads(pair, theta, *, drive: str = "wheel", mass_kg: float = 0.0,
                     tangential_N=Ftan, mu_required=mu, drive_torque_Nm=torque, drive_rate=rate)
 
 
+def hub_cycle_turns(pair, full: bool) -> int:
+    """Wheel turns in the cycle: 1, or with ``full`` the ratio's numerator (at most 12).
+
+    Parameters
+    ----------
+    pair : HubPair
+        A closed pair.
+    full : bool
+        Cover every arm angle (after ``p`` wheel turns the arm has made ``q`` whole laps,
+        ratio ``p/q``).
+
+    Returns
+    -------
+    int
+    """
+    from fractions import Fraction
+
+    if not full:
+        return 1
+    return max(1, min(12, Fraction(float(pair.ratio)).limit_denominator(64).numerator))
+
+
 def hub_cycle(pair, n: int = 2048, *, full: bool = False) -> np.ndarray:
     """Wheel angles [rad] over the cycle: even samples plus one-sided samples at the corners.
 
@@ -333,11 +355,7 @@ def hub_cycle(pair, n: int = 2048, *, full: bool = False) -> np.ndarray:
     ndarray
         Sorted wheel angles [rad].
     """
-    from fractions import Fraction
-
-    turns = 1
-    if full:
-        turns = max(1, min(12, Fraction(float(pair.ratio)).limit_denominator(64).numerator))
+    turns = hub_cycle_turns(pair, full)
     span = TWO_PI * turns
     th = np.linspace(0.0, span, n * turns, endpoint=False)
     corners = np.array([k + 0.5 * math.pi for k in pair.wheel.kinks], dtype=float)

@@ -1,8 +1,8 @@
 """Jobs for a wheel rolling around a hub (``path.kind = "hub"``): solve text and check.
 
 A hub scenario is simulated as a gear pair or a carousel (:func:`simulate_hub`) and rendered
-as a speed-ratio plot and a clip of the carousel (:func:`render_hub`); motor sizing of a hub
-path is not built yet;
+as a speed-ratio plot and a clip of the carousel (:func:`render_hub`), and its motor sized at
+a steady speed (:func:`size_motor_hub`);
 :data:`HUB_JOBS` names the jobs that handle one, and :func:`require_line` refuses the
 others with one line.
 """
@@ -24,10 +24,11 @@ from ridesim.scenario.load import Scenario
 G_M_S2 = 9.80665
 
 __all__ = ["HUB_JOBS", "hub_load_case", "HubCheckResult", "HubSimResult", "check_hub", "simulate_hub",
-           "solve_hub_text", "require_line", "render_hub"]
+           "solve_hub_text", "require_line", "render_hub", "size_motor_hub",
+           "hub_drive_speed"]
 
 #: Jobs (command names) that handle a hub path.
-HUB_JOBS = ("solve", "check", "export", "simulate", "render", "report")
+HUB_JOBS = ("solve", "check", "export", "simulate", "render", "report", "size-motor")
 
 HUB_CAUTIONS = (
     "The hub check is kinematic: rigid pitch curves, contact on the line of centres, no tooth"
@@ -69,6 +70,76 @@ def hub_load_case(sc: Scenario, pair) -> dict:
     return {"mass_kg": float(mw.mass_kg), "com_m": tuple(float(c) for c in mw.com_m),
             "gravity_m_s2": G_M_S2 if gravity else 0.0, "preload_N": float(preload),
             "load_torque_Nm": float(sc.path.load_torque_Nm)}
+
+
+def hub_drive_speed(sc: Scenario, pair) -> float:
+    """The wheel's (driver's) shaft speed [rad/s].
+
+    ``drive.shaft_speed_rad_s``, or ``drive.speed_m_s`` over the wheel's mean contact radius.
+
+    Parameters
+    ----------
+    sc : Scenario
+        Validated scenario with ``path.kind = "hub"``.
+    pair : HubPair
+        Its solved pair.
+
+    Returns
+    -------
+    float
+    """
+    import numpy as np
+
+    if sc.drive.mode == "shaft_speed":
+        if sc.drive.shaft_speed_rad_s is None:
+            raise ScenarioError("drive.shaft_speed_rad_s is missing: drive.mode = \"shaft_speed\" needs it")
+        return float(sc.drive.shaft_speed_rad_s)
+    th = np.linspace(0.0, 2 * math.pi, 2048, endpoint=False)
+    return float(sc.drive.speed_m_s) / float(np.mean(pair.wheel_radius(th)))
+
+
+def size_motor_hub(sc: Scenario):
+    """Size the motor of a hub scenario at a steady speed (:mod:`ridesim.metrics.hub_motor`).
+
+    Gears (``path.view``): the driver gear at the wheel's shaft speed against the driven gear's
+    brake ``path.load_torque_Nm`` and inertia (a plate of the ``[wheel]`` thickness and
+    density). Carousel: the wheel's shaft at that speed (motor on the arm), and instead the arm
+    at the same mean lap rate (motor at the pivot), under :func:`hub_load_case`'s loads.
+
+    Parameters
+    ----------
+    sc : Scenario
+        Validated scenario with ``path.kind = "hub"``.
+
+    Returns
+    -------
+    HubMotorSizing
+    """
+    from ridesim.metrics.hub_motor import HubDrive, HubMotorSizing, gear_checks, hub_cautions, hub_drive
+    from ridesim.scenario.build import wheel_mass
+
+    if sc.wheel is None:
+        raise ScenarioError("a hub needs a [wheel] with its shape")
+    pair = solve_hub_scenario(sc)
+    if not pair.closed:
+        raise ScenarioError("the hub does not close at path.centre_distance_m; give path.ratio")
+    view = sc.path.sim_view
+    w = hub_drive_speed(sc, pair)
+    case = hub_load_case(sc, pair)
+    mw = wheel_mass(sc, pair.wheel)
+    drives: tuple[HubDrive, ...]
+    if view == "gears":
+        mh = pair.hub.mass_properties(sc.wheel.thickness_m, sc.wheel.density_kg_m3)
+        drives = (hub_drive(pair, "gear", w, wheel_inertia_kg_m2=mw.inertia_kg_m2,
+                            driven_inertia_kg_m2=mh.inertia_kg_m2, **case),)
+    else:
+        drives = (hub_drive(pair, "wheel", w, wheel_inertia_kg_m2=mw.inertia_kg_m2, **case),
+                  hub_drive(pair, "arm", w / float(pair.ratio), wheel_inertia_kg_m2=mw.inertia_kg_m2,
+                            **case))
+    gears, best = {}, {}
+    for d in drives:
+        gears[d.key], best[d.key] = gear_checks(sc, d)
+    return HubMotorSizing(sc.name, view, drives, gears, best, hub_cautions())
 
 
 def require_line(sc: Scenario, job: str) -> None:
@@ -413,12 +484,7 @@ def simulate_hub(sc: Scenario) -> HubSimResult:
     if not pair.closed:
         raise ScenarioError("the hub does not close at path.centre_distance_m; give path.ratio")
     th = np.linspace(0.0, 2 * math.pi, 2048, endpoint=False)
-    if sc.drive.mode == "shaft_speed":
-        if sc.drive.shaft_speed_rad_s is None:
-            raise ScenarioError("drive.shaft_speed_rad_s is missing: drive.mode = \"shaft_speed\" needs it")
-        w = float(sc.drive.shaft_speed_rad_s)
-    else:
-        w = float(sc.drive.speed_m_s) / float(np.mean(pair.wheel_radius(th)))
+    w = hub_drive_speed(sc, pair)
     mw = wheel_mass(sc, pair.wheel)
     turns = float(sc.run.duration_s) * w / (2 * math.pi)
     if view == "carousel":
