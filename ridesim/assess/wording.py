@@ -74,9 +74,10 @@ def _lift_off(d: Mapping[str, Any]) -> str:
 
 
 def _hub_where(d: Mapping[str, Any]) -> str:
-    where = (f"at wheel angle {d['at_theta_rad']:.3f} rad (arm at {_deg(d['arm_angle_rad']):.0f} deg"
-             f" from +x, pressure angle {_deg(d['pressure_angle_rad']):.0f} deg)")
-    return where
+    on = (f"the contact at {_deg(d['arm_angle_rad']):.0f} deg on the {d['part']}" if d.get("gears")
+          else f"arm at {_deg(d['arm_angle_rad']):.0f} deg from +x")
+    return (f"at wheel angle {d['at_theta_rad']:.3f} rad ({on}, pressure angle"
+            f" {_deg(d['pressure_angle_rad']):.0f} deg)")
 
 
 def _hub_friction_exceeded(d: Mapping[str, Any]) -> str:

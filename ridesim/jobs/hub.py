@@ -34,9 +34,9 @@ HUB_CAUTIONS = (
     "The hub check is kinematic: rigid pitch curves, contact on the line of centres, no tooth"
     " form, backlash, flex or wear; gears need teeth cut on these pitch curves by a gear"
     " specialist's method.",
-    "The friction demand and the drive torques are quasi-static (a slow, steady drive): the"
-    " wheel's and the driven member's inertia, impacts where the contact jumps and the arm's own"
-    " weight (taken as balanced on its pivot) are left out.",
+    "The check's friction demand is quasi-static (a slow, steady drive): inertia, impacts where"
+    " the contact jumps and the arm's own weight (taken as balanced on its pivot) are left out;"
+    " a fast drive needs more grip.",
 )
 
 
@@ -294,7 +294,7 @@ def _friction_line(fr: HubFriction, available: float) -> str:
             f" {fr.load_torque_Nm:.4g} N m); surface gives {available:.4g}")
 
 
-def hub_friction_findings(fr: HubFriction, part: str) -> list[Finding]:
+def hub_friction_findings(fr: HubFriction, part: str, view: str = "carousel") -> list[Finding]:
     """Findings on a hub pair's friction demand: lost contact, slip, a thin margin.
 
     Parameters
@@ -303,6 +303,8 @@ def hub_friction_findings(fr: HubFriction, part: str) -> list[Finding]:
         The demand along the cycle, with ``available`` set.
     part : str
         ``"hub"`` or ``"ring"`` (for the words).
+    view : str
+        ``"gears"`` or ``"carousel"`` (for the words: a gear pair has no arm).
 
     Returns
     -------
@@ -312,7 +314,8 @@ def hub_friction_findings(fr: HubFriction, part: str) -> list[Finding]:
 
     avail = float(fr.available) if fr.available is not None else math.inf
     data = {"at_theta_rad": fr.at_theta_rad, "arm_angle_rad": fr.arm_at_peak_rad,
-            "pressure_angle_rad": fr.pressure_angle_at_peak_rad, "part": part}
+            "pressure_angle_rad": fr.pressure_angle_at_peak_rad, "part": part,
+            "gears": fr.gravity_m_s2 == 0 and view == "gears"}
     if fr.lift_off:
         return [Finding("hub_lift_off", {**data, "preload_N": fr.preload_N})]
     if fr.peak > avail:
@@ -351,7 +354,7 @@ def check_hub(sc: Scenario) -> HubCheckResult:
         reasons.append(f"the outlines overlap by {-a.least_gap_m * 1000:.3f} mm at wheel angle"
                        f" {a.least_gap_theta_rad:.4f} rad: another part of the wheel meets the hub")
     fr = hub_friction(pair, drive="wheel", available=avail, **hub_load_case(sc, pair))
-    found = hub_friction_findings(fr, "hub" if pair.side == "outside" else "ring")
+    found = hub_friction_findings(fr, "hub" if pair.side == "outside" else "ring", sc.path.sim_view)
     for f in found:
         (reasons if f.blocks else notes).append(describe(f))
     # A ring's material lies outside its curve: where the curve bends in, the ring is convex

@@ -183,11 +183,15 @@ def hub_drive(pair, key: str, speed_rad_s: float, *, mass_kg: float = 0.0,
     t_s = np.cumsum(dt) - 0.5 * dt
     T = float(np.sum(dt))
     power = torque * w
+    peak = float(max(np.max(np.abs(torque)), np.max(np.abs(torque_c))))
+    mean = float(np.sum(torque * dt) / T)
+    if abs(mean) < 1e-9 * peak:  # gravity and inertia do no net work: rounding noise
+        mean = 0.0
     return HubDrive(key=key, t_s=t_s, theta_rad=th, torque_Nm=torque, static_torque_Nm=ld.drive_torque_Nm,
                     shaft_speed_rad_s=w, cycle_s=T,
-                    peak_torque_Nm=float(max(np.max(np.abs(torque)), np.max(np.abs(torque_c)))),
+                    peak_torque_Nm=peak,
                     rms_torque_Nm=float(math.sqrt(np.sum(torque**2 * dt) / T)),
-                    mean_torque_Nm=float(np.sum(torque * dt) / T),
+                    mean_torque_Nm=mean,
                     peak_power_W=float(max(np.max(power), np.max(torque_c * w))),
                     mean_power_W=float(np.sum(np.maximum(power, 0.0) * dt) / T))
 
@@ -253,11 +257,10 @@ class HubMotorSizing:
                     " drive it, one motor each)")
         lines = [head]
         for d in self.drives:
-            mean = d.mean_torque_Nm if abs(d.mean_torque_Nm) > 1e-9 * d.peak_torque_Nm else 0.0
             lines += [f"  {d.name}:",
                       f"    peak torque      {d.peak_torque_Nm:10.4g} N m",
                       f"    r.m.s. torque    {d.rms_torque_Nm:10.4g} N m   (continuous rating)",
-                      f"    mean torque      {mean:10.4g} N m",
+                      f"    mean torque      {d.mean_torque_Nm:10.4g} N m",
                       f"    shaft speed      {d.shaft_speed_rad_s:10.4g} rad/s"
                       f" ({d.shaft_speed_rad_s * RPM_PER_RAD_S:.4g} rpm)",
                       f"    peak power       {d.peak_power_W:10.4g} W",
