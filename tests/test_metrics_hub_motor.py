@@ -93,3 +93,22 @@ def test_size_motor_cli_on_hub_scenarios(capsys):
     assert main(["size-motor", str(SCENARIOS / "drum_carousel.toml")]) == 0
     text = capsys.readouterr().out
     assert "wheel shaft (motor on the arm)" in text and "arm (motor at the pivot" in text
+
+
+def test_hub_gear_ratios_are_checked_per_motor():
+    # Through a reduction i with efficiency eta the motor sees T/(i eta) and turns at i omega
+    # (common practice; the same rule as a line's sizing). The demo drum stood up, with no rotor
+    # inertia given (motor.inertia_kg_m2 = 0); the arm's samples are resampled evenly in time,
+    # hence the 0.2 % tolerance on its r.m.s.
+    from ridesim.jobs import run_job
+    from ridesim.scenario.load import load_scenario
+
+    sc = load_scenario(SCENARIOS / "drum_carousel.toml")
+    sc = sc.replace("path.gravity_in_plane", True).replace("motor.gear_ratios", [20.0])
+    out = run_job("size-motor", sc)
+    eta = sc.motor.efficiency
+    for m in out["motors"]:
+        (g,) = m["gears"]
+        assert g["motor_rms_torque_Nm"] == pytest.approx(m["rms_torque_Nm"] / (20 * eta), rel=2e-3)
+        assert g["motor_max_speed_rad_s"] == pytest.approx(20 * m["max_shaft_speed_rad_s"], rel=1e-12)
+    assert out["gears"] == out["motors"][0]["gears"]

@@ -263,7 +263,7 @@ class HubCheckResult:
         a = self.assessment
         if a is not None:
             lines += [
-                f"least gap between the outlines: {a.least_gap_m * 1000:+.4f} mm"
+                f"least gap between the outlines: {round(a.least_gap_m * 1000, 4) + 0.0:+.4f} mm"
                 f" (at wheel angle {a.least_gap_theta_rad:.4f} rad; 0 is the contact)",
                 f"largest pressure angle: {math.degrees(math.atan(a.friction_demand)):.2f} deg"
                 f" (tan {a.friction_demand:.4g}: the friction a free wheel pressed along the line"

@@ -296,5 +296,8 @@ def gear_checks(sc, drive: HubDrive) -> tuple[tuple[GearCheck, ...], float | Non
     """
     from ridesim.metrics.motor import _check_gears
 
-    om = np.full((1, drive.t_s.size), drive.shaft_speed_rad_s)
-    return _check_gears(sc, drive.torque_Nm[None, :], om, drive.t_s)
+    # Even steps in time (the arm's samples are even in the wheel's turn), as the checks average.
+    t = (np.arange(drive.t_s.size) + 0.5) * drive.cycle_s / drive.t_s.size
+    tq = np.interp(t, drive.t_s, drive.torque_Nm, period=drive.cycle_s)
+    om = np.full((1, t.size), drive.shaft_speed_rad_s)
+    return _check_gears(sc, tq[None, :], om, t)
