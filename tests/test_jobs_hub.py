@@ -244,3 +244,20 @@ def test_path_view_and_gravity_keys_are_checked(tmp_path, capsys):
     line.write_text('[wheel]\nshape = "circle"\nradius_m = 0.1\n[path]\nview = "carousel"\n')
     assert main(["check", str(line)]) == 2
     assert "belongs to a hub path" in capsys.readouterr().err
+
+
+def test_standing_drum_with_a_weak_preload_loses_contact():
+    # Inside a standing ring the preload P presses the wheel outwards while gravity pulls it
+    # towards the centre with m g sin(alpha) (alpha: the arm above the horizontal), so the
+    # normal force P - m g sin(alpha) first reaches zero at sin(alpha) = P/(m g)
+    # (radial statics; the pressure angle is ~0 there, at the middle of a face).
+    sc = load_scenario(SCENARIOS / "drum_carousel.toml")
+    sc = sc.replace("path.gravity_in_plane", True).replace("path.preload_N", 5.0)
+    res = run_job("check", sc)
+    assert res["rollable"] is False and [f["code"] for f in res["findings"]] == ["hub_lift_off"]
+    from ridesim.scenario.build import solve_hub_scenario, wheel_mass
+
+    m = wheel_mass(sc, solve_hub_scenario(sc).wheel).mass_kg
+    alpha = res["friction"]["arm_angle_at_peak_rad"]
+    assert math.sin(alpha) == pytest.approx(5.0 / (m * 9.80665), abs=0.01)
+    assert "leaves the ring" in res["reasons"][0] and "path.preload_N" in res["reasons"][0]
