@@ -214,9 +214,9 @@ def test_hub_pair_dxf_sizes(tmp_path):
         assert doc.header["$INSUNITS"] == 4 and doc.dxfversion == "AC1024"  # mm, R2010
         assert {"CUT", "MARK", "TEXT"} <= {layer.dxf.name for layer in doc.layers}
         assert doc.layers.get("CUT").color == 1 and doc.layers.get("MARK").color == 5
-        lo, hi = _polyline_radii(doc)  # chords within 0.0025 mm of the curve
-        assert lo == pytest.approx((a - c) * 1000, abs=0.005)
-        assert hi == pytest.approx((a + c) * 1000, abs=0.005)
+        lo, hi = _polyline_radii(doc)  # chords within export.chord_tolerance_m (0.01 mm default)
+        assert lo == pytest.approx((a - c) * 1000, abs=0.011)
+        assert hi == pytest.approx((a + c) * 1000, abs=0.011)
         (hole,) = doc.modelspace().query("CIRCLE")
         assert hole.dxf.layer == "CUT" and hole.dxf.radius == pytest.approx(5.0)
         assert len(doc.modelspace().query('LINE[layer=="MARK"]')) == 2  # the centre cross-hair
@@ -240,8 +240,8 @@ def test_ring_dxf_sizes(tmp_path):
     assert hi == pytest.approx(apothem / math.cos(math.pi / 6) + E, rel=1e-9)
     doc = ezdxf.readfile(tmp_path / "drum_carousel_ring.dxf")
     assert doc.header["$INSUNITS"] == 4
-    near, far = _polyline_radii(doc)  # chords within 0.0025 mm of the curve; corners kept
-    assert near == pytest.approx(lo * 1000, abs=0.005) and far == pytest.approx(hi * 1000, abs=0.005)
+    near, far = _polyline_radii(doc)  # chords within 0.01 mm (export.chord_tolerance_m); corners kept
+    assert near == pytest.approx(lo * 1000, abs=0.011) and far == pytest.approx(hi * 1000, abs=0.011)
     (disc,) = doc.modelspace().query("CIRCLE")
     assert disc.dxf.layer == "CUT" and disc.dxf.radius == pytest.approx((hi + 0.030) * 1000)
     cut = (tmp_path / "drum_carousel_cut_list.txt").read_text()

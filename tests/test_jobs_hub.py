@@ -60,8 +60,18 @@ def test_drum_carousel_check_and_text():
     assert res["friction_demand"] == pytest.approx(math.tan(math.pi / 6), rel=1e-3)
     assert res["least_gap_m"] > -1e-9
     # Too little friction is a reason not to roll.
+    # Flat carousel, no brake: the driven wheel's contact force lies along the line of centres
+    # (moments about the pivot), so the demand is the hexagon face's tan(pi/6) [derived].
+    # (sampled 2 microradians beside each corner, where the peak sits: within 1e-5)
+    assert res["friction"]["required_peak"] == pytest.approx(math.tan(math.pi / 6), rel=1e-5)
     slick = run_job("check", sc.replace("surface.friction", 0.3))
     assert slick["rollable"] is False and any("friction" in r for r in slick["reasons"])
+    assert [f["code"] for f in slick["findings"]] == ["friction_exceeded"]
+    assert slick["findings"][0]["blocks"] is True
+    # Standing up (a vertical drum), gravity leans the contact force: more friction is needed.
+    drum = run_job("check", sc.replace("path.gravity_in_plane", True))
+    assert drum["friction"]["gravity_m_s2"] > 0
+    assert drum["friction"]["required_peak"] > res["friction"]["required_peak"] + 0.05
 
 
 def test_export_writes_both_parts(tmp_path):
@@ -109,8 +119,11 @@ def test_hub_with_track_or_unsupported_job_is_refused(tmp_path, capsys):
     f.write_text('[track]\nshape = "wave"\namplitude_m = 0.02\nwavelength_m = 0.3\n[path]\nkind = "hub"\n')
     assert main(["solve", str(f)]) == 2
     assert "needs a [wheel]" in capsys.readouterr().err
-    assert main(["size-motor", str(SCENARIOS / "drum_carousel.toml")]) == 2
-    assert "does not handle" in capsys.readouterr().err
+    from ridesim.errors import ScenarioError
+    from ridesim.jobs.hub import require_line
+
+    with pytest.raises(ScenarioError, match="does not handle"):  # a job not listed in HUB_JOBS
+        require_line(load_scenario(SCENARIOS / "drum_carousel.toml"), "some-new-job")
     f.write_text(f.read_text().replace('kind = "hub"', 'kind = "hub"\nview = "gears"\nside = "inside"'
                                        '\nratio = 1.5'))
     assert main(["simulate", str(f)]) == 2  # a ring turns as a carousel only
@@ -231,3 +244,20 @@ def test_path_view_and_gravity_keys_are_checked(tmp_path, capsys):
     line.write_text('[wheel]\nshape = "circle"\nradius_m = 0.1\n[path]\nview = "carousel"\n')
     assert main(["check", str(line)]) == 2
     assert "belongs to a hub path" in capsys.readouterr().err
+
+
+def test_standing_drum_with_a_weak_preload_loses_contact():
+    # Inside a standing ring the preload P presses the wheel outwards while gravity pulls it
+    # towards the centre with m g sin(alpha) (alpha: the arm above the horizontal), so the
+    # normal force P - m g sin(alpha) first reaches zero at sin(alpha) = P/(m g)
+    # (radial statics; the pressure angle is ~0 there, at the middle of a face).
+    sc = load_scenario(SCENARIOS / "drum_carousel.toml")
+    sc = sc.replace("path.gravity_in_plane", True).replace("path.preload_N", 5.0)
+    res = run_job("check", sc)
+    assert res["rollable"] is False and [f["code"] for f in res["findings"]] == ["hub_lift_off"]
+    from ridesim.scenario.build import solve_hub_scenario, wheel_mass
+
+    m = wheel_mass(sc, solve_hub_scenario(sc).wheel).mass_kg
+    alpha = res["friction"]["arm_angle_at_peak_rad"]
+    assert math.sin(alpha) == pytest.approx(5.0 / (m * 9.80665), abs=0.01)
+    assert "leaves the ring" in res["reasons"][0] and "path.preload_N" in res["reasons"][0]

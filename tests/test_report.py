@@ -12,7 +12,7 @@ import pytest
 
 from ridesim.export.results import flatten
 from ridesim.jobs.report import write_report
-from ridesim.render.report import format_figure
+from ridesim.render.report import format_figure, format_value
 from ridesim.scenario.load import load_scenario
 
 ROOT = Path(__file__).resolve().parent.parent
@@ -214,3 +214,30 @@ def test_report_of_a_gear_pair_shows_its_centre_distance(tmp_path):
         if key.split(".")[-1] in ("cautions", "reasons", "notes") or isinstance(v, (list, dict)):
             continue
         assert f"{key} {format_figure(key, v)}" in " ".join(text.split()), key
+
+
+def test_hub_key_figures_are_the_check_and_size_motor_numbers(tmp_path):
+    # One quantity, one truth: the key figures of a hub page are the numbers `check` and
+    # `size-motor` return, formatted. For the elliptic pair the speed ratio runs over
+    # (1 - e)/(1 + e) .. (1 + e)/(1 - e) (Litvin et al. 2009) with e = sqrt(1 - (b/a)^2).
+    from ridesim.jobs import run_job
+
+    sc = load_scenario(ROOT / "scenarios" / "elliptic_gear_pair.toml")
+    page, figures = write_report(sc, tmp_path, simulate=False, clip_s=0.5)
+    check, sm = run_job("check", sc), run_job("size-motor", sc)
+    assert figures["check"]["friction"]["required_peak"] == pytest.approx(
+        check["friction"]["required_peak"], rel=1e-12)
+    assert figures["size_motor"]["peak_torque_Nm"] == pytest.approx(sm["peak_torque_Nm"], rel=1e-12)
+    keys = re.search(r"<ul class=keys>(.*?)</ul>", page.read_text(), re.S).group(1)
+    keys = " ".join(html.unescape(re.sub(r"<[^>]+>", " ", keys)).split())
+    e = math.sqrt(1 - (0.05 / 0.06) ** 2)
+    assert (1 - e) / (1 + e) == pytest.approx(check["speed_ratio_min"], rel=1e-5)
+    for text in (format_figure("centre_distance_m", check["solve"]["centre_distance_m"]),
+                 f"{format_value(check['friction']['required_peak'])} /"
+                 f" {format_value(check['friction_available'])}",
+                 format_value(check["speed_ratio_min"]), format_value(check["speed_ratio_max"]),
+                 format_figure("peak_torque_Nm", sm["peak_torque_Nm"]),
+                 format_figure("max_shaft_speed_rad_s", sm["max_shaft_speed_rad_s"]),
+                 format_figure("peak_power_W", sm["peak_power_W"]),
+                 "none: both convex"):
+        assert text in keys, text

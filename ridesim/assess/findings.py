@@ -47,6 +47,7 @@ CODES: dict[str, tuple[bool, str]] = {
     "shaft_surge": (False, "a constant shaft speed makes the ground speed surge"),
     "drive_torque_limit": (False, "the drive's torque limit is below the peak a motor needs"),
     "torque_drive_balance": (False, "a constant torque drive accelerates or slows the cart"),
+    "hub_lift_off": (True, "the wheel leaves the hub or ring somewhere in the cycle"),
     "creep": (False, "a simulated wheel crept out of phase with its track, or its bounce grew"),
 }
 

@@ -25,7 +25,8 @@ from dataclasses import dataclass
 
 import numpy as np
 
-__all__ = ["HubAssessment", "assess_hub", "least_curvature_radius"]
+__all__ = ["HUB_DRIVES", "HubAssessment", "HubFriction", "HubLoads", "assess_hub", "hub_cycle",
+           "hub_cycle_turns", "hub_friction", "hub_loads", "least_curvature_radius"]
 
 TWO_PI = 2.0 * math.pi
 
@@ -142,3 +143,305 @@ def assess_hub(pair, n: int = 4096) -> HubAssessment:
         wheel_concave_radius_m=least_curvature_radius(pair.wheel),
         hub_concave_radius_m=least_curvature_radius(pair.hub),
     )
+
+
+# ------------------------------------------------------------------ loads with gravity and a drive
+
+#: Who turns the pair: a motor on the arm turning the wheel's shaft (the gear view's driver),
+#: or a motor at the pivot turning the arm with the wheel free on its axle.
+HUB_DRIVES = ("wheel", "arm")
+
+
+@dataclass(frozen=True)
+class HubLoads:
+    """Quasi-static contact and drive loads of a hub pair at a set of wheel angles (arrays).
+
+    Attributes
+    ----------
+    theta_rad : ndarray
+        Wheel turn relative to the arm [rad] (the gear view's wheel angle).
+    arm_rad : ndarray
+        Arm angle [rad] in the hub's frame, anticlockwise from +x (gravity along -y).
+    pressure_angle_rad : ndarray
+        Angle [rad] between the contact normal and the line of centres.
+    normal_N, tangential_N : ndarray
+        Contact force on the wheel [N] along the contact normal (> 0 presses the parts
+        together) and along the common tangent.
+    mu_required : ndarray
+        ``|tangential| / normal`` [-]; inf where the normal force is not positive.
+    drive_torque_Nm : ndarray
+        Torque [N m] of the motor in its direction of motion (wheel: on the wheel's shaft
+        relative to the arm; arm: on the arm at the pivot); negative: the motor brakes.
+    drive_rate : ndarray
+        Motor turn per unit wheel turn ``dθ_motor/dθ`` [-] (1 for the wheel's shaft,
+        ``|dα/dθ|`` for the arm).
+    """
+
+    theta_rad: np.ndarray
+    arm_rad: np.ndarray
+    pressure_angle_rad: np.ndarray
+    normal_N: np.ndarray
+    tangential_N: np.ndarray
+    mu_required: np.ndarray
+    drive_torque_Nm: np.ndarray
+    drive_rate: np.ndarray
+
+
+def hub_loads(pair, theta, *, drive: str = "wheel", mass_kg: float = 0.0,
+              com_m: tuple[float, float] = (0.0, 0.0), gravity_m_s2: float = 0.0,
+              preload_N: float = 0.0, load_torque_Nm: float = 0.0, h: float = 1e-6) -> HubLoads:
+    r"""Contact force, friction demand and drive torque of a slowly driven hub pair.
+
+    Model (the carousel view: the hub fixed, an arm pivoted at its centre ``O`` carries the
+    wheel's axle ``A`` at ``E`` from ``O`` in a radial groove; the gear view is the same
+    mechanism seen from the arm, so with gravity off it covers a gear pair on fixed centres,
+    the brake of the driven gear standing for the brake of the arm). Unit vectors at the arm
+    angle ``α``: ``u`` from ``O`` to ``A``, ``t`` = ``u`` turned +90°. The contact ``C`` lies on
+    the line of centres, ``C = ρ u``; ``C - A = σ r u`` with ``σ = -1`` around a hub and
+    ``+1`` inside a ring.
+
+    Forces on the wheel (mass ``m``, centre of mass ``c_w`` from the axle, turned with the
+    wheel): the contact force ``F = F_u u + F_t t`` from the hub; the preload ``s P u`` of the
+    groove's spring (``s = -1``: towards ``O`` around a hub, ``+1``: onto the ring); the
+    groove's tangential force ``H t``; gravity ``m g`` along -y; the motor torque ``T_w``
+    (anticlockwise on the wheel, reacted on the arm). On the arm (massless, or balanced on its
+    pivot): ``-H t`` at ``A``, ``-T_w``, the pivot motor ``T_a`` and the brake
+    ``T_b = -T_L sgn(dα/dθ)`` opposing its motion. Quasi-static balance (slow drive: no
+    inertia terms):
+
+    .. code-block:: text
+
+        wheel, forces:           F_u = -s P - m g.u        F_t = -H - m g.t
+        wheel, moments about A:  σ r F_t + T_w + M_g = 0   (M_g = c_w x m g)
+        arm, moments about O:    -E H - T_w + T_a + T_b = 0
+
+    Wheel drive (``T_a = 0``): ``T_w = [σ r (T_b + E m g.t) - E M_g] / ρ`` (``1 + σ r/E =
+    ρ/E`` on either side); arm drive (``T_w = 0``): ``F_t = -M_g/(σ r)``, ``H = -F_t - m g.t``,
+    ``T_a = E H - T_b``.
+
+    The contact normal: in the hub's frame the contact runs along the hub's pitch curve,
+    ``C(θ) = ρ(θ) u(α(θ))``, so its tangent is ``dC/dθ = ρ' u + ρ α' t`` and the normal
+    ``n`` is that turned by 90°, pointing into the wheel (away from ``O`` around a hub, towards
+    it in a ring); it leans from the line of centres by the pressure angle
+    ``atan(|ρ'|/(ρ |α'|)) = atan(|dr/dθ|/r)``. Then ``N = F.n``, ``F_τ = F.τ`` and the
+    surface must supply ``μ ≥ |F_τ|/N`` [derived].
+
+    Checks (tests): a circle of radius ``R`` on a centred axle in a ring of radius ``ρ0``
+    with gravity, wheel driven: moments of wheel and arm together about ``O`` give
+    ``ρ0 F_t = E m g sin φ`` and the radial balance ``N = m g cos φ + P`` (``φ`` the arm from
+    straight down), so ``μ = (E/ρ0) m g sin φ / (m g cos φ + P)``, the classical ``tan φ`` of a
+    disc held in a cylinder when ``P = 0`` and ``R ≪ ρ0`` (the arm takes the rest of the
+    motor's reaction); gravity off, a preloaded circle pair braked by ``T_L`` needs
+    ``T_w = T_L R/ρ0`` and ``μ = T_w/(R P)``. The drive torque also equals the virtual work
+    ``dV/dθ + T_L |dα/dθ|`` (``V = m g y``).
+
+    Parameters
+    ----------
+    pair : HubPair
+        A closed pair.
+    theta : array_like
+        Wheel angles [rad] relative to the arm.
+    drive : str
+        ``"wheel"`` or ``"arm"`` (:data:`HUB_DRIVES`).
+    mass_kg : float
+        Wheel mass [kg] (its carriage's weight balanced or included).
+    com_m : (float, float)
+        Wheel's centre of mass [m] from its axle, in the wheel's own frame.
+    gravity_m_s2 : float
+        Gravity [m/s^2] in the plane, along -y of the hub's frame; 0: flat (or gear view).
+    preload_N : float
+        Spring force [N] pressing the axle towards the hub (outwards onto a ring).
+    load_torque_Nm : float
+        Brake torque [N m] opposing the arm's turn (the driven gear's load in the gear view).
+    h : float
+        Step [rad] of the central differences.
+
+    Returns
+    -------
+    HubLoads
+    """
+    from ridesim.errors import InputError
+
+    if drive not in HUB_DRIVES:
+        raise InputError(f"drive must be one of {', '.join(HUB_DRIVES)}, got {drive!r}")
+    th = np.asarray(theta, dtype=float)
+    E = float(pair.centre_distance)
+    outside = pair.side == "outside"
+    sig = -1.0 if outside else 1.0
+    sp = -1.0 if outside else 1.0
+    r = pair.wheel_radius(th)
+    rho = pair.hub_radius(th)
+    alpha, _axle, spin = pair.poses(th)
+    a_p, _, _ = pair.poses(th + h)
+    a_m, _, _ = pair.poses(th - h)
+    da = (a_p - a_m) / (2 * h)
+    drho = (pair.hub_radius(th + h) - pair.hub_radius(th - h)) / (2 * h)
+    ca, sa = np.cos(alpha), np.sin(alpha)
+    # Gravity (0, -m g) in (u, t) components: u = (cos a, sin a), t = (-sin a, cos a).
+    W = float(mass_kg) * float(gravity_m_s2)
+    gu, gt = -W * sa, -W * ca
+    # The centre of mass turns with the wheel (clockwise by spin): c_w = R(-spin) c.
+    cs, ss = np.cos(spin), np.sin(spin)
+    cx, cy = float(com_m[0]), float(com_m[1])
+    cwx = cx * cs + cy * ss
+    Mg = cwx * (-W)  # c_w x (0, -W): c_x * (-W) - c_y * 0
+    Tb = -float(load_torque_Nm) * np.sign(da)
+    P = float(preload_N)
+    Fu = -sp * P - gu
+    if drive == "wheel":
+        Tw = (sig * r * (Tb + E * gt) - E * Mg) / rho
+        H = (Tb - Tw) / E
+        Ft = -H - gt
+        torque = -Tw  # the motor turns the wheel clockwise relative to the arm
+        rate = np.ones_like(th)
+    else:
+        Ft = -Mg / (sig * r)
+        H = -Ft - gt
+        Ta = E * H - Tb
+        torque = Ta * np.sign(da)
+        rate = np.abs(da)
+    # Tangent of the hub's pitch curve at the contact, in (u, t); the normal into the wheel.
+    tu, tt = drho, rho * da
+    tl = np.hypot(tu, tt)
+    tu, tt = tu / tl, tt / tl
+    eps = np.sign(tt) * (1.0 if outside else -1.0)
+    nu, nt = eps * tt, -eps * tu
+    N = Fu * nu + Ft * nt
+    Ftan = Fu * tu + Ft * tt
+    with np.errstate(divide="ignore", invalid="ignore"):
+        mu = np.where(N > 0, np.abs(Ftan) / np.where(N > 0, N, 1.0), np.inf)
+    beta = np.arctan2(np.abs(nt), np.abs(nu))
+    return HubLoads(theta_rad=th, arm_rad=alpha, pressure_angle_rad=beta, normal_N=N,
+                    tangential_N=Ftan, mu_required=mu, drive_torque_Nm=torque, drive_rate=rate)
+
+
+def hub_cycle_turns(pair, full: bool) -> int:
+    """Wheel turns in the cycle: 1, or with ``full`` the ratio's numerator (at most 12).
+
+    Parameters
+    ----------
+    pair : HubPair
+        A closed pair.
+    full : bool
+        Cover every arm angle (after ``p`` wheel turns the arm has made ``q`` whole laps,
+        ratio ``p/q``).
+
+    Returns
+    -------
+    int
+    """
+    from fractions import Fraction
+
+    if not full:
+        return 1
+    return max(1, min(12, Fraction(float(pair.ratio)).limit_denominator(64).numerator))
+
+
+def hub_cycle(pair, n: int = 2048, *, full: bool = False) -> np.ndarray:
+    """Wheel angles [rad] over the cycle: even samples plus one-sided samples at the corners.
+
+    Parameters
+    ----------
+    pair : HubPair
+        A closed pair.
+    n : int
+        Samples per wheel turn.
+    full : bool
+        Cover every arm angle as well: the wheel turns after which the whole mechanism
+        repeats (the ratio's numerator, at most 12 turns; needed with gravity in the plane).
+
+    Returns
+    -------
+    ndarray
+        Sorted wheel angles [rad].
+    """
+    turns = hub_cycle_turns(pair, full)
+    span = TWO_PI * turns
+    th = np.linspace(0.0, span, n * turns, endpoint=False)
+    corners = np.array([k + 0.5 * math.pi for k in pair.wheel.kinks], dtype=float)
+    if corners.size:
+        c = np.mod(corners, TWO_PI)
+        c = (c[None, :] + TWO_PI * np.arange(turns)[:, None]).ravel()
+        th = np.concatenate([th, c - 2e-6, c + 2e-6])
+    return np.sort(np.mod(th, span))
+
+
+@dataclass(frozen=True)
+class HubFriction:
+    """Friction the contact of a hub pair needs along its cycle.
+
+    Attributes
+    ----------
+    loads : HubLoads
+        The loads at every sample.
+    peak : float
+        Largest required coefficient [-] (inf when the parts lose contact).
+    at_theta_rad, arm_at_peak_rad, pressure_angle_at_peak_rad : float
+        Wheel angle, arm angle and pressure angle [rad] at the peak.
+    available : float or None
+        The surface's coefficient [-].
+    slips : bool or None
+        ``peak > available``; None without ``available``.
+    lift_off : bool
+        True when the normal force is not positive somewhere.
+    drive, gravity_m_s2, preload_N, load_torque_Nm : as given
+    """
+
+    loads: HubLoads
+    peak: float
+    at_theta_rad: float
+    arm_at_peak_rad: float
+    pressure_angle_at_peak_rad: float
+    available: float | None
+    slips: bool | None
+    lift_off: bool
+    drive: str
+    gravity_m_s2: float
+    preload_N: float
+    load_torque_Nm: float
+
+    def to_dict(self) -> dict:
+        """Summary values, JSON-ready (arrays left out)."""
+        return {"required_peak": float(self.peak) if math.isfinite(self.peak) else None,
+                "at_theta_rad": self.at_theta_rad, "arm_angle_at_peak_rad": self.arm_at_peak_rad,
+                "pressure_angle_at_peak_rad": self.pressure_angle_at_peak_rad,
+                "available": self.available, "slips": self.slips, "lift_off": self.lift_off,
+                "drive": self.drive, "gravity_m_s2": self.gravity_m_s2, "preload_N": self.preload_N,
+                "load_torque_Nm": self.load_torque_Nm}
+
+
+def hub_friction(pair, *, drive: str = "wheel", mass_kg: float = 0.0,
+                 com_m: tuple[float, float] = (0.0, 0.0), gravity_m_s2: float = 0.0,
+                 preload_N: float = 0.0, load_torque_Nm: float = 0.0,
+                 available: float | None = None, n: int = 2048) -> HubFriction:
+    """Required friction of a slowly driven hub pair over its cycle (:func:`hub_loads`).
+
+    With gravity the cycle covers every arm angle (:func:`hub_cycle` with ``full``).
+
+    Parameters
+    ----------
+    pair : HubPair
+        A closed pair.
+    drive, mass_kg, com_m, gravity_m_s2, preload_N, load_torque_Nm
+        As :func:`hub_loads`.
+    available : float, optional
+        The surface's coefficient [-].
+    n : int
+        Samples per wheel turn.
+
+    Returns
+    -------
+    HubFriction
+    """
+    th = hub_cycle(pair, n, full=gravity_m_s2 > 0)
+    ld = hub_loads(pair, th, drive=drive, mass_kg=mass_kg, com_m=com_m, gravity_m_s2=gravity_m_s2,
+                   preload_N=preload_N, load_torque_Nm=load_torque_Nm)
+    lifted = ~(ld.normal_N > 0)
+    k = int(np.argmax(lifted)) if lifted.any() else int(np.argmax(ld.mu_required))
+    peak = float(ld.mu_required[k])
+    avail = None if available is None else float(available)
+    return HubFriction(loads=ld, peak=peak, at_theta_rad=float(th[k]), arm_at_peak_rad=float(
+        np.mod(ld.arm_rad[k], TWO_PI)), pressure_angle_at_peak_rad=float(ld.pressure_angle_rad[k]),
+        available=avail, slips=None if avail is None else bool(peak > avail),
+        lift_off=bool(lifted.any()), drive=drive, gravity_m_s2=float(gravity_m_s2),
+        preload_N=float(preload_N), load_torque_Nm=float(load_torque_Nm))

@@ -73,7 +73,23 @@ def _lift_off(d: Mapping[str, Any]) -> str:
             " about its axle or add body weight")
 
 
+def _hub_where(d: Mapping[str, Any]) -> str:
+    on = (f"the contact at {_deg(d['arm_angle_rad']):.0f} deg on the {d['part']}" if d.get("gears")
+          else f"arm at {_deg(d['arm_angle_rad']):.0f} deg from +x")
+    return (f"at wheel angle {d['at_theta_rad']:.3f} rad ({on}, pressure angle"
+            f" {_deg(d['pressure_angle_rad']):.0f} deg)")
+
+
+def _hub_friction_exceeded(d: Mapping[str, Any]) -> str:
+    return (f"peak friction demand {d['required']:.2f} exceeds the surface's {d['available']:.2f}"
+            f" {_hub_where(d)}: the wheel will slip on the {d['part']} there; use a grippier"
+            " surface, a stronger preload (path.preload_N), a lighter brake or a gentler pitch"
+            " curve (a higher ratio, a rounder wheel)")
+
+
 def _friction_exceeded(d: Mapping[str, Any]) -> str:
+    if "at_theta_rad" in d:
+        return _hub_friction_exceeded(d)
     acc = d.get("accel_m_s2")
     during = "" if acc is None else (f" while accelerating at {acc:.3g} m/s^2"
                                      f" ({d['required_steady']:.2f} at steady speed)")
@@ -85,6 +101,10 @@ def _friction_exceeded(d: Mapping[str, Any]) -> str:
 
 
 def _friction_margin_thin(d: Mapping[str, Any]) -> str:
+    if "at_theta_rad" in d:
+        return (f"friction margin is thin: the contact needs {d['required']:.2f} of the surface's"
+                f" {d['available']:.2f} {_hub_where(d)}; friction coefficients vary widely with"
+                " dirt, moisture and wear, so measure it")
     return (f"friction margin is thin: the track needs {d['required']:.2f} of the surface's"
             f" {d['available']:.2f}; friction coefficients vary widely with dirt, moisture and"
             " wear, so measure it")
@@ -162,6 +182,12 @@ def _torque_drive_balance(d: Mapping[str, Any]) -> str:
                else "slowing the cart"))
 
 
+def _hub_lift_off(d: Mapping[str, Any]) -> str:
+    return (f"the wheel leaves the {d['part']} {_hub_where(d)}: the contact force there is not"
+            f" positive with a preload of {d['preload_N']:.3g} N; raise path.preload_N (a spring"
+            " pressing the axle onto the " + d["part"] + ") or lighten the brake")
+
+
 def _creep(d: Mapping[str, Any]) -> str:
     parts = []
     if d["drift_exceeds"]:
@@ -220,6 +246,7 @@ _WORDS: dict[str, Callable[[Mapping[str, Any]], str]] = {
     "shaft_surge": _shaft_surge,
     "drive_torque_limit": _drive_torque_limit,
     "torque_drive_balance": _torque_drive_balance,
+    "hub_lift_off": _hub_lift_off,
     "creep": _creep,
 }
 

@@ -382,8 +382,9 @@ def _kerf_lines(kerf_m: float, flat_m: float | None, part: str) -> list[str]:
     if flat_m is not None:
         out.append(f"D-bore: {_mm(flat_m)} across the flat (flat at the top of the hole)")
     if kerf_m > 0:
-        where = ("outside the wheel and inside the axle hole" if part == "wheel"
-                 else "above the profile (the side the wheel rolls on) and outside the strip")
+        where = {"wheel": "outside the wheel and inside the axle hole",
+                 "hub": "outside the hub and inside its centre hole"}.get(
+                     part, "above the profile (the side the wheel rolls on) and outside the strip")
         out.append(f"kerf {_mm(kerf_m)}: red cut lines run {_mm(0.5 * kerf_m)} into the waste, {where};"
                    " the part comes out at the drawn size")
     else:
@@ -832,17 +833,29 @@ def export_drawings(pair, out_dir: str | Path, *, name: str, max_section_m: floa
 
 
 def _centre_svg(body, pts: np.ndarray, name: str, part: str, lines: Sequence[str], hole_m: float,
-                margin_m: float, outer_r_mm: float | None = None) -> str:
-    """One part turning about a centre: outline (cut), centre hole (cut) and cross-hair (score)."""
-    ext = pts if outer_r_mm is None else np.array([[-outer_r_mm, -outer_r_mm], [outer_r_mm, outer_r_mm]])
+                margin_m: float, outer_r_mm: float | None = None, *, cut_mm: np.ndarray | None = None,
+                flat_m: float | None = None, kerf_m: float = 0.0, tol_m: float = CHORD_TOL_M) -> str:
+    """One part turning about a centre: outline (cut), centre hole (cut) and cross-hair (score).
+
+    ``cut_mm`` is the outline's cut line (kerf applied; default the outline itself); the
+    centre hole is a circle, or a D with ``flat_m``, its line ``kerf_m/2`` into the hole; a
+    ring's outer edge (``outer_r_mm``, at size) is cut ``kerf_m/2`` outside it.
+    """
+    cut = pts if cut_mm is None else cut_mm
+    k_mm = 0.5 * kerf_m * 1000
+    ext = cut if outer_r_mm is None else np.array([[-outer_r_mm - k_mm, -outer_r_mm - k_mm],
+                                                   [outer_r_mm + k_mm, outer_r_mm + k_mm]])
     sheet = _Sheet(ext[:, 0].min(), ext[:, 0].max(), ext[:, 1].min(), ext[:, 1].max(), list(lines),
                    margin_m * 1000)
-    sheet.path(pts, CUT, closed=True, ident="outline")
+    sheet.path(cut, CUT, closed=True, ident="outline")
     if outer_r_mm is not None:
-        sheet.circle(0.0, 0.0, outer_r_mm, CUT, ident="outer-edge")
+        sheet.circle(0.0, 0.0, outer_r_mm + k_mm, CUT, ident="outer-edge")
     rh = 0.5 * hole_m * 1000
     if outer_r_mm is None:  # a ring's centre lies in the cut-out: marked, not drilled
-        sheet.circle(0.0, 0.0, rh, CUT, ident="centre-hole")
+        if flat_m is None:
+            sheet.circle(0.0, 0.0, rh - k_mm, CUT, ident="centre-hole")
+        else:
+            sheet.path(bore_mm(hole_m, flat_m, kerf_m, tol_m)[0], CUT, closed=True, ident="centre-hole")
     rmin = float(np.min(np.hypot(pts[:, 0], pts[:, 1])))
     arm = rh + min(5.0, 0.3 * rmin)
     sheet.path(np.array([[-arm, 0.0], [arm, 0.0]]), SCORE, closed=False, ident="centre-cross-x")
@@ -855,7 +868,8 @@ def _centre_svg(body, pts: np.ndarray, name: str, part: str, lines: Sequence[str
 def export_hub_drawings(pair, out_dir: str | Path, *, name: str, thickness_m: float | None = None,
                         title_lines: Sequence[str] = (), hole_m: float = 0.010,
                         ring_rim_m: float = 0.030, margin_m: float = MARGIN_M,
-                        dxf: bool = False) -> list[Path]:
+                        dxf: bool = False, flat_m: float | None = None, kerf_m: float = 0.0,
+                        tol_m: float = CHORD_TOL_M) -> list[Path]:
     """Write full-size cut files of a wheel and the hub (or ring) it rolls on.
 
     Files (all written atomically), with ``NAME`` the sanitised ``name``:
@@ -881,6 +895,15 @@ def export_hub_drawings(pair, out_dir: str | Path, *, name: str, thickness_m: fl
         Extra lines for every title block.
     hole_m : float
         Diameter [m] of the axle hole and of the hub's centre hole (default 10 mm).
+    flat_m : float, optional
+        Width [m] across the flat of a D-bore (both holes; the flat at the top, as a line
+        wheel's); None: round holes.
+    kerf_m : float
+        Cut width [m]: every cut line runs half of it into the waste (outside a wheel's and a
+        hub's outline, inside their holes, inside a ring's rolling outline, outside its disc),
+        so the parts come out at the drawn size (the CSV holds them at size, no kerf).
+    tol_m : float
+        Chordal tolerance [m] of smooth outlines.
     ring_rim_m : float
         Width [m] of a ring's plate beyond its greatest radius.
     margin_m : float
@@ -900,6 +923,18 @@ def export_hub_drawings(pair, out_dir: str | Path, *, name: str, thickness_m: fl
 
         require_ezdxf()  # before anything is written
     hole = _positive("hole_m", hole_m)
+    tol = _positive("tol_m", tol_m)
+    kerf = float(kerf_m)
+    if not math.isfinite(kerf) or kerf < 0:
+        raise InputError(f"kerf_m must be >= 0, got {kerf_m!r}")
+    if kerf >= hole:
+        raise InputError(f"kerf_m = {kerf:g} m is not less than the hole diameter {hole:g} m;"
+                         " give a smaller kerf or a larger hole")
+    if flat_m is not None:
+        flat_m = _positive("flat_m", flat_m)
+        if not (0.5 * hole + 0.5 * kerf < flat_m < hole):
+            raise InputError(f"axle_flat_m = {flat_m:g} m must lie between half the hole plus half"
+                             f" the kerf ({0.5 * (hole + kerf):g} m) and the hole {hole:g} m")
     rim = _positive("ring_rim_m", ring_rim_m)
     margin = _positive("margin_m", margin_m)
     if thickness_m is not None:
@@ -923,39 +958,54 @@ def export_hub_drawings(pair, out_dir: str | Path, *, name: str, thickness_m: fl
     common += [str(s) for s in title_lines]
     out = Path(out_dir)
     written: list[Path] = []
-    wpts = wheel_outline_mm(wheel)
+    k_mm = 0.5 * kerf * 1000
+    cut_kw: dict = {"flat_m": flat_m, "kerf_m": kerf, "tol_m": tol}
+    wpts = wheel_outline_mm(wheel, tol)
+    wcut = offset_closed_mm(wpts, k_mm)
     wl = [f"{name}: wheel, full size 1:1, all dimensions in mm",
           f"radius about the axle: r_min {wr[0] * 1000:.3f}, r_max {wr[1] * 1000:.3f};"
-          f" axle hole diameter {hole * 1000:.3f}", *common]
+          f" axle hole diameter {hole * 1000:.3f}", *_kerf_lines(kerf, flat_m, "wheel"), *common]
     written.append(write_text_atomic(out / f"{stem}_wheel.svg",
-                                     _centre_svg(wheel, wpts, name, "wheel", wl, hole, margin)))
+                                     _centre_svg(wheel, wpts, name, "wheel", wl, hole, margin,
+                                                 cut_mm=wcut, **cut_kw)))
     written.append(write_text_atomic(out / f"{stem}_wheel.csv", _csv(wpts)))
     if dxf:
         from ridesim.export.dxf import centre_part_dxf
 
-        written.append(centre_part_dxf(out / f"{stem}_wheel.dxf", wpts, hole, wl))
-    hpts = wheel_outline_mm(hub)
+        written.append(centre_part_dxf(out / f"{stem}_wheel.dxf", wcut, hole, wl, **cut_kw))
+    hpts = wheel_outline_mm(hub, tol)
+    # A ring's rolling outline bounds the cut-out: its waste is inside it.
+    hcut = offset_closed_mm(hpts, -k_mm if ring else k_mm)
     outer = (hr[1] + rim) * 1000 if ring else None
+    kl = (_kerf_lines(kerf, flat_m, "hub") if not ring else
+          ([f"kerf {_mm(kerf)}: red cut lines run {_mm(0.5 * kerf)} into the waste, inside the"
+            " rolling outline and outside the disc; the part comes out at the drawn size"]
+           if kerf > 0 else ["kerf 0: red lines are the part's edges; the cut centre follows them"]))
     hl = [f"{name}: {part}, full size 1:1, all dimensions in mm",
           f"radius about the centre: {hr[0] * 1000:.3f} .. {hr[1] * 1000:.3f}; {pair.hub_lobes}"
           f" lobe(s); " + (f"outer edge radius {outer:.3f}; the marked centre is the arm's pivot"
-                            if ring else f"centre hole diameter {hole * 1000:.3f}"), *common]
+                            if ring else f"centre hole diameter {hole * 1000:.3f}"), *kl, *common]
     written.append(write_text_atomic(out / f"{stem}_{part}.svg",
-                                     _centre_svg(hub, hpts, name, part, hl, hole, margin, outer)))
+                                     _centre_svg(hub, hpts, name, part, hl, hole, margin, outer,
+                                                 cut_mm=hcut, **cut_kw)))
     written.append(write_text_atomic(out / f"{stem}_{part}.csv", _csv(hpts)))
     if dxf:
-        written.append(centre_part_dxf(out / f"{stem}_{part}.dxf", hpts, None if ring else hole, hl,
-                                       outer))
+        written.append(centre_part_dxf(out / f"{stem}_{part}.dxf", hcut, None if ring else hole, hl,
+                                       outer, **cut_kw))
     ext = " / .dxf" if dxf else ""
     th_s = float(pair.wheel_angle(0.0))
     timing = (math.degrees((th_s - 0.5 * math.pi) % TWO_PI), -90.0 % 360.0 if ring else 90.0)
     notes = [
         f"{name}: cut files (full size, millimetres)",
         "",
-        f"{stem}_wheel.svg / .csv{ext}: wheel outline about its axle; axle hole {hole * 1000:.3f} mm.",
+        f"{stem}_wheel.svg / .csv{ext}: wheel outline about its axle; axle hole {hole * 1000:.3f} mm"
+        + (f" with a flat {flat_m * 1000:.3f} mm across" if flat_m is not None else "") + ".",
         f"{stem}_{part}.svg / .csv{ext}: {part} outline about its centre; "
         + (f"cut the outline out of a disc of radius {outer:.3f} mm; the arm pivots at the marked"
-           " centre." if ring else f"centre hole {hole * 1000:.3f} mm."),
+           " centre." if ring else f"centre hole {hole * 1000:.3f} mm"
+           + (f" with a flat {flat_m * 1000:.3f} mm across." if flat_m is not None else ".")),
+        f"Kerf {kerf * 1000:.3f} mm: the SVG and DXF cut lines run {kerf * 500:.3f} mm into the waste;"
+        " the CSV holds the parts at size.",
         f"Mount the axle {pair.centre_distance * 1000:.3f} mm from the {part}'s centre"
         f" ({'around the hub' if not ring else 'inside the ring'}).",
         f"Timing: assemble with the wheel's ray at {timing[0]:.3f} deg (its drawing) on the {part}'s"

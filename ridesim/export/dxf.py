@@ -90,6 +90,22 @@ def _save(doc, path: Path) -> Path:
     return write_text_atomic(path, text)
 
 
+def _bore(msp, hole_m: float, flat_m: float | None, kerf_m: float) -> None:
+    """Draw a bore on CUT at the origin, its line half the kerf into the hole.
+
+    A circle, or a D: an arc and its flat at the top, one polyline with a bulge.
+    """
+    r = 0.5 * (hole_m - kerf_m) * 1000
+    if flat_m is None:
+        msp.add_circle((0.0, 0.0), r, dxfattribs={"layer": "CUT"})
+        return
+    f = (flat_m - 0.5 * hole_m - 0.5 * kerf_m) * 1000
+    w = math.sqrt(r * r - f * f)
+    sweep = math.pi + 2 * math.asin(f / r)  # anticlockwise arc under the flat
+    msp.add_lwpolyline([(w, f, 0.0), (-w, f, math.tan(sweep / 4))], format="xyb", close=True,
+                       dxfattribs={"layer": "CUT"})
+
+
 def wheel_dxf(path: str | Path, pair, cut_mm: np.ndarray, hole_m: float, flat_m: float | None,
               kerf_m: float, lines: Sequence[str]) -> Path:
     """Write the wheel's DXF: outline and bore on CUT, cross-hair on MARK, notes on TEXT.
@@ -124,15 +140,7 @@ def wheel_dxf(path: str | Path, pair, cut_mm: np.ndarray, hole_m: float, flat_m:
                        dxfattribs={"layer": "CUT"})
     else:
         msp.add_lwpolyline([tuple(map(float, p)) for p in cut_mm], close=True, dxfattribs={"layer": "CUT"})
-    r = 0.5 * (hole_m - kerf_m) * 1000
-    if flat_m is None:
-        msp.add_circle((0.0, 0.0), r, dxfattribs={"layer": "CUT"})
-    else:
-        f = (flat_m - 0.5 * hole_m - 0.5 * kerf_m) * 1000
-        w = math.sqrt(r * r - f * f)
-        sweep = math.pi + 2 * math.asin(f / r)  # anticlockwise arc under the flat
-        msp.add_lwpolyline([(w, f, 0.0), (-w, f, math.tan(sweep / 4))], format="xyb", close=True,
-                           dxfattribs={"layer": "CUT"})
+    _bore(msp, hole_m, flat_m, kerf_m)
     rmin = pair.wheel.extremes()[0] * 1000
     arm = 0.5 * hole_m * 1000 + min(5.0, 0.3 * rmin)
     msp.add_line((-arm, 0.0), (arm, 0.0), dxfattribs={"layer": "MARK"})
@@ -191,7 +199,8 @@ def section_dxf(path: str | Path, k: int, n: int, prof_mm: np.ndarray, cut_mm: n
 
 
 def centre_part_dxf(path: str | Path, outline_mm: np.ndarray, hole_m: float | None,
-                    lines: Sequence[str], outer_r_mm: float | None = None) -> Path:
+                    lines: Sequence[str], outer_r_mm: float | None = None, *,
+                    flat_m: float | None = None, kerf_m: float = 0.0, tol_m: float = 0.0) -> Path:
     """Write a part that turns about a centre (a hub's wheel, a hub, a ring) as a DXF.
 
     The outline and the centre hole (or, for a ring, the outline cut from a disc of radius
@@ -203,13 +212,20 @@ def centre_part_dxf(path: str | Path, outline_mm: np.ndarray, hole_m: float | No
     path : str or Path
         File to write (atomically).
     outline_mm : ndarray, shape (N, 2)
-        Outline [mm] about the centre, anticlockwise, without a closing repeat.
+        Outline cut line [mm] about the centre (kerf already applied), without a closing repeat.
     hole_m : float or None
         Centre hole diameter [m]; None: no hole (the centre is marked only).
     lines : sequence of str
         Notes for the TEXT layer.
     outer_r_mm : float, optional
-        Radius [mm] of the disc a ring is cut from (an outer CUT circle).
+        Radius [mm] of the disc a ring is cut from, at size (its CUT circle runs half the
+        kerf outside it).
+    flat_m : float, optional
+        Width [m] across a D-bore's flat; None: a round hole.
+    kerf_m : float
+        Cut width [m]: the hole's line runs half of it into the hole.
+    tol_m : float
+        Unused (arcs are exact in DXF); kept for the SVG writer's signature.
 
     Returns
     -------
@@ -220,10 +236,10 @@ def centre_part_dxf(path: str | Path, outline_mm: np.ndarray, hole_m: float | No
     pts = np.asarray(outline_mm, dtype=float)
     msp.add_lwpolyline([tuple(map(float, p)) for p in pts], close=True, dxfattribs={"layer": "CUT"})
     if outer_r_mm is not None:
-        msp.add_circle((0.0, 0.0), float(outer_r_mm), dxfattribs={"layer": "CUT"})
+        msp.add_circle((0.0, 0.0), float(outer_r_mm) + 0.5 * kerf_m * 1000, dxfattribs={"layer": "CUT"})
     rh = 0.0 if hole_m is None else 0.5 * hole_m * 1000
     if hole_m is not None:
-        msp.add_circle((0.0, 0.0), rh, dxfattribs={"layer": "CUT"})
+        _bore(msp, hole_m, flat_m, kerf_m)
     rmin = float(np.min(np.hypot(pts[:, 0], pts[:, 1])))
     arm = rh + min(5.0, 0.3 * rmin)
     msp.add_line((-arm, 0.0), (arm, 0.0), dxfattribs={"layer": "MARK"})

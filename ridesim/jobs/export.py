@@ -68,9 +68,11 @@ def export_scenario(sc: Scenario, out: str | Path, *, section_m: float | None = 
     if sc.path.is_hub:  # a wheel and the hub (or ring) it rolls on, each about its centre
         from ridesim.export.drawings import export_hub_drawings
 
+        ex = sc.export
         files = export_hub_drawings(pair, out, name=sc.name, thickness_m=thick,
                                     title_lines=(sc.description,) if sc.description else (),
-                                    dxf=dxf)
+                                    dxf=dxf, hole_m=ex.axle_hole_m, flat_m=ex.axle_flat_m,
+                                    kerf_m=ex.kerf_m, tol_m=ex.chord_tolerance_m)
         return {"files": [str(f) for f in files], "notes": notes}
     ex = sc.export
     files = export_drawings(

@@ -1,8 +1,8 @@
 """Jobs for a wheel rolling around a hub (``path.kind = "hub"``): solve text and check.
 
 A hub scenario is simulated as a gear pair or a carousel (:func:`simulate_hub`) and rendered
-as a speed-ratio plot and a clip of the carousel (:func:`render_hub`); motor sizing of a hub
-path is not built yet;
+as a speed-ratio plot and a clip of the carousel (:func:`render_hub`), and its motor sized at
+a steady speed (:func:`size_motor_hub`);
 :data:`HUB_JOBS` names the jobs that handle one, and :func:`require_line` refuses the
 others with one line.
 """
@@ -10,28 +10,136 @@ others with one line.
 from __future__ import annotations
 
 import math
-from dataclasses import dataclass
+from dataclasses import dataclass, field
 
-from ridesim.assess.hub import HubAssessment, assess_hub
+from ridesim.assess.findings import Finding
+from ridesim.assess.hub import HubAssessment, HubFriction, assess_hub, hub_friction
+from ridesim.assess.wording import describe
 from ridesim.errors import ScenarioError
 from ridesim.safety import caution_lines, with_safety
 from ridesim.scenario.build import solve_hub_scenario
 from ridesim.scenario.load import Scenario, WheelSpec
 
-__all__ = ["HUB_JOBS", "HubCheckResult", "HubSimResult", "check_hub", "simulate_hub", "solve_hub_text",
-           "require_line", "render_hub"]
+#: Standard gravity [m/s^2] (CGPM 1901 conventional value).
+G_M_S2 = 9.80665
+
+__all__ = ["HUB_JOBS", "hub_load_case", "HubCheckResult", "HubSimResult", "check_hub", "simulate_hub",
+           "solve_hub_text", "require_line", "render_hub", "size_motor_hub",
+           "hub_drive_speed"]
 
 #: Jobs (command names) that handle a hub path.
-HUB_JOBS = ("solve", "check", "export", "simulate", "render", "report")
+HUB_JOBS = ("solve", "check", "export", "simulate", "render", "report", "size-motor")
 
 HUB_CAUTIONS = (
     "The hub check is kinematic: rigid pitch curves, contact on the line of centres, no tooth"
     " form, backlash, flex or wear; gears need teeth cut on these pitch curves by a gear"
     " specialist's method.",
-    "The friction demand assumes the wheel is pressed against the hub along the line of centres"
-    " (a free wheel on its arm); a driven wheel, gravity in the plane or a preload spring change"
-    " it.",
+    "The check's friction demand is quasi-static (a slow, steady drive): inertia, impacts where"
+    " the contact jumps and the arm's own weight (taken as balanced on its pivot) are left out;"
+    " a fast drive needs more grip.",
 )
+
+
+def hub_load_case(sc: Scenario, pair) -> dict:
+    """The loads a hub scenario runs under, as :func:`ridesim.assess.hub.hub_loads` takes them.
+
+    Gravity acts in the plane only for a carousel with ``path.gravity_in_plane`` (a vertical
+    drum); the preload is ``path.preload_N`` or, unset, the wheel's weight (twice it in a
+    vertical drum, so the contact holds at the top), as :func:`simulate_hub` uses; the brake
+    is ``path.load_torque_Nm`` on the driven member (the hub of a gear pair, the arm of a
+    carousel).
+
+    Parameters
+    ----------
+    sc : Scenario
+        Validated scenario with ``path.kind = "hub"``.
+    pair : HubPair
+        Its solved pair.
+
+    Returns
+    -------
+    dict
+        ``mass_kg``, ``com_m``, ``gravity_m_s2``, ``preload_N``, ``load_torque_Nm``.
+    """
+    from ridesim.scenario.build import wheel_mass
+
+    mw = wheel_mass(sc, pair.wheel)
+    gravity = sc.path.sim_view == "carousel" and bool(sc.path.gravity_in_plane)
+    weight = mw.mass_kg * G_M_S2
+    preload = sc.path.preload_N if sc.path.preload_N is not None else weight * (2.0 if gravity else 1.0)
+    return {"mass_kg": float(mw.mass_kg), "com_m": tuple(float(c) for c in mw.com_m),
+            "gravity_m_s2": G_M_S2 if gravity else 0.0, "preload_N": float(preload),
+            "load_torque_Nm": float(sc.path.load_torque_Nm)}
+
+
+def hub_drive_speed(sc: Scenario, pair) -> float:
+    """The wheel's (driver's) shaft speed [rad/s].
+
+    ``drive.shaft_speed_rad_s``, or ``drive.speed_m_s`` over the wheel's mean contact radius.
+
+    Parameters
+    ----------
+    sc : Scenario
+        Validated scenario with ``path.kind = "hub"``.
+    pair : HubPair
+        Its solved pair.
+
+    Returns
+    -------
+    float
+    """
+    import numpy as np
+
+    if sc.drive.mode == "shaft_speed":
+        if sc.drive.shaft_speed_rad_s is None:
+            raise ScenarioError("drive.shaft_speed_rad_s is missing: drive.mode = \"shaft_speed\" needs it")
+        return float(sc.drive.shaft_speed_rad_s)
+    th = np.linspace(0.0, 2 * math.pi, 2048, endpoint=False)
+    return float(sc.drive.speed_m_s) / float(np.mean(pair.wheel_radius(th)))
+
+
+def size_motor_hub(sc: Scenario):
+    """Size the motor of a hub scenario at a steady speed (:mod:`ridesim.metrics.hub_motor`).
+
+    Gears (``path.view``): the driver gear at the wheel's shaft speed against the driven gear's
+    brake ``path.load_torque_Nm`` and inertia (a plate of the ``[wheel]`` thickness and
+    density). Carousel: the wheel's shaft at that speed (motor on the arm), and instead the arm
+    at the same mean lap rate (motor at the pivot), under :func:`hub_load_case`'s loads.
+
+    Parameters
+    ----------
+    sc : Scenario
+        Validated scenario with ``path.kind = "hub"``.
+
+    Returns
+    -------
+    HubMotorSizing
+    """
+    from ridesim.metrics.hub_motor import HubDrive, HubMotorSizing, gear_checks, hub_cautions, hub_drive
+    from ridesim.scenario.build import wheel_mass
+
+    if sc.wheel is None:
+        raise ScenarioError("a hub needs a [wheel] with its shape")
+    pair = solve_hub_scenario(sc)
+    if not pair.closed:
+        raise ScenarioError("the hub does not close at path.centre_distance_m; give path.ratio")
+    view = sc.path.sim_view
+    w = hub_drive_speed(sc, pair)
+    case = hub_load_case(sc, pair)
+    mw = wheel_mass(sc, pair.wheel)
+    drives: tuple[HubDrive, ...]
+    if view == "gears":
+        mh = pair.hub.mass_properties(sc.wheel.thickness_m, sc.wheel.density_kg_m3)
+        drives = (hub_drive(pair, "gear", w, wheel_inertia_kg_m2=mw.inertia_kg_m2,
+                            driven_inertia_kg_m2=mh.inertia_kg_m2, **case),)
+    else:
+        drives = (hub_drive(pair, "wheel", w, wheel_inertia_kg_m2=mw.inertia_kg_m2, **case),
+                  hub_drive(pair, "arm", w / float(pair.ratio), wheel_inertia_kg_m2=mw.inertia_kg_m2,
+                            **case))
+    gears, best = {}, {}
+    for d in drives:
+        gears[d.key], best[d.key] = gear_checks(sc, d)
+    return HubMotorSizing(sc.name, view, drives, gears, best, hub_cautions())
 
 
 def require_line(sc: Scenario, job: str) -> None:
@@ -123,6 +231,11 @@ class HubCheckResult:
         ``surface.friction``.
     cautions : list of str
         Safety cautions.
+    friction : HubFriction or None
+        The friction the contact needs along the cycle under the scenario's loads
+        (:func:`hub_load_case`); None when the hub does not close.
+    findings : list of Finding
+        Friction and contact findings as codes and figures (worded in ``reasons``/``notes``).
     """
 
     name: str
@@ -133,6 +246,8 @@ class HubCheckResult:
     assessment: HubAssessment | None
     friction_available: float
     cautions: list[str]
+    friction: HubFriction | None = None
+    findings: list[Finding] = field(default_factory=list)
 
     def to_dict(self) -> dict:
         """JSON-ready figures with units in the key names."""
@@ -141,6 +256,9 @@ class HubCheckResult:
                "friction_available": self.friction_available}
         if self.assessment is not None:
             out.update(self.assessment.to_dict())
+        if self.friction is not None:
+            out["friction"] = self.friction.to_dict()
+        out["findings"] = [f.to_dict() for f in self.findings]
         out["cautions"] = list(self.cautions)
         return out
 
@@ -154,11 +272,17 @@ class HubCheckResult:
         a = self.assessment
         if a is not None:
             lines += [
-                f"least gap between the outlines: {a.least_gap_m * 1000:+.4f} mm"
+                f"least gap between the outlines: {round(a.least_gap_m * 1000, 4) + 0.0:+.4f} mm"
                 f" (at wheel angle {a.least_gap_theta_rad:.4f} rad; 0 is the contact)",
-                f"friction demand: {a.friction_demand:.4g} (pressure angle"
-                f" {math.degrees(math.atan(a.friction_demand)):.2f} deg); available"
-                f" {self.friction_available:.4g}",
+                f"largest pressure angle: {math.degrees(math.atan(a.friction_demand)):.2f} deg"
+                f" (tan {a.friction_demand:.4g}: the friction a free wheel pressed along the line"
+                " of centres needs)",
+            ]
+        fr = self.friction
+        if fr is not None:
+            lines.append(_friction_line(fr, self.friction_available))
+        if a is not None:
+            lines += [
                 f"driven speed per driving speed: {a.speed_ratio_min:.6g} .. {a.speed_ratio_max:.6g}"
                 f" (mean {a.speed_ratio_mean:.6g}, ripple {100 * a.speed_ripple:.2f} %)",
                 f"driven torque per driving torque (no losses): {a.torque_ratio_min:.6g} .."
@@ -169,6 +293,47 @@ class HubCheckResult:
         lines += [f"note: {n}" for n in self.notes]
         lines += caution_lines(self.cautions)
         return "\n".join(lines)
+
+
+def _friction_line(fr: HubFriction, available: float) -> str:
+    how = ("vertical drum, gravity in the plane" if fr.gravity_m_s2 > 0 else "no gravity in the plane")
+    peak = f"{fr.peak:.4g}" if math.isfinite(fr.peak) else "contact lost"
+    return (f"friction demand: peak {peak} at wheel angle {fr.at_theta_rad:.4f} rad"
+            f" (wheel driven slowly; {how}; preload {fr.preload_N:.4g} N, brake"
+            f" {fr.load_torque_Nm:.4g} N m); surface gives {available:.4g}")
+
+
+def hub_friction_findings(fr: HubFriction, part: str, view: str = "carousel") -> list[Finding]:
+    """Findings on a hub pair's friction demand: lost contact, slip, a thin margin.
+
+    Parameters
+    ----------
+    fr : HubFriction
+        The demand along the cycle, with ``available`` set.
+    part : str
+        ``"hub"`` or ``"ring"`` (for the words).
+    view : str
+        ``"gears"`` or ``"carousel"`` (for the words: a gear pair has no arm).
+
+    Returns
+    -------
+    list of Finding
+    """
+    import numpy as np
+
+    avail = float(fr.available) if fr.available is not None else math.inf
+    data = {"at_theta_rad": fr.at_theta_rad, "arm_angle_rad": fr.arm_at_peak_rad,
+            "pressure_angle_rad": fr.pressure_angle_at_peak_rad, "part": part,
+            "gears": fr.gravity_m_s2 == 0 and view == "gears"}
+    if fr.lift_off:
+        return [Finding("hub_lift_off", {**data, "preload_N": fr.preload_N})]
+    if fr.peak > avail:
+        return [Finding("friction_exceeded", {**data, "required": fr.peak, "available": avail,
+                                              "share_slipping": float(np.mean(fr.loads.mu_required
+                                                                              > avail))})]
+    if fr.peak > 0.8 * avail:
+        return [Finding("friction_margin_thin", {**data, "required": fr.peak, "available": avail})]
+    return []
 
 
 def check_hub(sc: Scenario) -> HubCheckResult:
@@ -192,13 +357,15 @@ def check_hub(sc: Scenario) -> HubCheckResult:
                   f" ({pair.closure_gap_rad:+.4g} rad from a full turn); give path.ratio instead")
         return HubCheckResult(sc.name, False, [reason], [], out, None, avail, cautions)
     a = assess_hub(pair)
-    reasons, notes = [], []
+    reasons: list[str] = []
+    notes: list[str] = []
     if a.interferes:
         reasons.append(f"the outlines overlap by {-a.least_gap_m * 1000:.3f} mm at wheel angle"
                        f" {a.least_gap_theta_rad:.4f} rad: another part of the wheel meets the hub")
-    if a.friction_demand > avail:
-        reasons.append(f"the contact needs friction {a.friction_demand:.4g} (load along the line of"
-                       f" centres) but surface.friction is {avail:.4g}")
+    fr = hub_friction(pair, drive="wheel", available=avail, **hub_load_case(sc, pair))
+    found = hub_friction_findings(fr, "hub" if pair.side == "outside" else "ring", sc.path.sim_view)
+    for f in found:
+        (reasons if f.blocks else notes).append(describe(f))
     # A ring's material lies outside its curve: where the curve bends in, the ring is convex
     # (an internal gear is cut by a shaper cutter anyway), so only external curves get the note.
     concave = [("wheel", a.wheel_concave_radius_m)]
@@ -209,7 +376,7 @@ def check_hub(sc: Scenario) -> HubCheckResult:
             notes.append(f"the {what}'s pitch curve is concave (least radius of curvature"
                          f" {rad * 1000:.2f} mm): as gears, no rack or hob can cut it; a shaper"
                          " cutter of smaller pitch radius can (Litvin et al. 2009 [memory])")
-    return HubCheckResult(sc.name, not reasons, reasons, notes, out, a, avail, cautions)
+    return HubCheckResult(sc.name, not reasons, reasons, notes, out, a, avail, cautions, fr, found)
 
 
 @dataclass
@@ -327,20 +494,14 @@ def simulate_hub(sc: Scenario) -> HubSimResult:
     if not pair.closed:
         raise ScenarioError("the hub does not close at path.centre_distance_m; give path.ratio")
     th = np.linspace(0.0, 2 * math.pi, 2048, endpoint=False)
-    if sc.drive.mode == "shaft_speed":
-        if sc.drive.shaft_speed_rad_s is None:
-            raise ScenarioError("drive.shaft_speed_rad_s is missing: drive.mode = \"shaft_speed\" needs it")
-        w = float(sc.drive.shaft_speed_rad_s)
-    else:
-        w = float(sc.drive.speed_m_s) / float(np.mean(pair.wheel_radius(th)))
+    w = hub_drive_speed(sc, pair)
     mw = wheel_mass(sc, pair.wheel)
     turns = float(sc.run.duration_s) * w / (2 * math.pi)
-    weight = mw.mass_kg * 9.80665
     if view == "carousel":
         from ridesim.sim.hub import run_carousel
 
         gravity = bool(sc.path.gravity_in_plane)
-        preload = sc.path.preload_N if sc.path.preload_N is not None else weight * (2.0 if gravity else 1.0)
+        preload = hub_load_case(sc, pair)["preload_N"]
         E = pair.centre_distance
         crun = run_carousel(pair, wheel_speed_rad_s=w, turns=turns, timestep_s=float(sc.run.timestep_s),
                             friction=float(sc.surface.friction), preload_N=float(preload),
@@ -367,7 +528,7 @@ def simulate_hub(sc: Scenario) -> HubSimResult:
 
     mh = pair.hub.mass_properties(spec.thickness_m, spec.density_kg_m3)
     load = float(sc.path.load_torque_Nm)
-    preload = sc.path.preload_N if sc.path.preload_N is not None else weight
+    preload = hub_load_case(sc, pair)["preload_N"]
     run = run_gear_pair(pair, driver_speed_rad_s=w, turns=turns, timestep_s=float(sc.run.timestep_s),
                         friction=float(sc.surface.friction), load_torque_Nm=load,
                         preload_N=float(preload), mass_kg=(mw.mass_kg, mh.mass_kg),

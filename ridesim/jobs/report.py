@@ -60,14 +60,15 @@ def write_report(sc, out_dir: str | Path, *, simulate: bool = True, clip_s: floa
 
 
 def _hub_report(sc, out: Path, *, simulate: bool, clip_s: float, progress) -> tuple[Path, dict]:
-    """The report of a wheel rolling around a hub (or a gear pair): check, simulation, pictures."""
+    """The report of a hub pair (or a gear pair): check, motor sizing, simulation, pictures."""
     from ridesim.export.results import json_ready, write_text_atomic
     from ridesim.jobs.check import check_scenario
-    from ridesim.jobs.hub import simulate_hub
+    from ridesim.jobs.hub import simulate_hub, size_motor_hub
     from ridesim.jobs.render import render_scenario
     from ridesim.render.report import hub_report_page
 
-    figures = {"check": json_ready(check_scenario(sc).to_dict())}
+    figures = {"check": json_ready(check_scenario(sc).to_dict()),
+               "size_motor": json_ready(size_motor_hub(sc).to_dict())}
     if simulate:
         figures["simulate"] = json_ready(simulate_hub(sc).to_dict())
     items = render_scenario(sc, out / "pictures", simulate=False, clip_s=clip_s, progress=progress)

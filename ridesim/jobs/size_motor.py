@@ -6,13 +6,14 @@ Solves the pair, resolves the wheelbase and the wheel's mass, then hands them to
 
 from __future__ import annotations
 
+from ridesim.metrics.hub_motor import HubMotorSizing
 from ridesim.metrics.motor import MotorSizing
 from ridesim.scenario.load import Scenario
 
 __all__ = ["size_motor"]
 
 
-def size_motor(sc: Scenario, *, dt_s: float | None = None) -> MotorSizing:
+def size_motor(sc: Scenario, *, dt_s: float | None = None) -> MotorSizing | HubMotorSizing:
     """Size the drive for a scenario's duty cycle (per motor).
 
     Parameters
@@ -24,8 +25,14 @@ def size_motor(sc: Scenario, *, dt_s: float | None = None) -> MotorSizing:
 
     Returns
     -------
-    MotorSizing
+    MotorSizing or HubMotorSizing
+        A :class:`~ridesim.metrics.hub_motor.HubMotorSizing` (steady speed) for
+        ``path.kind = "hub"``.
     """
+    if sc.path.is_hub:
+        from ridesim.jobs.hub import size_motor_hub
+
+        return size_motor_hub(sc)
     from ridesim.metrics.motor import motor_sizing
     from ridesim.scenario.build import resolve_wheelbase, solve_track_scenario, wheel_mass
 

@@ -173,10 +173,19 @@ def _grid(head: list[str], rows: list[list[str]], numeric_from: int = 1,
     return f"<table><thead><tr>{h}</tr></thead><tbody>{b}</tbody></table>"
 
 
-def _img(path: Path, caption: str, alt: str | None = None) -> str:
+#: What to look for in a hub pair's pictures (by file stem), where it differs from a line's.
+HUB_LOOK_FOR = {
+    "clip": "The wheel rolling round its hub or ring: the outlines touch only at the contact and"
+            " the arm sweeps on without jerks.",
+    "hub_ratio": "The driven speed ratio's swing (the ripple a constant-speed driver passes on)"
+                 " and where the contact radii peak.",
+}
+
+
+def _img(path: Path, caption: str, alt: str | None = None, look_for: dict | None = None) -> str:
     mime = "image/gif" if path.suffix == ".gif" else "image/png"
     data = base64.b64encode(path.read_bytes()).decode("ascii")
-    look = LOOK_FOR.get(path.stem)
+    look = (LOOK_FOR if look_for is None else look_for).get(path.stem)
     cap = _words(caption) + (f" <b>Look for:</b> {_e(look)}" if look else "")
     return (f'<figure><img alt="{_e(alt or path.stem)}" src="data:{mime};base64,{data}">'
             f"<figcaption>{cap}</figcaption></figure>")
@@ -523,15 +532,7 @@ def hub_report_page(sc, figures: dict, items) -> str:
              " the friction the contact needs. Read the findings below for what to watch, and the"
              " cautions before building." if ok else
              "At least one check fails (listed below): change the design before building.")
-    keys = [("centre distance", format_figure("centre_distance_m", solve.get("centre_distance_m"))),
-            ("wheel turns per " + part + " turn", format_value(solve.get("ratio"))),
-            ("least gap", format_figure("least_gap_m", c.get("least_gap_m"))),
-            ("friction needed / available",
-             f"{format_value(c.get('friction_demand'))} / {format_value(c.get('friction_available'))}"),
-            ("driven speed ratio", f"{format_value(c.get('speed_ratio_min'))} .."
-                                   f" {format_value(c.get('speed_ratio_max'))}")]
-    if sim is not None and sim.get("speed_ratio_error_max") is not None:
-        keys.append(("simulated ratio error", f"{100 * sim['speed_ratio_error_max']:.2f} %"))
+    keys = _hub_keys(c, figures.get("size_motor"), sim, part)
     reasons = "".join(f"<li>{_words(r)}</li>" for r in c.get("reasons") or [])
     verdict = (f'<div class="verdict {"ok" if ok else "bad"}" id=verdict><strong>{head}</strong>'
                f"{_e(means)}" + (f"<ul>{reasons}</ul>" if reasons else "")
@@ -556,15 +557,82 @@ def hub_report_page(sc, figures: dict, items) -> str:
             ["Path", f"axle on a circle {'inside a ring' if part == 'ring' else 'around a hub'},"
                      f" centre distance {e_txt}"],
             ["Surface", f"friction {format_value(sc.surface.friction)}"]]
+    fr = c.get("friction") or {}
+    if fr:
+        sm = figures.get("size_motor") or {}
+        speed = sm.get("max_shaft_speed_rad_s")
+        rows.append(["Loads", ("driver gear" if sm.get("view") == "gears" else "wheel shaft")
+                     + (f" at {format_figure('max_shaft_speed_rad_s', speed)}" if speed is not None else "")
+                     + ("; no brake" if not fr.get("load_torque_Nm") else
+                        f"; brake {format_figure('load_torque_Nm', fr.get('load_torque_Nm'))} on the"
+                        f" driven {'gear' if sm.get('view') == 'gears' else 'arm'}")
+                     + f"; preload {format_value(fr.get('preload_N'))} N; "
+                     + ("gravity in the plane (a vertical drum)" if fr.get("gravity_m_s2")
+                        else "no gravity in the plane")])
     pics = [(Path(p), cap) for p, cap in items if Path(p).exists()]
     parts = [
         *_page_head(sc, verdict),
         "<h2>The build at a glance</h2>", _grid(["part", "as specified"], rows, numeric_from=9),
         "</section><section><h2>Pictures</h2>",
-        *(_img(path, caption) for path, caption in pics),
+        *(_img(path, caption, look_for=HUB_LOOK_FOR) for path, caption in pics),
         "</section>",
-        "<section><h2>Findings and cautions</h2>" + _findings_section(figures) + "</section>",
     ]
-    parts += _page_tail(sc, figures, (("check", "Will it roll (check)"), ("simulate", "Simulation")))
+    if figures.get("size_motor"):
+        parts.append("<section><h2>Motor sizing</h2>" + _hub_motor_section(figures["size_motor"])
+                     + "</section>")
+    parts += ["<section><h2>Findings and cautions</h2>" + _findings_section(figures) + "</section>"]
+    parts += _page_tail(sc, figures, (("check", "Will it roll (check)"), ("size_motor", "Motor sizing"),
+                                      ("simulate", "Simulation")))
     return "\n".join(parts)
+
+
+def _hub_keys(c: dict, sm: dict | None, sim: dict | None, part: str) -> list[tuple[str, str]]:
+    """The key figures of a hub pair, from the check's and the motor sizing's own numbers."""
+    solve = c.get("solve") or {}
+    fr = c.get("friction") or {}
+    keys = [("centre distance", format_figure("centre_distance_m", solve.get("centre_distance_m"))),
+            ("wheel turns per " + part + " turn", format_value(solve.get("ratio")))]
+    gap = c.get("least_gap_m")
+    if gap is not None:
+        keys.append(("interference" if c.get("interferes") else "least gap (0: touching at the contact)",
+                     format_figure("least_gap_m", gap)))
+    concave = [(what, c.get(f"{what}_concave_radius_m")) for what in ("wheel", part)]
+    concave = [(w, r) for w, r in concave if r is not None and not (w == "ring")]
+    keys.append(("undercut risk (concave pitch curve)",
+                 "none: both convex" if not concave else
+                 "; ".join(f"{w} radius {format_figure('radius_m', r)}" for w, r in concave)))
+    if fr:
+        peak = fr.get("required_peak")
+        keys.append(("friction needed / available",
+                     f"{'contact lost' if peak is None else format_value(peak)} /"
+                     f" {format_value(c.get('friction_available'))}"))
+    if c.get("speed_ripple") is not None:
+        keys.append(("driven speed ratio", f"{format_value(c.get('speed_ratio_min'))} .."
+                                           f" {format_value(c.get('speed_ratio_max'))} (ripple"
+                                           f" {format_value(100 * c['speed_ripple'])} %)"))
+    for m in (sm or {}).get("motors", []):
+        keys.append((f"motor: {m['name']}",
+                     f"{format_figure('peak_torque_Nm', m['peak_torque_Nm'])} peak,"
+                     f" {format_figure('max_shaft_speed_rad_s', m['max_shaft_speed_rad_s'])},"
+                     f" {format_figure('peak_power_W', m['peak_power_W'])} peak"))
+    if sim is not None and sim.get("speed_ratio_error_max") is not None:
+        keys.append(("simulated ratio error", f"{100 * sim['speed_ratio_error_max']:.2f} %"))
+    return keys
+
+
+def _hub_motor_section(sm: dict) -> str:
+    """Each motor's figures at a steady speed (a carousel's two drives are alternatives)."""
+    lead = ("<p>Two ways to drive the carousel, one motor each (alternatives, not both):"
+            " figures per motor at a steady speed.</p>" if sm.get("alternatives") else
+            "<p>The driver gear's motor at a steady speed.</p>")
+    rows = [[m["name"], format_figure("peak_torque_Nm", m["peak_torque_Nm"]),
+             format_figure("rms_torque_Nm", m["rms_torque_Nm"]),
+             "0 N·m" if m["mean_torque_Nm"] == 0 else format_figure("mean_torque_Nm", m["mean_torque_Nm"]),
+             format_figure("max_shaft_speed_rad_s", m["max_shaft_speed_rad_s"])
+             + f" ({format_value(m['max_shaft_speed_rpm'])} rpm)",
+             format_figure("peak_power_W", m["peak_power_W"]),
+             format_figure("mean_power_W", m["mean_power_W"])]
+            for m in sm.get("motors", [])]
+    return lead + _grid(["motor", "peak torque", "r.m.s. torque", "mean torque", "shaft speed",
+                         "peak power", "mean power"], rows)
 

@@ -390,19 +390,21 @@ _BASE_KEYS: tuple[Key, ...] = (
         " (ratio x wheel symmetry must be whole; inside a ring > 1)", gt=0,
         plausible=(0.1, 50.0), source="common practice: gear ratios of one stage"),
     Key("path", "load_torque_Nm", "real", 0.0, "N m",
-        "hub only, simulate: brake torque on the driven hub (a gear pair's load)", ge=0,
+        "hub only, simulate/check/size-motor: brake torque on the driven member (a gear pair's"
+        " driven gear, a carousel's arm)", ge=0,
         plausible=(0.0, 5000.0), source=_TORQUE_SRC + "; 0: a free hub"),
     Key("path", "preload_N", "real", None, "N",
-        "hub only, simulate: force pressing the wheel's axle towards the hub; unset: the"
-        " wheel's weight", gt=0, plausible=(0.01, 20000.0),
+        "hub only, simulate/check/size-motor: force pressing the wheel's axle towards the hub"
+        " (onto a ring); unset: the wheel's weight", gt=0, plausible=(0.01, 20000.0),
         source="common practice: a light spring on a desk model to a ride car's weight"),
     Key("path", "view", "choice", None, "",
         "hub only, simulate: gears (both parts on fixed pivots, the hub driven) or carousel (the"
         " hub fixed, the wheel's axle on an arm pivoted at its centre); unset: gears outside,"
         " carousel inside a ring", choices=HUB_VIEWS),
     Key("path", "gravity_in_plane", "bool", False, "",
-        "hub only, simulate, carousel view: gravity acts in the plane of the roll (a vertical"
-        " drum; unset preload: twice the wheel's weight); false: a horizontal carousel"),
+        "hub only, carousel view (simulate/check/size-motor): gravity acts in the plane of the"
+        " roll (a vertical drum; unset preload: twice the wheel's weight); false: a horizontal"
+        " carousel"),
     # ---------------------------------------------------------------- [vehicle]
     Key("vehicle", "body_mass_kg", "real", 10.0, "kg", "body mass without wheels",
         ge=0, most=1e5, plausible=(0.0, 1000.0),
