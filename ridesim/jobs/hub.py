@@ -193,7 +193,7 @@ def solve_hub_text(sc: Scenario, out: dict) -> str:
     lines = [f"scenario: {sc.name}",
              solved,
              f"centre distance:       {_mm(out['centre_distance_m'])}",
-             f"ratio:                 {out['ratio']:.9g} wheel turns per hub turn"
+             f"ratio:                 {out['ratio']:.9g} wheel turn(s) per hub turn"
              f" ({out['hub_lobes']} hub lobe(s))"]
     if out["closed"]:
         lines += [
@@ -267,7 +267,7 @@ class HubCheckResult:
         p = self.pair
         where = "around a hub" if p["side"] == "outside" else "inside a ring"
         lines = [f"scenario: {self.name} (wheel {where})",
-                 f"centre distance {p['centre_distance_m']:.6g} m, ratio {p['ratio']:.6g} wheel turns per"
+                 f"centre distance {p['centre_distance_m']:.6g} m, ratio {p['ratio']:.6g} wheel turn(s) per"
                  " hub turn"]
         a = self.assessment
         if a is not None:

@@ -142,7 +142,7 @@ def plot_hub_ratio(pair, path: str | Path) -> tuple[Path, str]:
         a1.axhline(1.0 / pair.ratio, color="0.6", lw=0.8, ls="--", label="mean (1 / ratio)")
         a1.set_ylabel(f"{part} / wheel speed [-]")
         a1.set_title(f"Wheel {'inside a ring' if part == 'ring' else 'around a hub'}:\ncentre distance"
-                     f" {pair.centre_distance * 1000:.1f} mm, {pair.ratio:.4g} wheel turns per {part} turn",
+                     f" {pair.centre_distance * 1000:.1f} mm, {pair.ratio:.4g} wheel turn(s) per {part} turn",
                      loc="left")
         a1.legend(loc="upper left", bbox_to_anchor=(1.0, 1.0))
         a2.plot(th, pair.wheel_radius(th) * 1000, label="wheel r", color=SERIES_COLOURS[1])
