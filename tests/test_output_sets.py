@@ -9,6 +9,7 @@ JSON.
 
 from __future__ import annotations
 
+import json
 import os
 import random
 import signal
@@ -51,6 +52,16 @@ def test_identical_inputs_give_byte_identical_json(tmp_path):
     first = (tmp_path / "export.json").read_bytes()
     assert _export(tmp_path, "0.05") == 0
     assert (tmp_path / "export.json").read_bytes() == first
+
+
+def test_the_kept_record_names_its_files_relative_to_its_folder(tmp_path):
+    """A folder moved or sent as it is still finds its files from its record."""
+    assert _export(tmp_path / "a", "0.5") == 0
+    (tmp_path / "a").rename(tmp_path / "b")
+    files = json.loads((tmp_path / "b" / "export.json").read_text())["files"]
+    assert files and all(not Path(f).is_absolute() and (tmp_path / "b" / f).is_file() for f in files)
+    assert set(files) == {p.name for p in (tmp_path / "b").iterdir()
+                          if not p.name.startswith(".") and p.name != "export.json"}
 
 
 def test_a_failed_run_leaves_the_previous_set(tmp_path):

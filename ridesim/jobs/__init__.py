@@ -221,6 +221,7 @@ def run_into(name: str, sc: Scenario, out: str | None,
         The numerical warnings raised while it ran (also in ``data["warnings"]``).
     """
     import json
+    import os
     import shutil
     from pathlib import Path
 
@@ -235,10 +236,13 @@ def run_into(name: str, sc: Scenario, out: str | None,
         data = json_ready({**data, "warnings": list(sc.warnings) + trouble})
         if stage is not None and out:  # the set names its final place
             final = str(Path(out))
-            data = json.loads(json.dumps(data).replace(json.dumps(str(stage))[1:-1],
-                                                       json.dumps(final)[1:-1]))
+            raw = json.dumps(data)
+            # The record kept in the folder names its files relative to it (the folder can
+            # be moved or sent as it is); the printed result names them where they are.
+            kept = json.loads(raw.replace(json.dumps(str(stage) + os.sep)[1:-1], ""))
+            data = json.loads(raw.replace(json.dumps(str(stage))[1:-1], json.dumps(final)[1:-1]))
             text = text.replace(str(stage), final)
-            write_json_atomic(stage / f"{name}.json", data)
+            write_json_atomic(stage / f"{name}.json", kept)
             commit_set(out, stage, name)
     finally:
         if stage is not None and stage.exists():
