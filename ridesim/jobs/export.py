@@ -33,7 +33,7 @@ def export_periods(sc: Scenario, pair) -> int:
 
 
 def export_scenario(sc: Scenario, out: str | Path, *, section_m: float | None = None,
-                    dxf: bool | None = None) -> dict:
+                    dxf: bool = True) -> dict:
     """Write the scenario's cut files into ``out``.
 
     Parameters
@@ -44,8 +44,8 @@ def export_scenario(sc: Scenario, out: str | Path, *, section_m: float | None = 
         Output folder.
     section_m : float, optional
         Longest track piece [m]; default ``export.section_length_m``.
-    dxf : bool, optional
-        Write DXF too; default: when ezdxf (the ``cad`` extra) is installed.
+    dxf : bool
+        Write DXF too.
 
     Returns
     -------
@@ -55,14 +55,7 @@ def export_scenario(sc: Scenario, out: str | Path, *, section_m: float | None = 
     from ridesim.export.drawings import export_drawings
     from ridesim.scenario.build import solve_scenario
 
-    notes = []
-    if dxf is None:
-        try:
-            import ezdxf  # noqa: F401
-            dxf = True
-        except ImportError:
-            dxf = False
-            notes.append('DXF not written: it needs ezdxf (pip install "ridesim[cad]")')
+    notes: list[str] = []
     pair = solve_scenario(sc)
     thick = sc.wheel.thickness_m if sc.wheel is not None else None
     if sc.path.is_hub:  # a wheel and the hub (or ring) it rolls on, each about its centre
