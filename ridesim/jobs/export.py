@@ -33,7 +33,7 @@ def export_periods(sc: Scenario, pair) -> int:
 
 
 def export_scenario(sc: Scenario, out: str | Path, *, section_m: float | None = None,
-                    dxf: bool = True) -> dict:
+                    dxf: bool | None = None) -> dict:
     """Write the scenario's cut files into ``out``.
 
     Parameters
@@ -44,8 +44,8 @@ def export_scenario(sc: Scenario, out: str | Path, *, section_m: float | None = 
         Output folder.
     section_m : float, optional
         Longest track piece [m]; default ``export.section_length_m``.
-    dxf : bool
-        Write DXF too.
+    dxf : bool, optional
+        Write DXF too (default, None: yes; ridesim writes DXF itself, no extra needed).
 
     Returns
     -------
@@ -56,6 +56,7 @@ def export_scenario(sc: Scenario, out: str | Path, *, section_m: float | None = 
     from ridesim.scenario.build import solve_scenario
 
     notes: list[str] = []
+    dxf = dxf is None or bool(dxf)
     pair = solve_scenario(sc)
     thick = sc.wheel.thickness_m if sc.wheel is not None else None
     if sc.path.is_hub:  # a wheel and the hub (or ring) it rolls on, each about its centre
