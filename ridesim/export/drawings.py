@@ -666,7 +666,7 @@ def export_drawings(pair, out_dir: str | Path, *, name: str, max_section_m: floa
     axle_flat_m : float, optional
         D-bore: width [m] across the flat, between half the hole and the hole; None: round.
     dxf : bool
-        Also write DXF (R2010, mm; needs the ``cad`` extra, ezdxf).
+        Also write DXF (R2010, mm).
     wheels : int
         Wheels to cut (cut list count).
     strips : int
@@ -701,10 +701,6 @@ def export_drawings(pair, out_dir: str | Path, *, name: str, max_section_m: floa
     if hole >= 2 * rmin:
         raise InputError(f"axle_hole_m = {hole:g} m does not fit in the wheel (least radius {rmin:g} m);"
                          " give a smaller hole")
-    if dxf:
-        from ridesim.export.dxf import require_ezdxf
-
-        require_ezdxf()
     out = Path(out_dir)
     written: list[Path] = []
 
@@ -909,8 +905,7 @@ def export_hub_drawings(pair, out_dir: str | Path, *, name: str, thickness_m: fl
     margin_m : float
         Blank margin [m] around the geometry.
     dxf : bool
-        Also write DXF (R2010, mm, layers CUT/MARK/TEXT as the line's cut files; needs the
-        ``cad`` extra, ezdxf).
+        Also write DXF (R2010, mm, layers CUT/MARK/TEXT as the line's cut files).
 
     Returns
     -------
@@ -918,10 +913,6 @@ def export_hub_drawings(pair, out_dir: str | Path, *, name: str, thickness_m: fl
         The files written, wheel first.
     """
     stem = _safe_name(name)
-    if dxf:
-        from ridesim.export.dxf import require_ezdxf
-
-        require_ezdxf()  # before anything is written
     hole = _positive("hole_m", hole_m)
     tol = _positive("tol_m", tol_m)
     kerf = float(kerf_m)

@@ -1,9 +1,8 @@
 """DXF cut files (AutoCAD R2010 format, millimetres) for laser, router and waterjet shops.
 
-Written with ezdxf (the ``cad`` extra), imported only here and only when a DXF is asked
-for. Each drawing is 1:1 in millimetres (``$INSUNITS`` = 4, ``$MEASUREMENT`` = 1, metric)
-in the same frames as the SVG and CSV files (wheel: axle frame; track: x along the axle
-path, y below the axle line), with three layers:
+Each drawing is 1:1 in millimetres (``$INSUNITS`` = 4, ``$MEASUREMENT`` = 1, metric) in
+the same frames as the SVG and CSV files (wheel: axle frame; track: x along the axle path,
+y below the axle line), with three layers:
 
 * ``CUT`` (red, ACI 1): cut lines, already offset by half the kerf into the waste;
 * ``MARK`` (blue, ACI 5): score or mark lines (axle cross-hair, cusp and joint ticks);
@@ -12,22 +11,28 @@ path, y below the axle line), with three layers:
 Curves are LWPOLYLINEs whose chords stay within the export's chord tolerance; a circular
 wheel and a round axle hole are CIRCLEs and the arc of a D-bore an exact arc (a polyline
 bulge).
+
+The files are written here, without ezdxf (whose import alone costs more than the rest of
+an export): everything but the entities is the same in every file (header, classes, tables
+with the three layers, blocks, objects), written once by ezdxf into
+``ridesim/export/dxf_skeleton.py`` (``tools/dxf_skeleton.py``); the entities follow with
+the handles, owner, subclass markers, group codes and number formats ezdxf gives them, so
+a file is byte for byte the one ezdxf writes for the same drawing (``tests/test_dxf_writer.py``).
 """
 
 from __future__ import annotations
 
-import io
 import math
 import re
 from collections.abc import Sequence
 from pathlib import Path
+from typing import Any
 
 import numpy as np
 
-from ridesim.errors import InputError
 from ridesim.export.results import write_text_atomic
 
-__all__ = ["LAYERS", "require_ezdxf", "wheel_dxf", "section_dxf", "centre_part_dxf"]
+__all__ = ["LAYERS", "Drawing", "dxf_text", "wheel_dxf", "section_dxf", "centre_part_dxf"]
 
 #: Layer name -> AutoCAD colour index (1 red, 5 blue, 7 white/black).
 LAYERS = {"CUT": 1, "MARK": 5, "TEXT": 7}
@@ -35,75 +40,120 @@ TEXT_MM = 3.5
 LINE_MM = 5.0
 
 
-def require_ezdxf():
-    """Import ezdxf, or say in one line how to install it."""
-    try:
-        import ezdxf
-    except ImportError:
-        raise InputError('DXF export needs ezdxf: pip install "ridesim[cad]" (or pip install ezdxf)'
-                         ) from None
-    return ezdxf
+def _xy(p) -> tuple[float, float]:
+    return float(p[0]), float(p[1])
 
 
-def _new_doc():
-    ezdxf = require_ezdxf()
-    from ezdxf import units
+class Drawing:
+    """The entities of one drawing, in drawing order, as plain records.
 
-    doc = ezdxf.new("R2010", setup=False)
-    doc.units = units.MM
-    doc.header["$MEASUREMENT"] = 1  # metric
-    for name, colour in LAYERS.items():
-        doc.layers.add(name, color=colour)
-    return doc
+    ``entities`` holds ``("LWPOLYLINE", layer, points, bulges or None, closed)``,
+    ``("CIRCLE", layer, centre, radius)``, ``("LINE", layer, start, end)`` and
+    ``("TEXT", layer, insert, height, text)``, in millimetres (Python floats).
+    """
+
+    def __init__(self) -> None:
+        self.entities: list[tuple[Any, ...]] = []
+
+    def polyline(self, points, layer: str, *, bulges: Sequence[float] | None = None,
+                 closed: bool = True) -> None:
+        """Add an LWPOLYLINE through ``points`` (N x 2), with a bulge per vertex if given."""
+        pts = [_xy(p) for p in np.asarray(points, dtype=float).tolist()]
+        b = None if bulges is None else [float(v) for v in bulges]
+        if b is not None and len(b) != len(pts):
+            raise ValueError(f"bulges: one per vertex ({len(pts)}), got {len(b)}")
+        self.entities.append(("LWPOLYLINE", layer, pts, b, bool(closed)))
+
+    def circle(self, centre, radius: float, layer: str) -> None:
+        """Add a CIRCLE."""
+        self.entities.append(("CIRCLE", layer, _xy(centre), float(radius)))
+
+    def line(self, start, end, layer: str) -> None:
+        """Add a LINE."""
+        self.entities.append(("LINE", layer, _xy(start), _xy(end)))
+
+    def text(self, insert, text: str, layer: str = "TEXT", height: float = TEXT_MM) -> None:
+        """Add a one-line TEXT (line breaks and a closing ``^``, which a DXF text cannot hold, dropped)."""
+        one_line = str(text).replace("\n", "").replace("\r", "").rstrip("^")
+        self.entities.append(("TEXT", layer, _xy(insert), float(height), one_line))
 
 
-def _text_block(msp, lines: Sequence[str], x: float, y_top: float) -> None:
+def _entity_text(kind: str, handle: str, owner: str, layer: str, data: tuple) -> str:
+    # The tags in ezdxf's order and format ("%3d\n%s\n", floats as Python's repr): handle,
+    # owner, AcDbEntity with the layer, then the entity's own subclass; default-valued
+    # optional tags (thickness, extrusion, rotation...) are not written.
+    head = f"  0\n{kind}\n  5\n{handle}\n330\n{owner}\n100\nAcDbEntity\n  8\n{layer}\n"
+    if kind == "LWPOLYLINE":
+        points, bulges, closed = data
+        parts = [head, f"100\nAcDbPolyline\n 90\n{len(points)}\n 70\n{1 if closed else 0}\n"]
+        if bulges is None:
+            parts += [f" 10\n{x!r}\n 20\n{y!r}\n" for x, y in points]
+        else:
+            parts += [f" 10\n{x!r}\n 20\n{y!r}\n" + (f" 42\n{b!r}\n" if b else "")
+                      for (x, y), b in zip(points, bulges, strict=True)]
+        return "".join(parts)
+    if kind == "CIRCLE":
+        (x, y), r = data
+        return f"{head}100\nAcDbCircle\n 10\n{x!r}\n 20\n{y!r}\n 30\n0.0\n 40\n{r!r}\n"
+    if kind == "LINE":
+        (x0, y0), (x1, y1) = data
+        return (f"{head}100\nAcDbLine\n 10\n{x0!r}\n 20\n{y0!r}\n 30\n0.0\n"
+                f" 11\n{x1!r}\n 21\n{y1!r}\n 31\n0.0\n")
+    if kind == "TEXT":
+        (x, y), h, s = data
+        return f"{head}100\nAcDbText\n 10\n{x!r}\n 20\n{y!r}\n 30\n0.0\n 40\n{h!r}\n  1\n{s}\n100\nAcDbText\n"
+    raise ValueError(f"unknown DXF entity {kind!r}")
+
+
+def dxf_text(drawing: Drawing) -> str:
+    """The drawing as the text of an R2010 DXF file (identical drawings give identical text).
+
+    Parameters
+    ----------
+    drawing : Drawing
+
+    Returns
+    -------
+    str
+    """
+    from ridesim.export import dxf_skeleton as sk
+
+    first = sk.FIRST_HANDLE
+    body = "".join(_entity_text(kind, f"{first + i:X}", sk.OWNER, layer, tuple(data))
+                   for i, (kind, layer, *data) in enumerate(drawing.entities))
+    after = first + len(drawing.entities)  # handles ezdxf gives out while writing follow the entities
+
+    def fill(part: str) -> str:
+        return re.sub(r"@@H\+(\d+)@@", lambda m: f"{after + int(m[1]):X}", part)
+
+    return fill(sk.HEAD) + body + fill(sk.TAIL)
+
+
+def _text_block(d: Drawing, lines: Sequence[str], x: float, y_top: float) -> None:
     y = y_top
     for s in lines:
         y -= LINE_MM
-        msp.add_text(str(s), height=TEXT_MM, dxfattribs={"layer": "TEXT", "insert": (x, y)})
+        d.text((x, y), str(s))
 
 
-def _save(doc, path: Path) -> Path:
-    """Write a drawing whose bytes depend on its geometry only.
-
-    ezdxf stamps the save time and fresh GUIDs into the header unless told to write fixed
-    metadata; identical inputs must give identical files (a shop's file comparison, and
-    re-exports that change nothing must not look changed).
-    """
-    import ezdxf
-
-    # The CLASSES section is filled from a set (its order follows Python's string hashing,
-    # which changes from process to process): fill it now and order it by name.
-    doc.classes.add_required_classes(doc.dxfversion)
-    doc.classes.classes = dict(sorted(doc.classes.classes.items(), key=lambda kv: str(kv[0])))
-    buf = io.StringIO()
-    before = ezdxf.options.write_fixed_meta_data_for_testing
-    ezdxf.options.write_fixed_meta_data_for_testing = True
-    try:
-        doc.write(buf)
-    finally:
-        ezdxf.options.write_fixed_meta_data_for_testing = before
-    # ezdxf's own "created by / written by" markers carry a clock time: keep the version only.
-    text = re.sub(r"^(\d+\.\d+\.\d+\S*) @ \d{4}-\d\d-\d\dT[0-9:.+\-]+$", r"\1", buf.getvalue(),
-                  flags=re.M)
-    return write_text_atomic(path, text)
+def _save(d: Drawing, path: Path) -> Path:
+    """Write the drawing atomically; its bytes depend on its geometry only."""
+    return write_text_atomic(path, dxf_text(d))
 
 
-def _bore(msp, hole_m: float, flat_m: float | None, kerf_m: float) -> None:
+def _bore(d: Drawing, hole_m: float, flat_m: float | None, kerf_m: float) -> None:
     """Draw a bore on CUT at the origin, its line half the kerf into the hole.
 
     A circle, or a D: an arc and its flat at the top, one polyline with a bulge.
     """
     r = 0.5 * (hole_m - kerf_m) * 1000
     if flat_m is None:
-        msp.add_circle((0.0, 0.0), r, dxfattribs={"layer": "CUT"})
+        d.circle((0.0, 0.0), r, "CUT")
         return
     f = (flat_m - 0.5 * hole_m - 0.5 * kerf_m) * 1000
     w = math.sqrt(r * r - f * f)
     sweep = math.pi + 2 * math.asin(f / r)  # anticlockwise arc under the flat
-    msp.add_lwpolyline([(w, f, 0.0), (-w, f, math.tan(sweep / 4))], format="xyb", close=True,
-                       dxfattribs={"layer": "CUT"})
+    d.polyline([(w, f), (-w, f)], "CUT", bulges=[0.0, math.tan(sweep / 4)])
 
 
 def wheel_dxf(path: str | Path, pair, cut_mm: np.ndarray, hole_m: float, flat_m: float | None,
@@ -131,22 +181,20 @@ def wheel_dxf(path: str | Path, pair, cut_mm: np.ndarray, hole_m: float, flat_m:
     -------
     Path
     """
-    doc = _new_doc()
-    msp = doc.modelspace()
+    d = Drawing()
     wheel = pair.wheel
     if wheel.kind == "circle":  # a circle stays a circle: its centre and radius, grown by half the kerf
         c = np.asarray(wheel.shape_offset) * 1000
-        msp.add_circle((float(c[0]), float(c[1])), (wheel.params["radius_m"] + 0.5 * kerf_m) * 1000,
-                       dxfattribs={"layer": "CUT"})
+        d.circle(c, (wheel.params["radius_m"] + 0.5 * kerf_m) * 1000, "CUT")
     else:
-        msp.add_lwpolyline([tuple(map(float, p)) for p in cut_mm], close=True, dxfattribs={"layer": "CUT"})
-    _bore(msp, hole_m, flat_m, kerf_m)
+        d.polyline(cut_mm, "CUT")
+    _bore(d, hole_m, flat_m, kerf_m)
     rmin = pair.wheel.extremes()[0] * 1000
     arm = 0.5 * hole_m * 1000 + min(5.0, 0.3 * rmin)
-    msp.add_line((-arm, 0.0), (arm, 0.0), dxfattribs={"layer": "MARK"})
-    msp.add_line((0.0, -arm), (0.0, arm), dxfattribs={"layer": "MARK"})
-    _text_block(msp, lines, float(cut_mm[:, 0].min()), float(cut_mm[:, 1].min()) - LINE_MM)
-    return _save(doc, Path(path))
+    d.line((-arm, 0.0), (arm, 0.0), "MARK")
+    d.line((0.0, -arm), (0.0, arm), "MARK")
+    _text_block(d, lines, float(cut_mm[:, 0].min()), float(cut_mm[:, 1].min()) - LINE_MM)
+    return _save(d, Path(path))
 
 
 def section_dxf(path: str | Path, k: int, n: int, prof_mm: np.ndarray, cut_mm: np.ndarray,
@@ -174,16 +222,14 @@ def section_dxf(path: str | Path, k: int, n: int, prof_mm: np.ndarray, cut_mm: n
     -------
     Path
     """
-    doc = _new_doc()
-    msp = doc.modelspace()
-    msp.add_lwpolyline([tuple(map(float, p)) for p in cut_mm], close=True, dxfattribs={"layer": "CUT"})
+    d = Drawing()
+    d.polyline(cut_mm, "CUT")
     x0, x1 = float(prof_mm[0, 0]), float(prof_mm[-1, 0])
     y_bottom = float(cut_mm[:, 1].min())
     tick = min(4.0, 0.4 * (float(prof_mm[:, 1].min()) - y_bottom))
     for c in cusps_mm:
         if x0 < c[0] < x1:
-            msp.add_line((float(c[0]), float(c[1])), (float(c[0]), float(c[1]) - tick),
-                         dxfattribs={"layer": "MARK"})
+            d.line((c[0], c[1]), (c[0], float(c[1]) - tick), "MARK")
     ends = []
     if k > 0:
         ends.append((x0 + joint_mark_mm, f"J{k}"))
@@ -191,11 +237,10 @@ def section_dxf(path: str | Path, k: int, n: int, prof_mm: np.ndarray, cut_mm: n
         ends.append((x1 - joint_mark_mm, f"J{k + 1}"))
     for xj, label in ends:
         yj = float(np.interp(xj, prof_mm[:, 0], prof_mm[:, 1]))
-        msp.add_line((xj, yj), (xj, yj - 1.5 * tick), dxfattribs={"layer": "MARK"})
-        msp.add_text(label, height=TEXT_MM,
-                     dxfattribs={"layer": "TEXT", "insert": (xj - TEXT_MM, yj - 1.5 * tick - LINE_MM)})
-    _text_block(msp, lines, x0, y_bottom - LINE_MM)
-    return _save(doc, Path(path))
+        d.line((xj, yj), (xj, yj - 1.5 * tick), "MARK")
+        d.text((xj - TEXT_MM, yj - 1.5 * tick - LINE_MM), label)
+    _text_block(d, lines, x0, y_bottom - LINE_MM)
+    return _save(d, Path(path))
 
 
 def centre_part_dxf(path: str | Path, outline_mm: np.ndarray, hole_m: float | None,
@@ -231,20 +276,19 @@ def centre_part_dxf(path: str | Path, outline_mm: np.ndarray, hole_m: float | No
     -------
     Path
     """
-    doc = _new_doc()
-    msp = doc.modelspace()
+    d = Drawing()
     pts = np.asarray(outline_mm, dtype=float)
-    msp.add_lwpolyline([tuple(map(float, p)) for p in pts], close=True, dxfattribs={"layer": "CUT"})
+    d.polyline(pts, "CUT")
     if outer_r_mm is not None:
-        msp.add_circle((0.0, 0.0), float(outer_r_mm) + 0.5 * kerf_m * 1000, dxfattribs={"layer": "CUT"})
+        d.circle((0.0, 0.0), float(outer_r_mm) + 0.5 * kerf_m * 1000, "CUT")
     rh = 0.0 if hole_m is None else 0.5 * hole_m * 1000
     if hole_m is not None:
-        _bore(msp, hole_m, flat_m, kerf_m)
+        _bore(d, hole_m, flat_m, kerf_m)
     rmin = float(np.min(np.hypot(pts[:, 0], pts[:, 1])))
     arm = rh + min(5.0, 0.3 * rmin)
-    msp.add_line((-arm, 0.0), (arm, 0.0), dxfattribs={"layer": "MARK"})
-    msp.add_line((0.0, -arm), (0.0, arm), dxfattribs={"layer": "MARK"})
+    d.line((-arm, 0.0), (arm, 0.0), "MARK")
+    d.line((0.0, -arm), (0.0, arm), "MARK")
     x_left = -float(outer_r_mm) if outer_r_mm is not None else float(pts[:, 0].min())
     y_low = -float(outer_r_mm) if outer_r_mm is not None else float(pts[:, 1].min())
-    _text_block(msp, lines, x_left, y_low - LINE_MM)
-    return _save(doc, Path(path))
+    _text_block(d, lines, x_left, y_low - LINE_MM)
+    return _save(d, Path(path))

@@ -45,7 +45,7 @@ def export_scenario(sc: Scenario, out: str | Path, *, section_m: float | None = 
     section_m : float, optional
         Longest track piece [m]; default ``export.section_length_m``.
     dxf : bool, optional
-        Write DXF too; default: when ezdxf (the ``cad`` extra) is installed.
+        Write DXF too (default, None: yes; ridesim writes DXF itself, no extra needed).
 
     Returns
     -------
@@ -55,14 +55,8 @@ def export_scenario(sc: Scenario, out: str | Path, *, section_m: float | None = 
     from ridesim.export.drawings import export_drawings
     from ridesim.scenario.build import solve_scenario
 
-    notes = []
-    if dxf is None:
-        try:
-            import ezdxf  # noqa: F401
-            dxf = True
-        except ImportError:
-            dxf = False
-            notes.append('DXF not written: it needs ezdxf (pip install "ridesim[cad]")')
+    notes: list[str] = []
+    dxf = dxf is None or bool(dxf)
     pair = solve_scenario(sc)
     thick = sc.wheel.thickness_m if sc.wheel is not None else None
     if sc.path.is_hub:  # a wheel and the hub (or ring) it rolls on, each about its centre
