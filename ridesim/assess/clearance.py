@@ -274,8 +274,9 @@ class _Envelope:
         self.bins = int(bins)
         self.h = self.period / self.bins
         xs = self.x0 + self.period * np.linspace(0.0, 1.0, self.bins * sub + 1)
-        ys = np.asarray(track.y(xs), dtype=float)
-        sl = np.abs(np.asarray(track.slope(xs), dtype=float))
+        ys, sl = track.y_and_slope(xs)
+        ys = np.asarray(ys, dtype=float)
+        sl = np.abs(np.asarray(sl, dtype=float))
         smax = float(np.max(sl)) if sl.size else 0.0
         step = self.period / (self.bins * sub)
         # Lipschitz bound between samples, doubled for the slope sampling itself.
@@ -330,8 +331,9 @@ class _LineEnvelope:
         self.top = top
         m = (1 << top) * sub
         xs = self.x0 + self.period * np.linspace(0.0, 1.0, m + 1)
-        ys = np.asarray(track.y(xs), dtype=float)
-        sl = np.asarray(track.slope(xs), dtype=float)
+        ys, sl = track.y_and_slope(xs)
+        ys = np.asarray(ys, dtype=float)
+        sl = np.asarray(sl, dtype=float)
         scale = 1e-12 * max(1.0, float(np.max(np.abs(ys))))
         self.global_max = float(np.max(ys)) + 1.1 * float(np.max(np.abs(sl))) * (self.period / m)
         self.global_max += scale
@@ -344,8 +346,9 @@ class _LineEnvelope:
             yw = np.lib.stride_tricks.sliding_window_view(ys[::stride], sub + 1)[::sub]
             sw = np.lib.stride_tricks.sliding_window_view(sl[::stride], sub + 1)[::sub]
             centre = self.x0 + (np.arange(nb) + 0.5) * w
-            y0 = np.asarray(track.y(centre), dtype=float)
-            m0 = np.asarray(track.slope(centre), dtype=float)
+            y0, m0 = track.y_and_slope(centre)
+            y0 = np.asarray(y0, dtype=float)
+            m0 = np.asarray(m0, dtype=float)
             dev = yw - (y0[:, None] + m0[:, None] * (xw - centre[:, None]))
             lip = 1.1 * np.max(np.abs(sw - m0[:, None]), axis=1) * (w / sub)
             yc.append(y0)
