@@ -361,25 +361,29 @@ class _LineEnvelope:
         self.pad = np.concatenate(pad)
 
     def lines(self, xl: np.ndarray, xr: np.ndarray):
-        """The (at most two) bins' lines covering each ``[xl, xr]`` [m].
+        """The (at most two) bins' lines covering each ``[xl, xr]`` [m], stacked on axis 0.
 
-        For each: the absolute bin centre [m], height [m], slope and pad [m]; plus a mask of
-        ranges a period wide or wider (no line bound there: use :attr:`global_max`).
+        Returns the absolute bin centres [m], heights [m], slopes and pads [m], each of shape
+        ``(2, n)`` (a bin and the next), and a mask of ranges a period wide or wider (no line
+        bound there: use :attr:`global_max`).
         """
         width = xr - xl
         wide = width >= self.period
         # Level floor(log2(period / width)), read off the float exponent; clipped to the levels.
         lev = np.frexp(self.period / np.maximum(width, 1e-300 * self.period))[1] - 1
-        lev = np.clip(lev, 0, self.top)
+        lev = np.minimum(np.maximum(lev, 0), self.top)
         inv_w = self._inv_w[lev]
         i1 = np.floor((xl - self.x0) * inv_w).astype(np.int64)
         first = self._first[lev]
-        mask = first  # bins in a level: first + 1, a power of two
-        out = []
-        for ib in (i1, i1 + 1):
-            k = first + np.bitwise_and(ib, mask)
-            out.append((self.x0 + (ib + 0.5) / inv_w, self.yc[k], self.mc[k], self.pad[k]))
-        return out, wide
+        ib = i1 + _PAIR_OFFSETS
+        k = first + np.bitwise_and(ib, first)
+        return self.x0 + (ib + 0.5) / inv_w, self.yc[k], self.mc[k], self.pad[k], wide
+
+
+_PAIR_OFFSETS = np.array([[0], [1]], dtype=np.int64)  # a bin and the next, stacked
+_CHILDREN = np.array([0, 1])
+_MIN = np.minimum.reduce
+_MAX = np.maximum.reduce
 
 
 class _BoxTree:
@@ -434,32 +438,25 @@ class _BoxTree:
                 break
             width *= 2
 
-    def bounds(self, lev: int, ni: np.ndarray, x: np.ndarray, c: np.ndarray, s: np.ndarray,
-               env: _LineEnvelope, lower: bool) -> np.ndarray:
+    def bounds(self, lev: int, ni: np.ndarray, x: np.ndarray | float, c: np.ndarray | float,
+               s: np.ndarray | float, env: _LineEnvelope, lower: bool) -> np.ndarray:
         """Bound on ``Y - track(X)`` (``lower``) or ``track(X) - Y`` over each posed box.
 
         Box ``ni`` of level ``lev`` posed at axle ``x`` turned by ``(c, s) = (cos, sin)`` of
-        the wheel angle (one row per pair). Below a bin's line the gap is linear in the point,
+        the wheel angle (one value per pair, or one for all). Below a bin's line the gap is linear in the point,
         so its extremes over a box are at the corners.
         """
         kx, ky = self.levels[lev]
         KX, KY = kx[:, ni], ky[:, ni]  # the four corners, one row each
         X = x + KX * c + KY * s
         Y = -KX * s + KY * c
-        xl = X.min(axis=0)
-        xr = X.max(axis=0)
-        lines, wide = env.lines(xl, xr)
-        per_line: list[np.ndarray] = []
-        for centre, yc, mc, pad in lines:
-            v = (Y - (yc + mc * (X - centre))).min(axis=0)
-            per_line.append(v - pad if lower else pad - v)
-        res = per_line[0]  # env.lines gives two bins' lines per box
-        for v in per_line[1:]:
-            res = np.minimum(res, v) if lower else np.maximum(res, v)
-        ylo = Y.min(axis=0)
+        centre, yc, mc, pad, wide = env.lines(_MIN(X, axis=0), _MAX(X, axis=0))
+        # Both bins' lines at once (axis 0), the four corners on axis 1.
+        v = _MIN(Y - (yc[:, None] + mc[:, None] * (X - centre[:, None])), axis=1)
+        ylo = _MIN(Y, axis=0)
         if lower:
-            return np.where(wide, ylo - env.global_max, res)
-        return np.where(wide, env.global_max - ylo, res)
+            return np.where(wide, ylo - env.global_max, _MIN(v - pad, axis=0))
+        return np.where(wide, env.global_max - ylo, _MAX(pad - v, axis=0))
 
     def candidates(self, x: np.ndarray, c: np.ndarray, s: np.ndarray, env: _LineEnvelope,
                    thr: float | np.ndarray, lower: bool = True, probe=None) -> tuple[np.ndarray, np.ndarray]:
@@ -475,6 +472,8 @@ class _BoxTree:
         """
         top = len(self.levels) - 1
         runs = self.levels[top][0].shape[1]
+        if len(x) == 1 and probe is None and np.ndim(thr) == 0:
+            return self._candidates_one(float(x[0]), c[0], s[0], env, float(thr), lower)
         pi = np.repeat(np.arange(len(x)), runs)
         ni = np.tile(np.arange(runs), len(x))
         thr_pose = np.array(np.broadcast_to(np.asarray(thr, dtype=float), np.shape(x)))
@@ -496,10 +495,28 @@ class _BoxTree:
                 break
             # Children, in order: 2j, 2j + 1 (the last run may have one child only).
             pi = np.repeat(pi, 2)
-            ni = (2 * ni[:, None] + np.array([0, 1])).ravel()
+            ni = (2 * ni[:, None] + _CHILDREN).ravel()
             ok = ni < self.levels[lev - 1][0].shape[1]
             pi, ni = pi[ok], ni[ok]
         return pi, ni
+
+    def _candidates_one(self, x: float, c: float, s: float, env: _LineEnvelope, thr: float,
+                        lower: bool) -> tuple[np.ndarray, np.ndarray]:
+        """:meth:`candidates` of one pose without probes.
+
+        The same bounds, tested in the same order, with the pose's figures as scalars (no
+        per-pair copies of them).
+        """
+        top = len(self.levels) - 1
+        ni = np.arange(self.levels[top][0].shape[1])
+        for lev in range(top, -1, -1):
+            bd = self.bounds(lev, ni, x, c, s, env, lower)
+            ni = ni[bd < thr] if lower else ni[bd >= thr]
+            if lev == 0 or not ni.size:
+                break
+            ni = (2 * ni[:, None] + _CHILDREN).ravel()
+            ni = ni[ni < self.levels[lev - 1][0].shape[1]]
+        return np.zeros(ni.size, dtype=np.int64), ni
 
 
 # ---------------------------------------------------------------------------- rims
