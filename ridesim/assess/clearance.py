@@ -388,12 +388,13 @@ class _LineEnvelope:
         # Level floor(log2(period / width)), read off the float exponent; clipped to the levels.
         lev = np.frexp(self.period / np.maximum(width, 1e-300 * self.period))[1] - 1
         lev = np.minimum(np.maximum(lev, 0), self.top)
-        inv_w = self._inv_w[lev]
+        inv_w = np.take(self._inv_w, lev)
         i1 = np.floor((xl - self.x0) * inv_w).astype(np.int64)
-        first = self._first[lev]
+        first = np.take(self._first, lev)
         ib = i1 + _PAIR_OFFSETS
         k = first + np.bitwise_and(ib, first)
-        return self.x0 + (ib + 0.5) / inv_w, self.yc[k], self.mc[k], self.pad[k], wide
+        return (self.x0 + (ib + 0.5) / inv_w, np.take(self.yc, k), np.take(self.mc, k),
+                np.take(self.pad, k), wide)
 
 
 _PAIR_OFFSETS = np.array([[0], [1]], dtype=np.int64)  # a bin and the next, stacked
@@ -476,7 +477,8 @@ class _BoxTree:
         linear in the point, so its extremes over a box are at the corners.
         """
         kx, ky = self.levels[lev]
-        KX, KY = kx[:, ni], ky[:, ni]  # the four corners, one row each
+        # The four corners, one row each (np.take: a faster gather than indexing here).
+        KX, KY = np.take(kx, ni, axis=1), np.take(ky, ni, axis=1)
         X = x + KX * c + KY * s
         Y = -KX * s + KY * c
         centre, yc, mc, pad, wide = env.lines(_min4(X), _max4(X))
