@@ -265,6 +265,23 @@ class CuspSeat:
 
 
 # ---------------------------------------------------------------------------- envelope
+def _window_columns(a: np.ndarray, sub: int, n: int) -> list[np.ndarray]:
+    """The ``sub + 1`` samples of each of ``n`` windows ``a[i sub : (i + 1) sub + 1]``.
+
+    One array per position in the window, so that a window's greatest is an elementwise
+    maximum (far faster than a reduction over short rows).
+    """
+    return [a[j: j + n * sub: sub] for j in range(sub + 1)]
+
+
+def _greatest(cols: list[np.ndarray]) -> np.ndarray:
+    """Elementwise greatest of equally long arrays."""
+    out = cols[0]
+    for col in cols[1:]:
+        out = np.maximum(out, col)
+    return out
+
+
 class _Envelope:
     """Binned upper envelope of the track over one period, with range maxima."""
 
@@ -274,14 +291,14 @@ class _Envelope:
         self.bins = int(bins)
         self.h = self.period / self.bins
         xs = self.x0 + self.period * np.linspace(0.0, 1.0, self.bins * sub + 1)
-        ys = np.asarray(track.y(xs), dtype=float)
-        sl = np.abs(np.asarray(track.slope(xs), dtype=float))
+        ys, sl = track.y_and_slope(xs)
+        ys = np.asarray(ys, dtype=float)
+        sl = np.abs(np.asarray(sl, dtype=float))
         smax = float(np.max(sl)) if sl.size else 0.0
         step = self.period / (self.bins * sub)
         # Lipschitz bound between samples, doubled for the slope sampling itself.
         pad = 1.1 * smax * step + 1e-12 * max(1.0, float(np.max(np.abs(ys))))
-        blocks = np.lib.stride_tricks.sliding_window_view(ys, sub + 1)[::sub]
-        env = blocks.max(axis=1) + pad
+        env = _greatest(_window_columns(ys, sub, self.bins)) + pad
         self.global_max = float(env.max())
         # Sparse table over the doubled array (so wrapped ranges are contiguous), stacked
         # into one 2-D array so that a range query is two gathers.
@@ -330,8 +347,9 @@ class _LineEnvelope:
         self.top = top
         m = (1 << top) * sub
         xs = self.x0 + self.period * np.linspace(0.0, 1.0, m + 1)
-        ys = np.asarray(track.y(xs), dtype=float)
-        sl = np.asarray(track.slope(xs), dtype=float)
+        ys, sl = track.y_and_slope(xs)
+        ys = np.asarray(ys, dtype=float)
+        sl = np.asarray(sl, dtype=float)
         scale = 1e-12 * max(1.0, float(np.max(np.abs(ys))))
         self.global_max = float(np.max(ys)) + 1.1 * float(np.max(np.abs(sl))) * (self.period / m)
         self.global_max += scale
@@ -340,17 +358,18 @@ class _LineEnvelope:
             nb = 1 << lev
             stride = 1 << (top - lev)
             w = self.period / nb
-            xw = np.lib.stride_tricks.sliding_window_view(xs[::stride], sub + 1)[::sub]
-            yw = np.lib.stride_tricks.sliding_window_view(ys[::stride], sub + 1)[::sub]
-            sw = np.lib.stride_tricks.sliding_window_view(sl[::stride], sub + 1)[::sub]
+            xw = _window_columns(xs[::stride], sub, nb)
+            yw = _window_columns(ys[::stride], sub, nb)
+            sw = _window_columns(sl[::stride], sub, nb)
             centre = self.x0 + (np.arange(nb) + 0.5) * w
-            y0 = np.asarray(track.y(centre), dtype=float)
-            m0 = np.asarray(track.slope(centre), dtype=float)
-            dev = yw - (y0[:, None] + m0[:, None] * (xw - centre[:, None]))
-            lip = 1.1 * np.max(np.abs(sw - m0[:, None]), axis=1) * (w / sub)
+            y0, m0 = track.y_and_slope(centre)
+            y0 = np.asarray(y0, dtype=float)
+            m0 = np.asarray(m0, dtype=float)
+            dev = _greatest([yj - (y0 + m0 * (xj - centre)) for xj, yj in zip(xw, yw, strict=True)])
+            lip = 1.1 * _greatest([np.abs(sj - m0) for sj in sw]) * (w / sub)
             yc.append(y0)
             mc.append(m0)
-            pad.append(np.max(dev, axis=1) + lip + scale)
+            pad.append(dev + lip + scale)
         self._first = (1 << np.arange(top + 1)) - 1  # index of each level's first bin
         self._inv_w = (1 << np.arange(top + 1)) / self.period  # bins per metre
         self.yc = np.concatenate(yc)
@@ -358,25 +377,43 @@ class _LineEnvelope:
         self.pad = np.concatenate(pad)
 
     def lines(self, xl: np.ndarray, xr: np.ndarray):
-        """The (at most two) bins' lines covering each ``[xl, xr]`` [m].
+        """The (at most two) bins' lines covering each ``[xl, xr]`` [m], stacked on axis 0.
 
-        For each: the absolute bin centre [m], height [m], slope and pad [m]; plus a mask of
-        ranges a period wide or wider (no line bound there: use :attr:`global_max`).
+        Returns the absolute bin centres [m], heights [m], slopes and pads [m], each of shape
+        ``(2, n)`` (a bin and the next), and a mask of ranges a period wide or wider (no line
+        bound there: use :attr:`global_max`).
         """
         width = xr - xl
         wide = width >= self.period
         # Level floor(log2(period / width)), read off the float exponent; clipped to the levels.
         lev = np.frexp(self.period / np.maximum(width, 1e-300 * self.period))[1] - 1
-        lev = np.clip(lev, 0, self.top)
-        inv_w = self._inv_w[lev]
+        lev = np.minimum(np.maximum(lev, 0), self.top)
+        inv_w = np.take(self._inv_w, lev)
         i1 = np.floor((xl - self.x0) * inv_w).astype(np.int64)
-        first = self._first[lev]
-        mask = first  # bins in a level: first + 1, a power of two
-        out = []
-        for ib in (i1, i1 + 1):
-            k = first + np.bitwise_and(ib, mask)
-            out.append((self.x0 + (ib + 0.5) / inv_w, self.yc[k], self.mc[k], self.pad[k]))
-        return out, wide
+        first = np.take(self._first, lev)
+        ib = i1 + _PAIR_OFFSETS
+        k = first + np.bitwise_and(ib, first)
+        return (self.x0 + (ib + 0.5) / inv_w, np.take(self.yc, k), np.take(self.mc, k),
+                np.take(self.pad, k), wide)
+
+
+_PAIR_OFFSETS = np.array([[0], [1]], dtype=np.int64)  # a bin and the next, stacked
+_CHILDREN = np.array([0, 1])
+
+
+def _min4(a: np.ndarray) -> np.ndarray:
+    """Least of the four rows of ``a`` (elementwise; a reduction over a short first axis is slower)."""
+    return np.minimum(np.minimum(a[0], a[1]), np.minimum(a[2], a[3]))
+
+
+def _max4(a: np.ndarray) -> np.ndarray:
+    """Greatest of the four rows of ``a`` (elementwise)."""
+    return np.maximum(np.maximum(a[0], a[1]), np.maximum(a[2], a[3]))
+
+
+def _below_line(X, Y, centre, yc, mc):
+    """Height of the points ``(X, Y)`` [m] above the line ``yc + mc (x - centre)`` [m]."""
+    return Y - (yc + mc * (X - centre))
 
 
 class _BoxTree:
@@ -431,32 +468,32 @@ class _BoxTree:
                 break
             width *= 2
 
-    def bounds(self, lev: int, ni: np.ndarray, x: np.ndarray, c: np.ndarray, s: np.ndarray,
-               env: _LineEnvelope, lower: bool) -> np.ndarray:
+    def bounds(self, lev: int, ni: np.ndarray, x: np.ndarray | float, c: np.ndarray | float,
+               s: np.ndarray | float, env: _LineEnvelope, lower: bool) -> np.ndarray:
         """Bound on ``Y - track(X)`` (``lower``) or ``track(X) - Y`` over each posed box.
 
         Box ``ni`` of level ``lev`` posed at axle ``x`` turned by ``(c, s) = (cos, sin)`` of
-        the wheel angle (one row per pair). Below a bin's line the gap is linear in the point,
-        so its extremes over a box are at the corners.
+        the wheel angle (one value per pair, or one for all). Below a bin's line the gap is
+        linear in the point, so its extremes over a box are at the corners.
         """
         kx, ky = self.levels[lev]
-        KX, KY = kx[:, ni], ky[:, ni]  # the four corners, one row each
+        # The four corners, one row each (np.take: a faster gather than indexing here).
+        KX, KY = np.take(kx, ni, axis=1), np.take(ky, ni, axis=1)
         X = x + KX * c + KY * s
         Y = -KX * s + KY * c
-        xl = X.min(axis=0)
-        xr = X.max(axis=0)
-        lines, wide = env.lines(xl, xr)
-        per_line: list[np.ndarray] = []
-        for centre, yc, mc, pad in lines:
-            v = (Y - (yc + mc * (X - centre))).min(axis=0)
-            per_line.append(v - pad if lower else pad - v)
-        res = per_line[0]  # env.lines gives two bins' lines per box
-        for v in per_line[1:]:
-            res = np.minimum(res, v) if lower else np.maximum(res, v)
-        ylo = Y.min(axis=0)
+        centre, yc, mc, pad, wide = env.lines(_min4(X), _max4(X))
+        # The gap below each bin's line at each corner, least over the corners: for many
+        # boxes one line at a time (numpy broadcasts one leading axis far faster than two),
+        # for a few both at once (fewer calls). The same values either way.
+        if len(ni) >= 256:
+            v0 = _min4(_below_line(X, Y, centre[0], yc[0], mc[0]))
+            v1 = _min4(_below_line(X, Y, centre[1], yc[1], mc[1]))
+        else:
+            v0, v1 = _min4(_below_line(X[:, None], Y[:, None], centre, yc, mc))
+        ylo = _min4(Y)
         if lower:
-            return np.where(wide, ylo - env.global_max, res)
-        return np.where(wide, env.global_max - ylo, res)
+            return np.where(wide, ylo - env.global_max, np.minimum(v0 - pad[0], v1 - pad[1]))
+        return np.where(wide, env.global_max - ylo, np.maximum(pad[0] - v0, pad[1] - v1))
 
     def candidates(self, x: np.ndarray, c: np.ndarray, s: np.ndarray, env: _LineEnvelope,
                    thr: float | np.ndarray, lower: bool = True, probe=None) -> tuple[np.ndarray, np.ndarray]:
@@ -472,6 +509,8 @@ class _BoxTree:
         """
         top = len(self.levels) - 1
         runs = self.levels[top][0].shape[1]
+        if len(x) == 1 and probe is None and np.ndim(thr) == 0:
+            return self._candidates_one(float(x[0]), c[0], s[0], env, float(thr), lower)
         pi = np.repeat(np.arange(len(x)), runs)
         ni = np.tile(np.arange(runs), len(x))
         thr_pose = np.array(np.broadcast_to(np.asarray(thr, dtype=float), np.shape(x)))
@@ -493,10 +532,28 @@ class _BoxTree:
                 break
             # Children, in order: 2j, 2j + 1 (the last run may have one child only).
             pi = np.repeat(pi, 2)
-            ni = (2 * ni[:, None] + np.array([0, 1])).ravel()
+            ni = (2 * ni[:, None] + _CHILDREN).ravel()
             ok = ni < self.levels[lev - 1][0].shape[1]
             pi, ni = pi[ok], ni[ok]
         return pi, ni
+
+    def _candidates_one(self, x: float, c: float, s: float, env: _LineEnvelope, thr: float,
+                        lower: bool) -> tuple[np.ndarray, np.ndarray]:
+        """:meth:`candidates` of one pose without probes.
+
+        The same bounds, tested in the same order, with the pose's figures as scalars (no
+        per-pair copies of them).
+        """
+        top = len(self.levels) - 1
+        ni = np.arange(self.levels[top][0].shape[1])
+        for lev in range(top, -1, -1):
+            bd = self.bounds(lev, ni, x, c, s, env, lower)
+            ni = ni[bd < thr] if lower else ni[bd >= thr]
+            if lev == 0 or not ni.size:
+                break
+            ni = (2 * ni[:, None] + _CHILDREN).ravel()
+            ni = ni[ni < self.levels[lev - 1][0].shape[1]]
+        return np.zeros(ni.size, dtype=np.int64), ni
 
 
 # ---------------------------------------------------------------------------- rims

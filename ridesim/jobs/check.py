@@ -37,7 +37,6 @@ from ridesim.assess.analytic import (
 )
 from ridesim.assess.clearance import ClearanceResult, CuspSeat, clearance, cusp_seating
 from ridesim.assess.findings import Finding
-from ridesim.assess.phasing import cart_phasing
 from ridesim.assess.wording import describe
 from ridesim.errors import InputError
 from ridesim.safety import SAFETY_CAUTIONS, caution_lines, with_safety
@@ -386,6 +385,8 @@ def check_scenario(sc: Scenario) -> CheckResult | HubCheckResult:
     veh = sc.vehicle
     cart = None
     if veh.axles > 1:
+        from ridesim.assess.phasing import cart_phasing  # several axles only
+
         cart = cart_phasing(pair, veh, speed_m_s=v, phase_offsets_rad=veh.phase_offsets_rad)
         found += list(cart.findings)
     shaft = None

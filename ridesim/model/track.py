@@ -45,6 +45,7 @@ class Track:
         *,
         f: Callable[[np.ndarray], np.ndarray] | None = None,
         df: Callable[[np.ndarray], np.ndarray] | None = None,
+        f_df: Callable[[np.ndarray], tuple[np.ndarray, np.ndarray]] | None = None,
         nodes: np.ndarray | None = None,
         kinks: Sequence[float] = (),
         offset: float = 0.0,
@@ -69,6 +70,7 @@ class Track:
             raise InputError("a track needs a profile function or line nodes")
         self._f: Callable[[np.ndarray], np.ndarray] | None = f
         self._df = df
+        self._f_df = f_df if f is not None and df is not None else None
         ks = sorted({(float(k) - self._x0) % self._period + self._x0 for k in kinks})
         self._kinks = tuple(ks)
 
@@ -359,6 +361,26 @@ class Track:
             f = self._profile()
             return (f(x + h) - f(x - h)) / (2 * h)
         return self._df(x)
+
+    def y_and_slope(self, x: np.ndarray | float) -> tuple[np.ndarray, np.ndarray]:
+        """:meth:`y` and :meth:`slope` at ``x`` [m]: the same values, in one pass.
+
+        One pass where the profile provides both at once (a solved track's table finds
+        the wheel angle once); otherwise the two calls.
+
+        Parameters
+        ----------
+        x : array_like
+            Positions [m].
+
+        Returns
+        -------
+        y, slope : ndarray
+        """
+        if self._f_df is None or self._nodes is not None:
+            return self.y(x), self.slope(x)
+        f, df = self._f_df(np.asarray(x, dtype=float))
+        return f - self._offset, df
 
     def shape_range(self) -> tuple[float, float]:
         """Lowest and highest values [m] of the shape ``f`` over a period."""

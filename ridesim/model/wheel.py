@@ -558,12 +558,15 @@ class Wheel:
 
     @classmethod
     def _conic(cls, kind: str, a: float, b: float, ax: np.ndarray) -> Wheel:
-        from fractions import Fraction
-
         # (ax/a)^2 + (ay/b)^2 - 1 in exact arithmetic, rounded once: it cancels badly when
-        # the axle is near the rim, and the least radius is proportional to it.
-        fx, fy, fa, fb = (Fraction(float(q)) for q in (ax[0], ax[1], a, b))
-        c0 = float((fx / fa) ** 2 + (fy / fb) ** 2 - 1)
+        # the axle is near the rim, and the least radius is proportional to it. Each float is
+        # an exact ratio of integers, so the sum is num/den exactly, and Python's division
+        # of integers rounds that once, correctly (as fractions.Fraction would, unimported).
+        (px, qx), (py, qy), (pa, qa), (pb, qb) = (
+            float(q).as_integer_ratio() for q in (ax[0], ax[1], a, b))
+        sx, tx = (px * qa) ** 2, (qx * pa) ** 2  # (ax/a)^2 = sx/tx
+        sy, ty = (py * qb) ** 2, (qy * pb) ** 2  # (ay/b)^2 = sy/ty
+        c0 = (sx * ty + sy * tx - tx * ty) / (tx * ty)
         if c0 >= -1e-12:
             raise GeometryError(
                 f"axle {tuple(float(q) for q in ax)} m is not strictly inside the {kind}"

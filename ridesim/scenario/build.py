@@ -18,7 +18,6 @@ import numpy as np
 from ridesim.errors import RidesimError, ScenarioError
 from ridesim.model.track import Track
 from ridesim.model.wheel import MassProperties, Wheel
-from ridesim.scenario.drawing import is_drawing, read_drawing, read_profile_drawing
 from ridesim.scenario.load import HubSpec, OutlineSpec, PathSpec, RatioSpec, Scenario, TrackSpec, WheelSpec
 from ridesim.solve.forward import track_for
 from ridesim.solve.hub import HubPair, gears_for_ratio, hub_for, wheel_for_hub
@@ -201,6 +200,13 @@ def wheel_from_spec(spec: WheelSpec) -> Wheel:
     return outline_from_spec(spec, "wheel", corner_radius=cr)
 
 
+def _is_drawing(path: str) -> bool:
+    """True for a drawing file (its reader module is imported only for outlines from files)."""
+    from ridesim.scenario.drawing import is_drawing
+
+    return is_drawing(path)
+
+
 def outline_from_spec(spec: OutlineSpec, section: str, *, corner_radius: float = 0.0) -> Wheel:
     """Build the outline of a ``[wheel]`` or a ``[hub]`` (the same shapes and keys).
 
@@ -239,7 +245,9 @@ def outline_from_spec(spec: OutlineSpec, section: str, *, corner_radius: float =
         except RidesimError as exc:  # its messages name the argument: harmonics, mean_radius
             raise type(exc)(f"{section}.{exc}") from None
     pts: np.ndarray | tuple[tuple[float, float], ...]
-    if spec.file is not None and is_drawing(spec.file):
+    if spec.file is not None and _is_drawing(spec.file):
+        from ridesim.scenario.drawing import read_drawing
+
         drawn = read_drawing(spec.file, f"{section}.file", layer=spec.layer, ident=spec.id,
                              units=spec.units)
         pts = drawn.points_m
@@ -293,7 +301,9 @@ def track_from_spec(spec: TrackSpec) -> Track:
     if s == "formula":
         return _wrap("track.formula", Track.profile, spec.formula, spec.period_m)
     pts: np.ndarray | tuple[tuple[float, float], ...]
-    if spec.file is not None and is_drawing(spec.file):
+    if spec.file is not None and _is_drawing(spec.file):
+        from ridesim.scenario.drawing import read_profile_drawing
+
         pts = read_profile_drawing(spec.file, "track.file", layer=spec.layer, ident=spec.id,
                                    units=spec.units)
     else:

@@ -10,6 +10,7 @@ adaptive Chebyshev tables of :mod:`ridesim.solve.table`.
 from __future__ import annotations
 
 import math
+from collections.abc import Callable
 
 import numpy as np
 
@@ -114,6 +115,8 @@ def track_for(wheel: Wheel, *, path: str = "line") -> RollingPair:
         k = 1
     round_wheel = wheel.is_round
     rmap: CatenaryMap | TableMap
+    # y and slope in one pass (a table's solve: the wheel angle found once), else None
+    y_slope_rev: Callable[[np.ndarray], tuple[np.ndarray, np.ndarray]] | None = None
     if wheel.is_polygon:
         rmap = CatenaryMap(wheel, theta0)
         rev = rmap.x_span
@@ -172,6 +175,11 @@ def track_for(wheel: Wheel, *, path: str = "line") -> RollingPair:
             def slope_rev(x: np.ndarray) -> np.ndarray:
                 return rmap.slope(np.mod(x, rev))
 
+            def y_and_slope_rev(x: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+                return rmap.y_and_slope(np.mod(x, rev))
+
+            y_slope_rev = y_and_slope_rev
+
         cusps = []
         for t in corner_t:
             xc = float(table.forward.G(np.array([t]))[0])
@@ -180,7 +188,7 @@ def track_for(wheel: Wheel, *, path: str = "line") -> RollingPair:
     cusps.sort(key=lambda c: c.x_m)
     period = rev / k
     kinks_x = _distinct_kinks([c.x_m % period for c in cusps], period)
-    track = Track("solved", period, f=y_rev, df=slope_rev, kinks=kinks_x,
+    track = Track("solved", period, f=y_rev, df=slope_rev, f_df=y_slope_rev, kinks=kinks_x,
                   params={"period_m": period, "revolution_length_m": rev},
                   extremes=(-rmax, -rmin))
     return RollingPair(wheel, track, rmap, depth=0.0, lobes=k, closed=True,

@@ -213,6 +213,12 @@ class TableMap:
         th = self.table.inverse.G(x)
         return -self.table.forward.dg(th) / self.table.forward.g(th)
 
+    def y_and_slope(self, x: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+        """:meth:`y` and :meth:`slope` at ``x`` [m], the wheel angle found once (the same values)."""
+        th = self.table.inverse.G(x)
+        g, dg = self.table.forward.g_and_dg(th)
+        return -g, -dg / g
+
 
 def _log1p_over(q: np.ndarray) -> np.ndarray:
     """``log1p(q)/q`` with the limit 1 at q = 0."""

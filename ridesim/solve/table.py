@@ -101,6 +101,35 @@ def _eval_sorted(edges: np.ndarray, coefs: tuple[np.ndarray, ...], flat: np.ndar
     return out
 
 
+def _eval_runs(edges: list[float], coefs: tuple[np.ndarray, ...], flat: np.ndarray,
+               idx: np.ndarray, cuts: np.ndarray) -> list[np.ndarray]:
+    """Evaluate at points whose cells ``idx`` come in runs (run starts ``cuts``).
+
+    ``t = (s - left) / half - 1`` and the Horner steps of :func:`_horner`, with each run's
+    cell values as scalars: the same floating-point operations per point.
+    """
+    n = flat.size
+    out = [np.empty(n) for _ in coefs]
+    starts = [0, *cuts.tolist()]
+    stops = [*starts[1:], n]
+    for a, b in zip(starts, stops, strict=True):
+        i = int(idx[a])
+        left = edges[i]
+        half = 0.5 * (edges[i + 1] - left)
+        t = flat[a:b] - left
+        t /= half
+        t -= 1.0
+        for coef, res in zip(coefs, out, strict=True):
+            c = coef[i].tolist()
+            acc = res[a:b]
+            np.multiply(t, c[-1], out=acc)
+            for k in range(len(c) - 2, 0, -1):
+                acc += c[k]
+                acc *= t
+            acc += c[0]
+    return out
+
+
 @dataclass(frozen=True, eq=False)
 class PolyTable:
     """A continuous piecewise polynomial ``G`` with its derivative ``g`` on sorted cells.
@@ -158,13 +187,31 @@ class PolyTable:
         return idx, t
 
     def _eval(self, coef: np.ndarray, s: np.ndarray) -> np.ndarray:
+        return self._eval_many((coef,), s)[0]
+
+    def _eval_many(self, coefs: tuple[np.ndarray, ...], s: np.ndarray) -> list[np.ndarray]:
+        """Several piecewise polynomials of the table's cells at ``s``, located once.
+
+        Each result is the same as a call of :meth:`_eval` with that table alone.
+        """
         s = np.asarray(s, dtype=float)
         flat = s.ravel()
         n = flat.size
-        if n >= 64 * (len(self.edges) - 1) and np.all(flat[1:] >= flat[:-1]):
-            return _eval_sorted(self.edges, (coef,), flat)[0].reshape(s.shape)
+        cells = len(self.edges) - 1
+        if n >= 64 * cells and np.all(flat[1:] >= flat[:-1]):
+            return [v.reshape(s.shape) for v in _eval_sorted(self.edges, coefs, flat)]
+        if n >= 64 * cells:
+            # Large and nearly in order (a period's samples whose last one wrapped round, say):
+            # located as below, then evaluated run by run of points in one cell, with that
+            # cell's coefficients as scalars. Per point these are the operations of
+            # _locate and _horner in the same order, so the results are identical.
+            idx = np.searchsorted(self.edges, flat, side="right") - 1
+            np.clip(idx, 0, cells - 1, out=idx)
+            cuts = np.flatnonzero(idx[1:] != idx[:-1]) + 1
+            if cuts.size < 4 * cells:
+                return [v.reshape(s.shape) for v in _eval_runs(self._edge_list, coefs, flat, idx, cuts)]
         idx, t = self._locate(flat)
-        return _horner(coef, idx, t).reshape(s.shape)
+        return [_horner(coef, idx, t).reshape(s.shape) for coef in coefs]
 
     def G_and_g(self, s: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
         """``G`` and ``g`` at ascending ``s`` in one pass over the cells (dense outputs).
@@ -193,6 +240,11 @@ class PolyTable:
     def dg(self, s: np.ndarray) -> np.ndarray:
         """Derivative of the integrand at ``s`` from the table."""
         return self._eval(self._dg_coef, s)
+
+    def g_and_dg(self, s: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+        """:meth:`g` and :meth:`dg` at ``s``, the points located once (the same values)."""
+        g, dg = self._eval_many((self.g_coef, self._dg_coef), s)
+        return g, dg
 
 
 def _cells_for(
