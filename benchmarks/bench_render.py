@@ -68,6 +68,11 @@ def previous_fill(ax, x, y, **kw):
     return ax.fill(x, y, **kw)[0]
 
 
+def previous_place(fig):
+    """The previous layout: matplotlib's constrained layout (two measuring passes at the draw)."""
+    fig.set_layout_engine("constrained")
+
+
 def one_by_one() -> bool:
     """Never fork: ``draw_all`` then draws each picture in the calling process."""
     return False
@@ -81,13 +86,14 @@ def every_core() -> int:
 class Path_:
     """Switch ``ridesim.render.plots`` and ``ridesim.jobs.render`` between the code paths."""
 
-    concurrent = (plots._save, plots._fill, render_job._can_fork, every_core)
-    serial = (plots._save, plots._fill, one_by_one, render_job.idle_cores)
-    previous = (previous_save, previous_fill, one_by_one, render_job.idle_cores)
+    concurrent = (plots._save, plots._fill, plots._place, render_job._can_fork, every_core)
+    serial = (plots._save, plots._fill, plots._place, one_by_one, render_job.idle_cores)
+    previous = (previous_save, previous_fill, previous_place, one_by_one, render_job.idle_cores)
 
     @staticmethod
     def use(which):
-        plots._save, plots._fill, render_job._can_fork, render_job.idle_cores = which
+        (plots._save, plots._fill, plots._place, render_job._can_fork,
+         render_job.idle_cores) = which
 
 
 def cpu_s() -> float:
