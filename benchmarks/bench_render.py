@@ -1,21 +1,24 @@
 """``render`` and ``report`` speed: the current pictures against the earlier code paths, one run.
 
-Three paths are timed. *one by one* is the code before the pictures were drawn side by
-side: the same drawing, each still picture after the other in the calling process.
-*concurrent* draws the still pictures in forked processes, one per core, the clip
-meanwhile in the caller (what ``render``/``report`` do on cores the load average says are
-idle; on a busy machine they draw one by one).
-*previous* is the path before that, kept here as a copy of the two functions it differed in:
-``_save`` wrote every PNG with ``Figure.savefig`` (matplotlib's RGBA PNG at
-Pillow's default zlib level 6) and the geometry plots filled polygons with
-``Axes.fill`` (which walks each polygon segment by segment in Python to update
-the data limits); it also draws one by one. Everything else (figures, layout,
-the clip, the simulation of the report) is shared, so the ratios isolate what
-changed. The paths are timed in alternated repeats (previous, one by one,
-concurrent, previous, ...) so that load on a shared machine hits all alike; each
-figure is the median, in CPU seconds (this process and its drawing processes)
-and in wall seconds. The PNGs of every path are compared byte by byte and pixel
-by pixel with the concurrent path's.
+Three paths are timed. *one by one* is today's drawing done in the calling process, each
+still picture after the other, the report's check, motor sizing and simulation before them.
+*concurrent* is what ``render``/``report`` do on a machine with idle cores: the still
+pictures are drawn by forked processes (one core fewer than the cores used) and by this
+process once its own work is done; the report's check, motor sizing and simulation run
+while the pictures that need no simulation are drawn, then the clip (on a busy machine
+they draw one by one).
+*previous* is the path before both, kept here as a copy of the functions it differed in:
+``_save`` wrote every PNG with ``Figure.savefig`` (matplotlib's RGBA PNG at Pillow's
+default zlib level 6), the geometry plots filled polygons with ``Axes.fill`` (which
+walks each polygon segment by segment in Python to update the data limits), and the plots
+were placed by matplotlib's constrained layout (which measures every text twice before
+the draw; ``_place`` measures once); it also draws one by one. Everything else (figures,
+the clip, the simulation of the report) is shared, so the ratios isolate what changed.
+The paths are timed in alternated repeats (previous, one by one, concurrent, previous,
+...) so that load on a shared machine hits all alike; each figure is the median, in CPU
+seconds (this process and its drawing processes) and in wall seconds. Imports are warmed
+before timing. The PNGs of every path are compared byte by byte and pixel by pixel with
+the concurrent path's (the previous path's differ a little in layout).
 
 Usage: python3 benchmarks/bench_render.py [--repeat N] [--scenario FILE]
 """
