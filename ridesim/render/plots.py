@@ -55,10 +55,13 @@ def _png_bytes(fig) -> bytes:
 
     fig.canvas.draw()
     rgba = np.asarray(fig.canvas.buffer_rgba())
+    h, w = rgba.shape[:2]
     buf = io.BytesIO()
     # The figure's face is opaque white (style RC), so the alpha channel carries nothing:
-    # RGB is a quarter less to compress than matplotlib's RGBA PNG.
-    Image.fromarray(rgba[..., :3]).save(buf, format="png", compress_level=PNG_COMPRESS_LEVEL)
+    # RGB is a quarter less to compress than matplotlib's RGBA PNG. Pillow reads the Agg buffer
+    # in place and drops the alpha in C (a strided numpy slice cost 4-5 ms more a picture).
+    rgb = Image.frombuffer("RGBA", (w, h), rgba, "raw", "RGBA", 0, 1).convert("RGB")
+    rgb.save(buf, format="png", compress_level=PNG_COMPRESS_LEVEL)
     return buf.getvalue()
 
 
