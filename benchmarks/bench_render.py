@@ -16,7 +16,8 @@ the draw; ``_place`` measures once); it also draws one by one. Everything else (
 the clip, the simulation of the report) is shared, so the ratios isolate what changed.
 The paths are timed in alternated repeats (previous, one by one, concurrent, previous,
 ...) so that load on a shared machine hits all alike; each figure is the median, in CPU
-seconds (this process and its drawing processes) and in wall seconds. Imports are warmed
+seconds (this process and its drawing processes) and in wall seconds; the fastest repeat of
+each path (the least disturbed) is printed beside, for information. Imports are warmed
 before timing. The PNGs of every path are compared byte by byte and pixel by pixel with
 the concurrent path's (the previous path's differ a little in layout).
 
@@ -166,6 +167,12 @@ def main() -> int:
             ratios = "".join(f"{med[k][0] / cc:>8.2f}x / {med[k][1] / cw:.2f}x"
                              for k in ("previous", "one by one"))
             print(f"{label:<50}{row}{ratios}  (CPU / wall)")
+            # The fastest repeat of each path: the one least disturbed by other work on a
+            # shared machine (for information; the medians above are the figures).
+            best = {k: min(w for _, w in v) for k, v in t.items()}
+            print(f"{'':<50}fastest repeat, wall: " + ", ".join(f"{k} {w:.2f} s" for k, w in best.items())
+                  + f"; concurrent vs previous {best['previous'] / best['concurrent']:.2f}x,"
+                  f" vs one by one {best['one by one'] / best['concurrent']:.2f}x")
             for key in ("previous", "one by one"):
                 n, nbytes, npix = compare_pngs(tmp / short / f"{key}0", tmp / short / "concurrent0")
                 print(f"{'':<50}PNGs {key} vs concurrent: {n} compared, {nbytes} differ in bytes,"
