@@ -1,21 +1,25 @@
 """``render`` and ``report`` speed: the current pictures against the earlier code paths, one run.
 
-Three paths are timed. *one by one* is the code before the pictures were drawn side by
-side: the same drawing, each still picture after the other in the calling process.
-*concurrent* draws the still pictures in forked processes, one per core, the clip
-meanwhile in the caller (what ``render``/``report`` do on cores the load average says are
-idle; on a busy machine they draw one by one).
-*previous* is the path before that, kept here as a copy of the two functions it differed in:
-``_save`` wrote every PNG with ``Figure.savefig`` (matplotlib's RGBA PNG at
-Pillow's default zlib level 6) and the geometry plots filled polygons with
-``Axes.fill`` (which walks each polygon segment by segment in Python to update
-the data limits); it also draws one by one. Everything else (figures, layout,
-the clip, the simulation of the report) is shared, so the ratios isolate what
-changed. The paths are timed in alternated repeats (previous, one by one,
-concurrent, previous, ...) so that load on a shared machine hits all alike; each
-figure is the median, in CPU seconds (this process and its drawing processes)
-and in wall seconds. The PNGs of every path are compared byte by byte and pixel
-by pixel with the concurrent path's.
+Three paths are timed. *one by one* is today's drawing done in the calling process, each
+still picture after the other, the report's check, motor sizing and simulation before them.
+*concurrent* is what ``render``/``report`` do on a machine with idle cores: the still
+pictures are drawn by forked processes (one core fewer than the cores used) and by this
+process once its own work is done; the report's check, motor sizing and simulation run
+while the pictures that need no simulation are drawn, then the clip (on a busy machine
+they draw one by one).
+*previous* is the path before both, kept here as a copy of the functions it differed in:
+``_save`` wrote every PNG with ``Figure.savefig`` (matplotlib's RGBA PNG at Pillow's
+default zlib level 6), the geometry plots filled polygons with ``Axes.fill`` (which
+walks each polygon segment by segment in Python to update the data limits), and the plots
+were placed by matplotlib's constrained layout (which measures every text twice before
+the draw; ``_place`` measures once); it also draws one by one. Everything else (figures,
+the clip, the simulation of the report) is shared, so the ratios isolate what changed.
+The paths are timed in alternated repeats (previous, one by one, concurrent, previous,
+...) so that load on a shared machine hits all alike; each figure is the median, in CPU
+seconds (this process and its drawing processes) and in wall seconds; the fastest repeat of
+each path (the least disturbed) is printed beside, for information. Imports are warmed
+before timing. The PNGs of every path are compared byte by byte and pixel by pixel with
+the concurrent path's (the previous path's differ a little in layout).
 
 Usage: python3 benchmarks/bench_render.py [--repeat N] [--scenario FILE]
 """
@@ -68,6 +72,11 @@ def previous_fill(ax, x, y, **kw):
     return ax.fill(x, y, **kw)[0]
 
 
+def previous_place(fig):
+    """The previous layout: matplotlib's constrained layout (two measuring passes at the draw)."""
+    fig.set_layout_engine("constrained")
+
+
 def one_by_one() -> bool:
     """Never fork: ``draw_all`` then draws each picture in the calling process."""
     return False
@@ -81,13 +90,14 @@ def every_core() -> int:
 class Path_:
     """Switch ``ridesim.render.plots`` and ``ridesim.jobs.render`` between the code paths."""
 
-    concurrent = (plots._save, plots._fill, render_job._can_fork, every_core)
-    serial = (plots._save, plots._fill, one_by_one, render_job.idle_cores)
-    previous = (previous_save, previous_fill, one_by_one, render_job.idle_cores)
+    concurrent = (plots._save, plots._fill, plots._place, render_job._can_fork, every_core)
+    serial = (plots._save, plots._fill, plots._place, one_by_one, render_job.idle_cores)
+    previous = (previous_save, previous_fill, previous_place, one_by_one, render_job.idle_cores)
 
     @staticmethod
     def use(which):
-        plots._save, plots._fill, render_job._can_fork, render_job.idle_cores = which
+        (plots._save, plots._fill, plots._place, render_job._can_fork,
+         render_job.idle_cores) = which
 
 
 def cpu_s() -> float:
@@ -157,6 +167,12 @@ def main() -> int:
             ratios = "".join(f"{med[k][0] / cc:>8.2f}x / {med[k][1] / cw:.2f}x"
                              for k in ("previous", "one by one"))
             print(f"{label:<50}{row}{ratios}  (CPU / wall)")
+            # The fastest repeat of each path: the one least disturbed by other work on a
+            # shared machine (for information; the medians above are the figures).
+            best = {k: min(w for _, w in v) for k, v in t.items()}
+            print(f"{'':<50}fastest repeat, wall: " + ", ".join(f"{k} {w:.2f} s" for k, w in best.items())
+                  + f"; concurrent vs previous {best['previous'] / best['concurrent']:.2f}x,"
+                  f" vs one by one {best['one by one'] / best['concurrent']:.2f}x")
             for key in ("previous", "one by one"):
                 n, nbytes, npix = compare_pngs(tmp / short / f"{key}0", tmp / short / "concurrent0")
                 print(f"{'':<50}PNGs {key} vs concurrent: {n} compared, {nbytes} differ in bytes,"

@@ -22,8 +22,10 @@ from PIL import Image
 
 import ridesim as rs
 from ridesim.model.vehicle import axle_offsets_m
+from ridesim.render import plots
 from ridesim.render.clip import render_clip
 from ridesim.render.plots import (
+    plot_roll,
     plot_series,
     plot_spectrum,
     plot_track,
@@ -195,6 +197,38 @@ def test_series_and_spectrum_plots(tmp_path):
     png, _ = plot_spectrum(f, np.exp(-np.log(f / 4) ** 2), tmp_path / "g.png", kind="line",
                            size_px=(700, 400))
     assert_nontrivial(png, (700, 400))
+
+
+def test_placed_figures_keep_their_text_inside_and_apart(tmp_path, hexagon_pair, monkeypatch):
+    # Layout (common practice): every axes' text inside the picture, the figure legend clear of
+    # the axes and their titles, rows of axes clear of each other.
+    figs = []
+    save = plots._save
+    monkeypatch.setattr(plots, "_save", lambda fig, path, svg: (figs.append(fig), save(fig, path, svg))[1])
+    t = np.linspace(0.0, 2.0, 500)
+    plot_series(t, {f"simulated: a series with a long label {k}": (k + 1) * 1e-3 * np.sin(5 * t)
+                    for k in range(7)}, tmp_path / "s.png", "torque per wheel [N·m]",
+                "Seat-point acceleration (simulated)")
+    plot_roll(hexagon_pair, tmp_path / "r.png")
+    plot_spectrum(2.0 ** (np.arange(-3, 16) / 3), {"a": np.ones(19), "b": np.ones(19)}, tmp_path / "f.png")
+    plot_track(hexagon_pair, tmp_path / "t.png")
+    assert len(figs) == 4
+    for fig in figs:
+        r = fig.canvas.get_renderer()
+        W, H = fig.bbox.width, fig.bbox.height
+        frames = [ax.get_window_extent(r) for ax in fig.axes]
+        for ax in fig.axes:
+            tb = ax.get_tightbbox(r)
+            assert tb.x0 >= 0 and tb.y0 >= 0 and tb.x1 <= W and tb.y1 <= H, (fig.axes[0].get_title(), tb)
+        for leg in fig.legends:
+            lb = leg.get_window_extent(r)
+            assert lb.x0 >= 0 and lb.y0 >= 0 and lb.x1 <= W and lb.y1 <= H
+            for ax, frame in zip(fig.axes, frames, strict=True):
+                assert not lb.overlaps(frame)
+                if ax.get_title():
+                    assert not lb.overlaps(ax.title.get_window_extent(r))
+        rows = sorted({(round(f.y0), round(f.y1)) for f in frames})
+        assert all(a[1] < b[0] for a, b in zip(rows, rows[1:], strict=False))
 
 
 def test_plots_reject_bad_input(raises_one_line, tmp_path, hexagon_pair):

@@ -56,7 +56,8 @@ def test_draw_all_keeps_the_order_ready_items_and_warnings():
 
 
 def test_draw_all_raises_a_picture_error_and_draws_serially_beside_threads():
-    with pytest.raises(ValueError, match="no picture"):
+    with pytest.raises(ValueError, match="no picture"), warnings.catch_warnings():
+        warnings.simplefilter("ignore")  # the other picture may be drawn here, warning as it does
         draw_all([(_fails, (), {}), (_warns, (1,), {})], workers=2)
     out = []
     th = threading.Thread(target=lambda: out.extend(draw_all([(_warns, (1,), {})] * 2, workers=2)))
@@ -83,3 +84,32 @@ def test_idle_cores_follow_the_load_average_less_this_process(monkeypatch, load,
     from ridesim.jobs.render import idle_cores
 
     assert idle_cores() == expect
+
+
+def test_simulated_pictures_sent_after_the_fork_match_and_the_callers_work_runs_once(tmp_path,
+                                                                                     monkeypatch):
+    # The simulation's pictures are made after the drawing processes are forked (sent to them
+    # pickled); the caller's work (``alongside``) runs once, meanwhile, and its simulation is
+    # the one plotted: none is run again.
+    import ridesim.jobs.simulate as sim_job
+
+    sc = load_scenario(ROOT / "scenarios" / "hexagon_trolley.toml")
+    res = sim_job.simulate(sc)
+    calls = []
+
+    def alongside():
+        calls.append(1)
+        return res
+
+    def no_second_run(*_a, **_k):
+        raise AssertionError("the simulation was run again")
+
+    monkeypatch.setattr(sim_job, "simulate", no_second_run)
+    one = render_scenario(sc, tmp_path / "one", clip=False, simulate=True, workers=1, alongside=alongside)
+    two = render_scenario(sc, tmp_path / "two", clip=False, simulate=True, workers=2, alongside=alongside)
+    assert calls == [1, 1]
+    assert [c for _, c in one] == [c for _, c in two]
+    names = sorted(p.name for p in (tmp_path / "one").iterdir())
+    assert {"torque.png", "bounce.png", "seat.png"} <= set(names)
+    for name in names:
+        assert (tmp_path / "one" / name).read_bytes() == (tmp_path / "two" / name).read_bytes(), name

@@ -9,7 +9,9 @@ from __future__ import annotations
 import os
 import threading
 import warnings
+from collections.abc import Callable
 from pathlib import Path
+from typing import Any
 
 import numpy as np
 
@@ -21,7 +23,8 @@ __all__ = ["render_scenario"]
 def render_scenario(sc, out_dir: str | Path, *, svg: bool = False, simulate: bool = False,
                     clip: bool = True, clip_s: float = 4.0, fps: int = 25,
                     size: tuple[int, int] = (640, 360), follow: bool = True,
-                    progress=None, sim_result=None, workers: int | None = None) -> list[tuple[Path, str]]:
+                    progress=None, sim_result=None, workers: int | None = None,
+                    alongside: Callable[[], Any] | None = None) -> list[tuple[Path, str]]:
     """Write a scenario's pictures into ``out_dir`` with a captioned ``index.md``.
 
     Parameters
@@ -49,8 +52,14 @@ def render_scenario(sc, out_dir: str | Path, *, svg: bool = False, simulate: boo
     sim_result : SimResult, optional
         A simulation already run for this scenario (reused instead of running again).
     workers : int, optional
-        Processes drawing the still pictures side by side (default: one per idle core; 1
-        draws them one by one in this process). The pictures are the same bytes either way.
+        Cores drawing the still pictures side by side, this process's included (default: the
+        idle cores; 1 draws them one by one in this process). The pictures are the same bytes
+        either way.
+    alongside : callable, optional
+        The caller's own work (the report's check, motor sizing and simulation), called once,
+        with no argument, in this process while the pictures that need no simulation are
+        drawn. What it returns, unless None, is the simulation plotted with ``simulate=True``
+        (in place of ``sim_result``).
 
     Returns
     -------
@@ -69,13 +78,14 @@ def render_scenario(sc, out_dir: str | Path, *, svg: bool = False, simulate: boo
     if sc.path.is_hub:  # a wheel around a hub: its own plot and clip
         from ridesim.jobs.hub import render_hub
 
+        if alongside is not None:
+            alongside()
         return render_hub(sc, out, svg=svg, clip=clip, clip_s=clip_s, fps=fps, size=size,
                           progress=progress)
     pair = solve_track_scenario(sc)
     sc = resolve_wheelbase(sc, pair)
     mp = wheel_mass(sc, pair.wheel)
-    # The still pictures are gathered as calls and drawn together at the end (side by side
-    # on the machine's idle cores); the clip is drawn here meanwhile.
+    # The still pictures are gathered as calls, to be drawn side by side.
     items: list = list(solver_plot_calls(pair, out, mass=mp, svg=svg))
     steady = analyze_cycle(pair, vehicle=sc.vehicle, surface=sc.surface, wheel_mass=mp,
                            drive=sc.drive, accel_m_s2=0.0)
@@ -106,17 +116,27 @@ def render_scenario(sc, out_dir: str | Path, *, svg: bool = False, simulate: boo
         f"Torque per motor at a steady {v:.3g} m/s (analytic)", svg=svg,
         caption=f"Analytic torque per motor over one revolution at a steady {v:.3g} m/s (cruise):"
                 f" peak {steady.torque_peak_Nm:.4g} N·m, r.m.s. {steady.torque_rms_Nm:.4g} N·m."))
-    frames = None
-    if simulate:
-        items_sim, frames = _sim_plots(sc, steady, out, svg, sim_result, pair, mp)
-        items += items_sim
-    clip_call = None
-    if clip:
-        offsets = tuple(float(o) for o in axle_offsets_m(n_ax, sc.vehicle.wheelbase_m))
-        clip_call = _call(render_clip, pair, out / "clip.gif", frames_data=frames, duration_s=clip_s,
-                          fps=fps, size=size, follow=follow, speed_m_s=v,
-                          axle_offsets_m=offsets, progress=progress, title=sc.name)
-    items = draw_all(items, workers=workers, meanwhile=clip_call)
+    # The pictures so far are drawn side by side (on the idle cores) while this process goes
+    # on: the caller's own work, the simulation and its pictures, then the clip.
+    drawing = _Drawing(idle_cores() if workers is None else max(1, int(workers)))
+    try:
+        drawing.start(items)
+        got = alongside() if alongside is not None else None
+        frames = None
+        if simulate:
+            if got is not None:
+                sim_result = got
+            items_sim, frames = _sim_plots(sc, steady, out, svg, sim_result, pair, mp)
+            for item in items_sim:
+                drawing.add(item)
+        if clip:
+            offsets = tuple(float(o) for o in axle_offsets_m(n_ax, sc.vehicle.wheelbase_m))
+            drawing.add(render_clip(pair, out / "clip.gif", frames_data=frames, duration_s=clip_s,
+                                    fps=fps, size=size, follow=follow, speed_m_s=v,
+                                    axle_offsets_m=offsets, progress=progress, title=sc.name))
+        items = drawing.finish()
+    finally:
+        drawing.close()
     write_index(out, items, title=f"ridesim pictures: {sc.name}")
     return items
 
@@ -173,6 +193,100 @@ def idle_cores() -> int:
     return max(1, min(cores, int(cores - max(0.0, load - own) + 0.5)))
 
 
+def _draw_sent(fn, args: tuple, kw: dict) -> tuple:
+    """Draw a call sent to a drawing process (pickled; made after the fork); its item and warnings."""
+    with warnings.catch_warnings(record=True) as caught:
+        item = fn(*args, **kw)
+    return item, [(str(w.message), w.category, w.filename, w.lineno) for w in caught]
+
+
+class _Drawing:
+    """Pictures drawn side by side while this process goes on with its own work.
+
+    The first calls given to :meth:`start` are inherited by the drawing processes at their
+    fork (only an index is sent); calls added later with :meth:`add` are sent pickled (they
+    hold arrays and words only). This process draws what no drawing process has begun once its
+    own work is done (:meth:`finish`), so ``cores`` cores need ``cores - 1`` drawing processes.
+    With fewer than two cores, or where a fork is not safe, every picture is drawn here.
+    """
+
+    def __init__(self, cores: int):
+        self.cores = cores
+        self.pool: Any = None
+        self.items: list = []
+        self.futures: dict = {}
+        self.gc_frozen = False
+
+    def start(self, calls: list) -> None:
+        """Take the first calls (``(fn, args, kw)`` or a ready item each) and start drawing them."""
+        self.items = list(calls)
+        todo = [i for i, c in enumerate(calls) if _undone(c)]
+        n = min(len(todo), self.cores - 1)
+        if n < 1 or not _can_fork():
+            return
+        import gc
+        import multiprocessing as mp
+        from concurrent.futures import ProcessPoolExecutor
+
+        # Import the drawing machinery once here, before the fork, rather than once per process.
+        import matplotlib.backends.backend_agg  # noqa: F401
+        import matplotlib.figure  # noqa: F401
+        import matplotlib.patches  # noqa: F401
+        import matplotlib.ticker  # noqa: F401
+        import PIL.PngImagePlugin  # noqa: F401
+
+        global _CALLS
+        _CALLS = list(calls)
+        # Objects that exist at the fork are left out of the children's garbage collection, so
+        # that it does not touch (and so copy) every page of this process in each of them.
+        gc.freeze()
+        self.gc_frozen = True
+        self.pool = ProcessPoolExecutor(max_workers=n, mp_context=mp.get_context("fork"))
+        self.futures = {i: self.pool.submit(_draw_one, i) for i in todo}
+
+    def add(self, call) -> None:
+        """One more picture call (or ready item), drawn after those already given."""
+        self.items.append(call)
+        if self.pool is not None and _undone(call):
+            self.futures[len(self.items) - 1] = self.pool.submit(_draw_sent, *call)
+
+    def finish(self) -> list:
+        """Draw here what no drawing process has begun, collect the rest; the items in order."""
+        try:
+            for i in reversed(range(len(self.items))):  # the drawing processes take from the front
+                call, fut = self.items[i], self.futures.get(i)
+                if fut is None or fut.cancel():  # not sent, or not begun: drawn here
+                    if _undone(call):
+                        self.items[i] = call[0](*call[1], **call[2])
+            for i, fut in self.futures.items():
+                if fut.cancelled():
+                    continue
+                self.items[i], caught = fut.result()
+                for message, category, filename, lineno in caught:
+                    warnings.warn_explicit(message, category, filename, lineno)
+            return self.items
+        finally:
+            self.close()
+
+    def close(self) -> None:
+        """Stop the drawing processes (cancelling what they have not begun)."""
+        global _CALLS
+        if self.pool is not None:
+            self.pool.shutdown(wait=True, cancel_futures=True)
+            self.pool = None
+        if self.gc_frozen:
+            import gc
+
+            gc.unfreeze()
+            self.gc_frozen = False
+        _CALLS = []
+
+
+def _undone(call) -> bool:
+    """Whether ``call`` is a picture call ``(fn, args, kw)`` rather than a ready item."""
+    return len(call) == 3 and callable(call[0])
+
+
 def draw_all(calls: list, *, workers: int | None = None, meanwhile: tuple | None = None) -> list:
     """Run picture calls, side by side in forked processes where that is possible and pays.
 
@@ -186,8 +300,8 @@ def draw_all(calls: list, *, workers: int | None = None, meanwhile: tuple | None
         ``(fn, args, kw)`` per picture, each returning its ``(path, caption)`` item, or a
         ready item (a ``(path, caption)`` pair) kept as it is.
     workers : int, optional
-        Drawing processes (default: the idle cores, :func:`idle_cores`); 1 draws in this
-        process.
+        Cores to draw on, this process's included (default: the idle cores,
+        :func:`idle_cores`); 1 draws everything in this process.
     meanwhile : (fn, args, kw), optional
         A call run in this process while the others draw (the clip, which reports
         progress); its item is appended last.
@@ -197,47 +311,14 @@ def draw_all(calls: list, *, workers: int | None = None, meanwhile: tuple | None
     list of (Path, str)
         The items, in the order of ``calls`` (then ``meanwhile``'s).
     """
-    todo = [i for i, c in enumerate(calls) if len(c) == 3 and callable(c[0])]
-    n = min(len(todo), idle_cores() if workers is None else max(1, int(workers)))
-    items = list(calls)
-    if n < 2 or not _can_fork():
-        for i in todo:
-            fn, args, kw = calls[i]
-            items[i] = fn(*args, **kw)
-        if meanwhile is not None:
-            items.append(meanwhile[0](*meanwhile[1], **meanwhile[2]))
-        return items
-    import gc
-    import multiprocessing as mp
-    from concurrent.futures import ProcessPoolExecutor
-
-    # Import the drawing machinery once here, before the fork, rather than once per process.
-    import matplotlib.backends.backend_agg  # noqa: F401
-    import matplotlib.figure  # noqa: F401
-    import matplotlib.patches  # noqa: F401
-    import matplotlib.ticker  # noqa: F401
-    import PIL.PngImagePlugin  # noqa: F401
-
-    global _CALLS
-    _CALLS = list(calls)
-    # Objects that exist at the fork are left out of the children's garbage collection, so
-    # that it does not touch (and so copy) every page of this process in each of them.
-    gc.freeze()
+    drawing = _Drawing(idle_cores() if workers is None else max(1, int(workers)))
     try:
-        with ProcessPoolExecutor(max_workers=n, mp_context=mp.get_context("fork")) as pool:
-            futures = {i: pool.submit(_draw_one, i) for i in todo}
-            if meanwhile is not None:
-                last = meanwhile[0](*meanwhile[1], **meanwhile[2])
-            for i, fut in futures.items():
-                items[i], caught = fut.result()
-                for message, category, filename, lineno in caught:
-                    warnings.warn_explicit(message, category, filename, lineno)
+        drawing.start(calls)
+        last = meanwhile[0](*meanwhile[1], **meanwhile[2]) if meanwhile is not None else None
+        items = drawing.finish()
     finally:
-        gc.unfreeze()
-        _CALLS = []
-    if meanwhile is not None:
-        items.append(last)
-    return items
+        drawing.close()
+    return items + ([last] if meanwhile is not None else [])
 
 
 def _sim_plots(sc, steady, out: Path, svg: bool, res, pair, mp):

@@ -1,8 +1,8 @@
 """The report job: one self-contained HTML page of a scenario for a client and an engineer.
 
 Runs the check, the motor sizing and (unless told not to) the simulation, draws the
-pictures with :func:`ridesim.jobs.render.render_scenario`, and writes the page built by
-:func:`ridesim.render.report.report_page`.
+pictures with :func:`ridesim.jobs.render.render_scenario` (the first ones side by side with
+that work, on idle cores), and writes the page built by :func:`ridesim.render.report.report_page`.
 """
 
 from __future__ import annotations
@@ -44,17 +44,22 @@ def write_report(sc, out_dir: str | Path, *, simulate: bool = True, clip_s: floa
     out = Path(out_dir)
     if sc.path.is_hub:
         return _hub_report(sc, out, simulate=simulate, clip_s=clip_s, progress=progress)
-    check = check_scenario(sc)
-    figures = {"check": json_ready(check.to_dict()),
-               "size_motor": json_ready(size_motor(sc).to_dict())}
-    sim = None
-    if simulate:
+    figures: dict = {}
+
+    def figures_and_simulation():
+        # Run while the pictures that need no simulation are drawn (side by side, idle cores).
+        figures["check"] = json_ready(check_scenario(sc).to_dict())
+        figures["size_motor"] = json_ready(size_motor(sc).to_dict())
+        if not simulate:
+            return None
         from ridesim.jobs.simulate import simulate as run_sim
 
         sim = run_sim(sc)
         figures["simulate"] = json_ready(sim.to_dict())
+        return sim
+
     items = render_scenario(sc, out / "pictures", simulate=simulate, clip_s=clip_s,
-                            progress=progress, sim_result=sim)
+                            progress=progress, alongside=figures_and_simulation)
     page = write_text_atomic(out / "report.html", report_page(sc, figures, items))
     return page, figures
 
