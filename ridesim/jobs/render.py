@@ -99,10 +99,12 @@ def render_scenario(sc, out_dir: str | Path, *, svg: bool = False, simulate: boo
         plot_series, xs, {"required friction": np.asarray(fr.mu),
              "limit: surface friction": np.full(xs.shape, sc.surface.friction)},
         out / "friction.png", "friction coefficient [-]",
-        f"Friction the contact needs at {v:.3g} m/s against the surface's {sc.surface.friction:g}",
+        f"Friction the contact needs at a steady {v:.3g} m/s against the surface's"
+        f" {sc.surface.friction:g}",
         xlabel="axle position on the track [mm]", svg=svg,
-        caption=f"Friction demand over one revolution: peak {fr.peak:.3f} at x = {fr.at_x_m:.3f} m,"
-                f" surface {sc.surface.friction:g}."))
+        caption=f"Friction demand over one revolution at a steady {v:.3g} m/s (cruise): peak"
+                f" {fr.peak:.3f} at x = {fr.at_x_m:.3f} m, surface {sc.surface.friction:g}."
+                " `ridesim check` also gives the peak while the drive accelerates."))
     from ridesim.model.vehicle import motor_name
 
     tq = {}
