@@ -106,3 +106,38 @@ def test_ring_kerf_runs_into_the_cut_out(tmp_path):
     # The wheel's round axle hole: radius (hole - kerf)/2.
     _, wc = _cut(out / "drum_carousel_wheel.dxf")
     assert [c.dxf.radius for c in wc] == [pytest.approx(500 * (HOLE - KERF), rel=1e-12)]
+
+
+def test_hub_cut_list_json_sizes_the_parts(tmp_path):
+    """The drum carousel's hexagon wheel (apothem 0.25 m): across the flats 2a, across the
+    corners 2a / cos 30 deg, cut length the perimeter 12 a tan 30 deg plus the hole's pi d
+    (regular hexagon, elementary geometry; kerf 0); the ring is cut from a disc, so its size is
+    the disc's diameter. The centre distance is the solved pair's."""
+    import json
+
+    out = tmp_path / "out"
+    assert main(["export", str(SCENARIOS / "drum_carousel.toml"), "--out", str(out)]) == 0
+    cl = json.loads((out / "drum_carousel_cut_list.json").read_text())
+    a_mm, hole_mm = 250.0, 1000 * cl["axle_hole_m"]
+    wheel, ring = cl["parts"]
+    assert wheel["part"] == "wheel" and ring["part"] == "ring"
+    assert sorted(wheel["size_mm"]) == pytest.approx([2 * a_mm, 2 * a_mm / math.cos(math.pi / 6)],
+                                                     rel=1e-9)
+    # The hole is drawn in chords standing at most the chord tolerance t off the circle: each
+    # spans at most delta = 2 acos(1 - t/r), and a chord is shorter than its arc by at most
+    # delta^2/24 of it (Taylor series of sin), so the drawn hole's length lies in
+    # [pi d (1 - delta^2/24), pi d].
+    hexagon = 12 * a_mm * math.tan(math.pi / 6)
+    r, t = hole_mm / 2, 1000 * cl["chord_tolerance_m"]
+    delta = 2 * math.acos(1 - t / r)
+    hole_len = wheel["cut_length_mm"] - hexagon
+    assert math.pi * hole_mm * (1 - delta**2 / 24) - 1e-9 <= hole_len <= math.pi * hole_mm + 1e-9
+    assert ring["size_mm"][0] == ring["size_mm"][1]
+    assert cl["total_cut_length_m"] == pytest.approx(
+        (wheel["cut_length_mm"] + ring["cut_length_mm"]) / 1000, rel=1e-12)
+    solve = json.loads((out / "export.json").read_text())
+    assert "drum_carousel_cut_list.json" in solve["files"]
+    import ridesim as rs
+
+    pair = rs.hub_for(rs.Wheel.polygon(sides=6, apothem=0.25), ratio=7 / 6, side="inside")
+    assert cl["centre_distance_m"] == pytest.approx(pair.centre_distance, rel=1e-9)

@@ -875,7 +875,8 @@ def export_hub_drawings(pair, out_dir: str | Path, *, name: str, thickness_m: fl
     * ``NAME_hub.svg``, ``NAME_hub.csv`` (``.dxf``; ``NAME_ring...`` for a wheel inside a
       ring): the hub about its centre, with its centre hole; a ring is drawn as its rolling
       outline cut from a disc ``ring_rim_m`` wider than its greatest radius;
-    * ``NAME_cut_list.txt``: the centre distance to set them at, and what each file holds.
+    * ``NAME_cut_list.txt``: the centre distance to set them at, and what each file holds;
+      ``NAME_cut_list.json``: the same figures and each part's size and cut length.
 
     Parameters
     ----------
@@ -942,7 +943,7 @@ def export_hub_drawings(pair, out_dir: str | Path, *, name: str, thickness_m: fl
             raise InputError(f"hole_m = {hole:g} m does not fit in the {what} (least radius"
                              f" {rmin:g} m); give a smaller hole")
     common = [f"centre distance {pair.centre_distance * 1000:.3f} (hub centre to axle);"
-              f" {pair.ratio:.6g} wheel turns per {part} turn",
+              f" {pair.ratio:.6g} wheel turn(s) per {part} turn",
               "red: cut; blue: score or mark; black: text"]
     if thickness_m is not None:
         common.insert(1, f"plate thickness {thickness_m * 1000:.3f}")
@@ -1008,6 +1009,33 @@ def export_hub_drawings(pair, out_dir: str | Path, *, name: str, thickness_m: fl
         "",
     ]
     written.append(write_text_atomic(out / f"{stem}_cut_list.txt", "\n".join(notes)))
+    bore, _ = bore_mm(hole, flat_m, kerf, tol)
+    if ring:
+        r_out = outer + k_mm  # the disc's cut line, half the kerf outside it
+        hub_size, hub_len = [2 * r_out, 2 * r_out], _perimeter(hcut) + TWO_PI * r_out
+    else:
+        hub_size, hub_len = _bbox(hcut), _perimeter(hcut) + _perimeter(bore)
+    parts = [{"part": "wheel", "file": f"{stem}_wheel", "count": 1, "size_mm": _bbox(wcut),
+              "cut_length_mm": _perimeter(wcut) + _perimeter(bore)},
+             {"part": part, "file": f"{stem}_{part}", "count": 1, "size_mm": hub_size,
+              "cut_length_mm": hub_len}]
+    cut_list = {
+        "name": name,
+        "units": "mm",
+        "material_thickness_m": thickness_m,
+        "kerf_m": kerf,
+        "axle_hole_m": hole,
+        "axle_flat_m": flat_m,
+        "chord_tolerance_m": tol,
+        "centre_distance_m": float(pair.centre_distance),
+        "ratio": float(pair.ratio),
+        "side": pair.side,
+        "timing_deg": {"wheel": timing[0], part: timing[1]},
+        "parts": parts,
+        "sheet_area_m2": sum(p["size_mm"][0] * p["size_mm"][1] for p in parts) * 1e-6,
+        "total_cut_length_m": sum(p["cut_length_mm"] for p in parts) * 1e-3,
+    }
+    written.append(write_json_atomic(out / f"{stem}_cut_list.json", cut_list))
     return written
 
 
