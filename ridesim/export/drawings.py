@@ -1011,11 +1011,13 @@ def export_hub_drawings(pair, out_dir: str | Path, *, name: str, thickness_m: fl
     written.append(write_text_atomic(out / f"{stem}_cut_list.txt", "\n".join(notes)))
     bore, _ = bore_mm(hole, flat_m, kerf, tol)
     if ring:
+        assert outer is not None  # a ring has its disc
         r_out = outer + k_mm  # the disc's cut line, half the kerf outside it
         hub_size, hub_len = [2 * r_out, 2 * r_out], _perimeter(hcut) + TWO_PI * r_out
     else:
         hub_size, hub_len = _bbox(hcut), _perimeter(hcut) + _perimeter(bore)
-    parts = [{"part": "wheel", "file": f"{stem}_wheel", "count": 1, "size_mm": _bbox(wcut),
+    parts: list[dict[str, Any]] = [
+             {"part": "wheel", "file": f"{stem}_wheel", "count": 1, "size_mm": _bbox(wcut),
               "cut_length_mm": _perimeter(wcut) + _perimeter(bore)},
              {"part": part, "file": f"{stem}_{part}", "count": 1, "size_mm": hub_size,
               "cut_length_mm": hub_len}]
