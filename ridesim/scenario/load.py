@@ -1160,14 +1160,8 @@ def scenario_from_dict(
         description=description,
         wheel=wheel,
         track=track,
-        vehicle=_parse_vehicle(data.get("vehicle", {})),
-        drive=_parse_drive(data.get("drive", {})),
-        surface=_parse_surface(data.get("surface", {})),
-        run=_parse_run(data.get("run", {})),
-        duty=_parse_duty(data.get("duty", {})),
-        motor=_parse_motor(data.get("motor", {})),
         path=path,
-        export=_parse_export(data.get("export", {})),
+        **_shared_sections(data),
         source=source,
         base_dir=str(base),
     )
@@ -1222,14 +1216,8 @@ def _hub_given_scenario(data: Mapping[str, Any], given: str, base: Path, source:
         description=description,
         wheel=wheel,
         track=None,
-        vehicle=_parse_vehicle(data.get("vehicle", {})),
-        drive=_parse_drive(data.get("drive", {})),
-        surface=_parse_surface(data.get("surface", {})),
-        run=_parse_run(data.get("run", {})),
-        duty=_parse_duty(data.get("duty", {})),
-        motor=_parse_motor(data.get("motor", {})),
         path=path,
-        export=_parse_export(data.get("export", {})),
+        **_shared_sections(data),
         hub=hub,
         ratio=ratio,
         source=source,
@@ -1240,6 +1228,19 @@ def _hub_given_scenario(data: Mapping[str, Any], given: str, base: Path, source:
 # ----------------------------------------------------------------------------
 # Sections
 # ----------------------------------------------------------------------------
+
+
+def _shared_sections(data: Mapping[str, Any]) -> dict[str, Any]:
+    """The sections every scenario reads alike, whichever side of the pair it gives."""
+    return {
+        "vehicle": _parse_vehicle(data.get("vehicle", {})),
+        "drive": _parse_drive(data.get("drive", {})),
+        "surface": _parse_surface(data.get("surface", {})),
+        "run": _parse_run(data.get("run", {})),
+        "duty": _parse_duty(data.get("duty", {})),
+        "motor": _parse_motor(data.get("motor", {})),
+        "export": _parse_export(data.get("export", {})),
+    }
 
 
 def _parse_outline(t: _Table, base: Path) -> dict[str, Any]:
