@@ -6,17 +6,26 @@ Run from the project root: ``python3 media/regenerate.py``. Everything in
 
 from __future__ import annotations
 
+import os
 import shutil
+import sys
 import tempfile
 from pathlib import Path
 
-from ridesim.jobs.render import render_scenario
-from ridesim.model.vehicle import axle_offsets_m
-from ridesim.render.clip import render_clip
-from ridesim.scenario.build import solve_scenario
-from ridesim.scenario.load import load_scenario
-
 ROOT = Path(__file__).resolve().parent.parent
+sys.path.insert(0, str(ROOT / "tools"))
+# The simulated torque picture is drawn on numpy's AVX2 kernels, as the README's examples are
+# (tools/readme_examples.py says why): set before numpy is imported.
+from readme_examples import AVX2_KERNELS  # noqa: E402
+
+os.environ.setdefault("NPY_DISABLE_CPU_FEATURES", AVX2_KERNELS)
+
+from ridesim.jobs.render import render_scenario  # noqa: E402
+from ridesim.model.vehicle import axle_offsets_m  # noqa: E402
+from ridesim.render.clip import render_clip  # noqa: E402
+from ridesim.scenario.build import solve_scenario  # noqa: E402
+from ridesim.scenario.load import load_scenario  # noqa: E402
+
 MEDIA = ROOT / "media"
 
 
