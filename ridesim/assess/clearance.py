@@ -782,10 +782,15 @@ class _Checker:
         keep = ylow < thr + self.env.global_max
         pi, ei = pi[keep], ei[keep]
         Px, Py, Qx, Qy, ylow = Px[keep], Py[keep], Qx[keep], Qy[keep], ylow[keep]
+        return self._edge_gaps(len(x), theta, thr, pi, ei, Px, Py, Qx, Qy, ylow)
+
+    def _edge_gaps(self, n_pose, theta, thr, pi, ei, Px, Py, Qx, Qy, ylow):
+        """Least gap per pose over the edges ``(pi, ei)`` that pass the binned envelope."""
         keep = ylow - self.env.range_max(np.minimum(Px, Qx), np.maximum(Px, Qx)) < thr
         pi, ei = pi[keep], ei[keep]
-        gap, t = p.edge_min(Px[keep], Py[keep], Qx[keep], Qy[keep], theta[pi], self.delta, ei)
-        return _per_pose_min(len(x), pi, ei, gap, t)
+        gap, t = self._polygon.edge_min(Px[keep], Py[keep], Qx[keep], Qy[keep], theta[pi],
+                                        self.delta, ei)
+        return _per_pose_min(n_pose, pi, ei, gap, t)
 
     def _eval_smooth_pairs(self, x, theta, c, s, thr, pi, ki):
         P = self._rim.P
@@ -793,13 +798,19 @@ class _Checker:
         Xc = x[pi] + P[ki, 0] * cp + P[ki, 1] * sp
         Yc = -P[ki, 0] * sp + P[ki, 1] * cp
         keep = Yc < thr + self.env.global_max
-        pi, ki, Xc, Yc = pi[keep], ki[keep], Xc[keep], Yc[keep]
+        return self._rim_gaps(len(x), theta, thr, pi[keep], ki[keep], Xc[keep], Yc[keep])
+
+    def _rim_gaps(self, n_pose, theta, thr, pi, ki, Xc, Yc):
+        """Least gap per pose over the rim points ``(pi, ki)`` past the binned envelope.
+
+        The contact's own neighbourhood is left out.
+        """
         keep = Yc - self.env.point_max(Xc) < thr
         pi, ki, Xc, Yc = pi[keep], ki[keep], Xc[keep], Yc[keep]
         gap = Yc - np.asarray(self.track.y(Xc), dtype=float)
         near = np.abs(_wrap_pi(self._rim.phi[ki] - (theta[pi] - HALF_PI))) < self.delta
         gap = np.where(near, np.inf, gap)
-        return _per_pose_min(len(x), pi, ki, gap, np.zeros(gap.shape))
+        return _per_pose_min(n_pose, pi, ki, gap, np.zeros(gap.shape))
 
     def _eval_poly(self, x, theta, c, s, thr):
         p = self._polygon
@@ -811,24 +822,15 @@ class _Checker:
         # Coarse bound with the track's highest point, then the binned envelope.
         pi, ei = np.nonzero(ylow < thr + self.env.global_max)
         en = (ei + 1) % n
-        Px, Py, Qx, Qy = X[pi, ei], Y[pi, ei], X[pi, en], Y[pi, en]
-        keep = ylow[pi, ei] - self.env.range_max(np.minimum(Px, Qx), np.maximum(Px, Qx)) < thr
-        pi, ei = pi[keep], ei[keep]
-        gap, t = p.edge_min(Px[keep], Py[keep], Qx[keep], Qy[keep], theta[pi], self.delta, ei)
-        return _per_pose_min(len(x), pi, ei, gap, t)
+        return self._edge_gaps(len(x), theta, thr, pi, ei, X[pi, ei], Y[pi, ei], X[pi, en],
+                               Y[pi, en], ylow[pi, ei])
 
     def _eval_smooth(self, x, theta, c, s, thr):
         P = self._rim.P
         X = x[:, None] + P[:, 0] * c + P[:, 1] * s
         Y = -P[:, 0] * s + P[:, 1] * c
         pi, ki = np.nonzero(Y < thr + self.env.global_max)
-        Xc, Yc = X[pi, ki], Y[pi, ki]
-        keep = Yc - self.env.point_max(Xc) < thr
-        pi, ki, Xc, Yc = pi[keep], ki[keep], Xc[keep], Yc[keep]
-        gap = Yc - np.asarray(self.track.y(Xc), dtype=float)
-        near = np.abs(_wrap_pi(self._rim.phi[ki] - (theta[pi] - HALF_PI))) < self.delta
-        gap = np.where(near, np.inf, gap)
-        return _per_pose_min(len(x), pi, ki, gap, np.zeros(gap.shape))
+        return self._rim_gaps(len(x), theta, thr, pi, ki, X[pi, ki], Y[pi, ki])
 
     def pose_min(self, xq: float, thr: float = math.inf) -> tuple[float, int, float]:
         """Least gap [m] at one pose (all rim points), with the point index and edge fraction.
