@@ -25,7 +25,7 @@ from collections.abc import Callable, Iterator
 
 from ridesim.scenario.load import Scenario
 
-__all__ = ["JOBS", "run_job", "numeric_warnings", "check_figures"]
+__all__ = ["JOBS", "run_job", "numeric_warnings", "check_figures", "failure_text"]
 
 
 def _non_finite(data, path: str = "") -> tuple[str, float] | None:
@@ -154,6 +154,27 @@ JOBS: dict[str, Callable[..., dict]] = {
     "simulate": _simulate,
     "size-motor": _size_motor,
 }
+
+
+def failure_text(exc: BaseException) -> str:
+    """One line for a sweep case or design that failed.
+
+    The error's own words, or, for an exception no ridesim check raised,
+    ``internal error: TYPE: words``.
+
+    Parameters
+    ----------
+    exc : BaseException
+        What the case raised.
+
+    Returns
+    -------
+    str
+    """
+    from ridesim.errors import RidesimError
+
+    words = " ".join(str(exc).split())
+    return words if isinstance(exc, RidesimError) else f"internal error: {type(exc).__name__}: {words}"
 
 
 def run_job(name: str, sc: Scenario, progress=None) -> dict:

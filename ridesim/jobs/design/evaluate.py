@@ -21,7 +21,7 @@ from pathlib import Path
 from typing import Any, TextIO
 
 from ridesim._version import __version__
-from ridesim.errors import RidesimError, ScenarioError
+from ridesim.errors import ScenarioError
 from ridesim.jobs.design.brief import Brief, Requirement, figure_of
 
 __all__ = ["evaluate_design", "Evaluator", "JOURNAL", "LOG"]
@@ -54,7 +54,7 @@ def evaluate_design(payload: dict) -> dict:
         (``"wheel.harmonics[0][1]"``) also ``lists``: each such list key -> its whole value
         in this design.
     """
-    from ridesim.jobs import run_job
+    from ridesim.jobs import failure_text, run_job
     from ridesim.scenario.load import scenario_from_dict
 
     t0 = time.perf_counter()
@@ -81,10 +81,8 @@ def evaluate_design(payload: dict) -> dict:
                     r.path.split(".", 1)[0] == job and r.judge(row["figures"].get(r.path))[0]
                     is False for r in reqs):
                 break
-    except RidesimError as exc:
-        row["error"] = " ".join(str(exc).split())
     except Exception as exc:  # a failing design never stops the search
-        row["error"] = f"internal error: {type(exc).__name__}: {' '.join(str(exc).split())}"
+        row["error"] = failure_text(exc)
     row["elapsed_s"] = time.perf_counter() - t0
     return row
 

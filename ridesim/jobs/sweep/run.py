@@ -22,7 +22,7 @@ from dataclasses import dataclass
 from pathlib import Path
 from typing import Any
 
-from ridesim.errors import RidesimError, ScenarioError
+from ridesim.errors import ScenarioError
 from ridesim.export.results import flatten, write_bytes_atomic, write_text_atomic
 from ridesim.jobs.sweep.plan import SweepPlan
 from ridesim.validate import is_integer
@@ -80,7 +80,7 @@ def run_case(payload: dict) -> dict:
         ``case``, ``key``, ``metrics`` (flat dict) and ``error`` (None or one line), and
         ``elapsed_s`` (wall time, for the log only).
     """
-    from ridesim.jobs import run_job
+    from ridesim.jobs import failure_text, run_job
     from ridesim.scenario.load import scenario_from_dict
 
     t0 = time.perf_counter()
@@ -91,10 +91,8 @@ def run_case(payload: dict) -> dict:
                                 source=payload["source"])
         sc = sc.replace_many(payload["values"]) if payload["values"] else sc
         row["metrics"] = flatten(run_job(payload["run"], sc), lists="skip")
-    except RidesimError as exc:
-        row["error"] = " ".join(str(exc).split())
     except Exception as exc:  # a failing case never stops the sweep
-        row["error"] = f"internal error: {type(exc).__name__}: {' '.join(str(exc).split())}"
+        row["error"] = failure_text(exc)
     row["elapsed_s"] = time.perf_counter() - t0
     return row
 
