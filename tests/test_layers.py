@@ -17,7 +17,8 @@ ROOT = Path(__file__).resolve().parent.parent / "ridesim"
 LAYERS = [
     ("base", ["ridesim._version", "ridesim.errors", "ridesim.safety", "ridesim.roots", "ridesim.arrays",
               "ridesim.validate"]),
-    ("input records", ["ridesim.scenario.schema", "ridesim.scenario.load", "ridesim.scenario"]),
+    ("input records", ["ridesim.scenario.schema", "ridesim.scenario.load", "ridesim.scenario.toml_text",
+                       "ridesim.scenario"]),
     ("model", ["ridesim.model"]),
     ("solve", ["ridesim.solve"]),
     ("build", ["ridesim.scenario.build"]),

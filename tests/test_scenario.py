@@ -825,3 +825,25 @@ def test_wheelbase_in_periods_and_its_replacement():
     assert by_length.vehicle.wheelbase_m == 0.4 and by_length.vehicle.wheelbase_periods is None
     back = by_length.replace("vehicle.wheelbase_periods", 2)
     assert back.vehicle.wheelbase_periods == 2.0 and back.vehicle.wheelbase_m == 0.0
+
+
+def test_scenario_toml_writer_reads_back_through_tomllib():
+    """The one TOML writer, checked by Python's own TOML reader (tomllib, TOML 1.0)."""
+    import math
+    import tomllib
+
+    from ridesim.scenario.toml_text import toml_text, toml_value
+
+    odd = 'quote " backslash \\ tab \t newline \n ünïcode'
+    data = {"name": odd, "description": None,
+            "run": {"a": 1, "b": 0.1, "c": float("inf"), "d": -float("inf"), "e": True,
+                    "f": [[0.0, 1e-300], [2, 3]], "g": None}}
+    back = tomllib.loads(toml_text(data, ["a header"]))
+    assert back["name"] == odd and "description" not in back and "g" not in back["run"]
+    assert back["run"]["c"] == math.inf and back["run"]["d"] == -math.inf
+    assert back["run"]["f"] == [[0.0, 1e-300], [2, 3]] and back["run"]["b"] == 0.1
+    assert math.isnan(tomllib.loads(f"x = {toml_value(float('nan'))}")["x"])
+    with pytest.raises(TypeError):
+        toml_value({"a": 1})
+    sc = scenario_from_dict(HEX)
+    assert scenario_from_dict(tomllib.loads(toml_text(sc.to_dict()))) == sc

@@ -366,16 +366,6 @@ def _findings_section(figures: dict) -> str:
     return "".join(out)
 
 
-def _toml_value(v) -> str:
-    if isinstance(v, bool):
-        return "true" if v else "false"
-    if isinstance(v, str):
-        return '"' + v.replace("\\", "\\\\").replace('"', '\\"') + '"'
-    if isinstance(v, (list, tuple)):
-        return "[" + ", ".join(_toml_value(x) for x in v) + "]"
-    return repr(v)
-
-
 def _as_written(sc) -> bool:
     """True when the scenario is exactly what its file loads to (not changed since)."""
     src = getattr(sc, "source", None)
@@ -406,15 +396,9 @@ def scenario_toml(sc) -> str:
     """
     if _as_written(sc):
         return Path(sc.source).read_text(encoding="utf-8")
-    d = sc.to_dict()
-    lines = [f"{k} = {_toml_value(v)}" for k, v in d.items()
-             if not isinstance(v, dict) and v is not None and k != "name"]
-    for k, v in d.items():
-        if isinstance(v, dict):
-            lines += ["", f"[{k}]"]
-            lines += [f"{kk} = {_toml_value(vv)}" for kk, vv in v.items()
-                      if vv is not None and not isinstance(vv, dict)]
-    return "\n".join(lines) + "\n"
+    from ridesim.scenario.toml_text import toml_text
+
+    return toml_text(sc.to_dict())
 
 
 def _page_head(sc, verdict: str) -> list[str]:

@@ -13,6 +13,7 @@ from typing import Any
 
 from ridesim.errors import InputError
 from ridesim.scenario.schema import KEYS, REQUIRED, SECTIONS, TRACK_SHAPES, WHEEL_SHAPES
+from ridesim.scenario.toml_text import toml_value
 
 __all__ = ["scenario_template", "EXAMPLES"]
 
@@ -46,21 +47,11 @@ _ALTERNATIVES = {"wheel.circumradius_m", "wheel.side_m", "wheel.vertices_m", "wh
 _WHEEL_MATERIAL = ("thickness_m", "density_kg_m3", "mass_kg", "inertia_kg_m2")
 
 
-def _toml(value: Any) -> str:
-    if isinstance(value, bool):
-        return "true" if value else "false"
-    if isinstance(value, str):
-        return '"' + value.replace("\\", "\\\\").replace('"', '\\"') + '"'
-    if isinstance(value, (tuple, list)):
-        return "[" + ", ".join(_toml(v) for v in value) + "]"
-    return repr(value)
-
-
 def _comment(k) -> str:
     parts = [k.unit] if k.unit not in ("", "-") else []
     parts.append(k.doc)
     if k.default not in (None, REQUIRED):
-        parts.append(f"default {_toml(k.default)}")
+        parts.append(f"default {toml_value(k.default)}")
     bounds = ", ".join(f"{'>' if op == 'gt' else '>=' if op == 'ge' else '<' if op == 'lt' else '<='}"
                        f" {v:g}" for op, v in k.bounds.items())
     if bounds:
@@ -143,9 +134,9 @@ def scenario_template(name: str, wheel: str | None = None, track: str | None = N
             example = section == given or (hub_path and k.path == "path.kind") or (
                 given == "ratio" and k.path == "path.centre_distance_m")
             if k.path in EXAMPLES and k.path not in _ALTERNATIVES and example:
-                lines.append(f"{k.name} = {_toml(EXAMPLES[k.path])}")
+                lines.append(f"{k.name} = {toml_value(EXAMPLES[k.path])}")
             elif k.default not in (None, REQUIRED):
-                lines.append(f"# {k.name} = {_toml(k.default)}")
+                lines.append(f"# {k.name} = {toml_value(k.default)}")
             else:
                 lines.append(f"# {k.name} =")
     return "\n".join(lines) + "\n"

@@ -15,7 +15,6 @@ import csv
 import io
 import json
 import math
-import tomllib
 from dataclasses import dataclass, field
 from pathlib import Path
 from typing import Any
@@ -28,47 +27,11 @@ from ridesim.jobs.design.search import Judged, SearchOutcome, run_search
 __all__ = ["DesignResult", "run_design", "scenario_toml", "pareto_front", "figure_label"]
 
 
-def _toml_value(v: Any) -> str:
-    if isinstance(v, bool):
-        return "true" if v else "false"
-    if isinstance(v, int):
-        return str(v)
-    if isinstance(v, float):
-        return repr(v) if math.isfinite(v) else ("nan" if math.isnan(v) else
-                                                 ("inf" if v > 0 else "-inf"))
-    if isinstance(v, str):
-        return json.dumps(v, ensure_ascii=False)
-    if isinstance(v, (list, tuple)):
-        return "[" + ", ".join(_toml_value(x) for x in v) + "]"
-    raise TypeError(f"cannot write {v!r} as TOML")
-
-
 def scenario_toml(data: dict, header: list[str]) -> str:
-    """A scenario dict (``Scenario.to_dict``) as TOML text that reads back equal.
+    """A scenario dict as TOML that reads back equal (:func:`ridesim.scenario.toml_text.toml_text`)."""
+    from ridesim.scenario.toml_text import toml_text
 
-    Parameters
-    ----------
-    data : dict
-        ``name``, ``description`` and one table per section.
-    header : list of str
-        Comment lines written at the top.
-
-    Returns
-    -------
-    str
-        The TOML text.
-    """
-    lines = [f"# {h}" for h in header]
-    for k, v in data.items():
-        if not isinstance(v, dict):
-            lines.append(f"{k} = {_toml_value(v)}")
-    for k, v in data.items():
-        if isinstance(v, dict) and v:
-            lines += ["", f"[{k}]"] + [f"{n} = {_toml_value(x)}" for n, x in v.items()]
-    text = "\n".join(lines) + "\n"
-    if tomllib.loads(text) != json.loads(json.dumps(data)):  # pragma: no cover - a guard
-        raise ValueError("scenario TOML does not read back equal")
-    return text
+    return toml_text(data, header)
 
 
 def pareto_front(designs: list[Judged], sense: tuple[int, ...]) -> list[Judged]:
