@@ -279,3 +279,27 @@ def test_hub_ratio_plot_keeps_the_callers_backend(tmp_path):
     assert data[:8] == b"\x89PNG\r\n\x1a\n"  # PNG signature (ISO/IEC 15948, 5.2)
     assert struct.unpack(">II", data[16:24]) == (1100, 760)
     assert pair.ratio == 1.0 and "1/ratio" in caption
+
+
+def test_hub_clip_follows_the_clip_rules(tmp_path):
+    """The hub clip takes the line clip's checks and timing: a bad size is one clear error, and
+    frame delays, whole centiseconds (the GIF89a delay unit), add up to the clip's length."""
+    from PIL import Image
+
+    import ridesim as rs
+    from ridesim.errors import InputError
+    from ridesim.render.hub import render_hub_clip
+
+    pair = rs.hub_for(rs.Wheel.ellipse(semi_axes=(0.06, 0.05), axle=(0.033166247903554, 0.0)),
+                      ratio=1)
+    with pytest.raises(InputError, match=r"^size must be 64 to 4096 pixels each"):
+        render_hub_clip(pair, tmp_path / "bad.gif", size=(10, 10))
+    assert not (tmp_path / "bad.gif").exists()
+    path, _ = render_hub_clip(pair, tmp_path / "hub.gif", duration_s=1.5, fps=30, size=(200, 120))
+    with Image.open(path) as im:
+        delays = []
+        for i in range(im.n_frames):
+            im.seek(i)
+            delays.append(im.info["duration"])
+    assert len(delays) == 45 and sum(delays) == 1500
+    assert all(d % 10 == 0 for d in delays)

@@ -165,6 +165,76 @@ def _round_length(target_m: float) -> float:
     return p
 
 
+def clip_settings(size, duration_s, fps) -> tuple[int, int, float, float]:
+    """Checked frame size [px], length [s] and frame rate [1/s] of a clip (every clip's rules).
+
+    Raises
+    ------
+    InputError
+        One line naming the argument and its limits.
+    """
+    try:
+        W, H = (int(v) for v in size)
+    except (TypeError, ValueError):
+        raise InputError(f"size must be (width, height) in pixels, got {size!r}") from None
+    if not (64 <= W <= 4096 and 64 <= H <= 4096):
+        raise InputError(f"size must be 64 to 4096 pixels each, got {size!r}")
+    duration_s = _pos("duration_s", duration_s, 0.0, 600.0, " s")
+    fps = _pos("fps", fps, 0.0, 50.0, " (GIF viewers slow down frames shorter than 20 ms)")
+    return W, H, duration_s, fps
+
+
+def gif_durations(n: int, fps: float) -> list[int]:
+    """Frame durations [ms] in whole centiseconds (the GIF unit).
+
+    Rounded cumulatively, so that the total is the clip's length.
+    """
+    stamps = np.round(np.arange(n + 1) * 100.0 / fps) * 10
+    return [int(v) for v in np.diff(stamps)]
+
+
+def palette_frames(rgb: list) -> list:
+    """RGB frames mapped onto one adaptive palette made from a strip of sample frames."""
+    from PIL import Image
+
+    n = len(rgb)
+    W, H = rgb[0].size
+    picks = sorted({0, n // 3, (2 * n) // 3, n - 1})
+    strip = Image.new("RGB", (W, H * len(picks)))
+    for i, p in enumerate(picks):
+        strip.paste(rgb[p], (0, i * H))
+    pal = strip.quantize(colors=255, method=Image.Quantize.MEDIANCUT, dither=Image.Dither.NONE)
+    return [im.quantize(palette=pal, dither=Image.Dither.NONE) for im in rgb]
+
+
+def write_gif(path: str | Path, frames: list, durations: list[int]) -> Path:
+    """Write palette frames as a looping GIF, atomically."""
+    import io
+
+    buf = io.BytesIO()
+    frames[0].save(buf, format="GIF", save_all=True, append_images=frames[1:], duration=durations,
+                   loop=0, optimize=False)
+    return write_bytes_atomic(Path(path), buf.getvalue())
+
+
+def draw_scale_bar(d, H: int, view_m: float, px_per_m: float, *, ink, back, k: int = 1,
+                   font=None) -> None:
+    """A scale bar at a frame's bottom left: a round length near a fifth of the view's width.
+
+    ``view_m`` is the frame's width in metres, ``px_per_m`` its scale, ``ink`` and ``back``
+    the colours (palette indices or RGB), ``k`` the drawing's supersampling factor.
+    """
+    length = _round_length(0.2 * view_m)
+    x0, y = 10 * k, H - 10 * k
+    x1 = x0 + length * px_per_m
+    d.rectangle([x0 - 3 * k, y - 20 * k, x1 + 3 * k, y + 5 * k], fill=back)
+    d.line([x0, y, x1, y], fill=ink, width=2 * k)
+    for x in (x0, x1):
+        d.line([x, y - 4 * k, x, y + 3 * k], fill=ink, width=k)
+    text = f"{length * 1000:g} mm" if length < 1.0 else f"{length:g} m"
+    d.text((0.5 * (x0 + x1), y - 5 * k), text, fill=ink, font=font, anchor="mb")
+
+
 # ---------------------------------------------------------------------------- drawing
 class _Painter:
     """Draws frames of one clip; all geometry prepared once, per frame only transforms."""
@@ -346,29 +416,14 @@ class _Painter:
 
     def _scale_bar(self, d) -> None:
         """A scale bar at the bottom left: a round length near a fifth of the frame's width."""
-        k, s = self.k, self.s
-        length = _round_length(0.2 * self.W / s)
-        x0, y = 10 * k, self.H - 10 * k
-        x1 = x0 + length * s
-        d.rectangle([x0 - 3 * k, y - 20 * k, x1 + 3 * k, y + 5 * k], fill=_IDX["sky"])
-        d.line([x0, y, x1, y], fill=_IDX["ink"], width=2 * k)
-        for x in (x0, x1):
-            d.line([x, y - 4 * k, x, y + 3 * k], fill=_IDX["ink"], width=k)
-        text = f"{length * 1000:g} mm" if length < 1.0 else f"{length:g} m"
-        d.text((0.5 * (x0 + x1), y - 5 * k), text, fill=_IDX["ink"], font=self.small, anchor="mb")
+        draw_scale_bar(d, self.H, self.W / self.s, self.s, ink=_IDX["ink"], back=_IDX["sky"],
+                       k=self.k, font=self.small)
 
 
 def _render_frames(pair, *, frames_data, duration_s, fps, size, follow, speed_m_s, axle_offsets_m, x_start_m,
                    antialias, title, progress) -> tuple[list, list[int], _Motion]:
     """Palette frames, their durations [ms] and the motion drawn (arguments as :func:`render_clip`)."""
-    try:
-        W, H = (int(v) for v in size)
-    except (TypeError, ValueError):
-        raise InputError(f"size must be (width, height) in pixels, got {size!r}") from None
-    if not (64 <= W <= 4096 and 64 <= H <= 4096):
-        raise InputError(f"size must be 64 to 4096 pixels each, got {size!r}")
-    duration_s = _pos("duration_s", duration_s, 0.0, 600.0, " s")
-    fps = _pos("fps", fps, 0.0, 50.0, " (GIF viewers slow down frames shorter than 20 ms)")
+    W, H, duration_s, fps = clip_settings(size, duration_s, fps)
     off = _offsets(axle_offsets_m)
     if frames_data is None:
         speed_m_s = _pos("speed_m_s", speed_m_s, 0.0, 1e3, " m/s")
@@ -381,29 +436,19 @@ def _render_frames(pair, *, frames_data, duration_s, fps, size, follow, speed_m_
     n = len(motion.t)
     frames = []
     if antialias:
-        from PIL import Image
 
         rgb = []
         for f in range(n):
             rgb.append(painter.frame(f).convert("RGB").reduce(2))
             if progress is not None:
                 progress(0.9 * (f + 1) / n)
-        # One adaptive palette from a strip of sample frames, then every frame mapped onto it.
-        picks = sorted({0, n // 3, (2 * n) // 3, n - 1})
-        strip = Image.new("RGB", (W, H * len(picks)))
-        for i, p in enumerate(picks):
-            strip.paste(rgb[p], (0, i * H))
-        pal = strip.quantize(colors=255, method=Image.Quantize.MEDIANCUT, dither=Image.Dither.NONE)
-        frames = [im.quantize(palette=pal, dither=Image.Dither.NONE) for im in rgb]
+        frames = palette_frames(rgb)
     else:
         for f in range(n):
             frames.append(painter.frame(f))
             if progress is not None:
                 progress(0.9 * (f + 1) / n)
-    # Durations in whole centiseconds (the GIF unit), rounded cumulatively so the total is right.
-    stamps = np.round(np.arange(n + 1) * 100.0 / fps) * 10
-    durations = [int(v) for v in np.diff(stamps)]
-    return frames, durations, motion
+    return frames, gif_durations(n, fps), motion
 
 
 def render_clip(pair, path: str | Path, *, frames_data: Mapping | None = None, duration_s: float = 4.0,
@@ -457,16 +502,11 @@ def render_clip(pair, path: str | Path, *, frames_data: Mapping | None = None, d
     (Path, str)
         The GIF and a one-line caption.
     """
-    import io
-
     frames, durations, motion = _render_frames(
         pair, frames_data=frames_data, duration_s=duration_s, fps=fps, size=size, follow=follow,
         speed_m_s=speed_m_s, axle_offsets_m=axle_offsets_m, x_start_m=x_start_m, antialias=antialias,
         title=title, progress=progress)
-    buf = io.BytesIO()
-    frames[0].save(buf, format="GIF", save_all=True, append_images=frames[1:], duration=durations, loop=0,
-                   optimize=False)
-    out = write_bytes_atomic(Path(path), buf.getvalue())
+    out = write_gif(path, frames, durations)
     if progress is not None:
         progress(1.0)
     n = len(frames)

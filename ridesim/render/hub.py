@@ -7,14 +7,12 @@ for all frames (fast to write, see ENGINE-NOTES); the plot is matplotlib.
 
 from __future__ import annotations
 
-import io
 import math
 from pathlib import Path
 
 import numpy as np
 
-from ridesim.export.results import write_bytes_atomic
-from ridesim.render.clip import _round_length
+from ridesim.render.clip import clip_settings, draw_scale_bar, gif_durations, palette_frames, write_gif
 
 __all__ = ["render_hub_clip", "plot_hub_ratio"]
 
@@ -30,7 +28,7 @@ def _rim(body, n: int = 720) -> np.ndarray:
     return np.column_stack([r * np.cos(phi), r * np.sin(phi)])
 
 
-def render_hub_clip(pair, path: str | Path, *, duration_s: float = 4.0, fps: int = 25,
+def render_hub_clip(pair, path: str | Path, *, duration_s: float = 4.0, fps: float = 25,
                     size: tuple[int, int] = (640, 360), wheel_turns: float = 1.0,
                     progress=None) -> tuple[Path, str]:
     """Write a GIF of the wheel rolling around (or inside) the fixed hub.
@@ -43,7 +41,7 @@ def render_hub_clip(pair, path: str | Path, *, duration_s: float = 4.0, fps: int
         The GIF to write (atomically).
     duration_s : float
         Clip length [s].
-    fps : int
+    fps : float
         Frame rate [1/s].
     size : (int, int)
         Width and height [px].
@@ -59,7 +57,7 @@ def render_hub_clip(pair, path: str | Path, *, duration_s: float = 4.0, fps: int
     """
     from PIL import Image, ImageDraw
 
-    W, H = int(size[0]), int(size[1])
+    W, H, duration_s, fps = clip_settings(size, duration_s, fps)
     n = max(2, int(round(duration_s * fps)))
     hub = _rim(pair.hub)
     wheel = _rim(pair.wheel)
@@ -72,9 +70,6 @@ def render_hub_clip(pair, path: str | Path, *, duration_s: float = 4.0, fps: int
     def px(xy: np.ndarray) -> list[tuple[float, float]]:
         return [(cx + scale * x, cy - scale * y) for x, y in xy]
 
-    bar_m = _round_length(0.2 * W / scale)
-    bar_px = bar_m * scale
-    bar_text = f"{bar_m * 1000:g} mm" if bar_m < 1.0 else f"{bar_m:g} m"
     th0 = float(pair.wheel_angle(0.0))
     thetas = th0 + TWO_PI * wheel_turns * np.arange(n) / n
     arm, axle, spin = pair.poses(thetas)
@@ -96,19 +91,11 @@ def render_hub_clip(pair, path: str | Path, *, duration_s: float = 4.0, fps: int
         d.line(px(np.array([[0.0, 0.0], axle[i]])), fill=_ARM, width=3)
         d.ellipse([cx - 3, cy - 3, cx + 3, cy + 3], fill=_ARM)
         d.text((8, 6), f"t = {i / fps:.2f} s   wheel turn {thetas[i] - th0:.2f} rad", fill=_MARK)
-        d.line([10, H - 10, 10 + bar_px, H - 10], fill=_MARK, width=2)  # scale bar
-        for xb in (10, 10 + bar_px):
-            d.line([xb, H - 14, xb, H - 7], fill=_MARK, width=1)
-        d.text((10 + bar_px / 2, H - 14), bar_text, fill=_MARK, anchor="mb")
+        draw_scale_bar(d, H, W / scale, scale, ink=_MARK, back=_BG)
         frames.append(im)
         if progress is not None and i % 10 == 0:
             progress(i / n)
-    pal = frames[0].quantize(colors=64, dither=Image.Dither.NONE)
-    frames = [f.quantize(palette=pal, dither=Image.Dither.NONE) for f in frames]
-    buf = io.BytesIO()
-    frames[0].save(buf, format="GIF", save_all=True, append_images=frames[1:],
-                   duration=int(round(1000 / fps)), loop=0)
-    out = write_bytes_atomic(Path(path), buf.getvalue())
+    out = write_gif(path, palette_frames(frames), gif_durations(n, fps))
     where = "around the fixed hub" if pair.side == "outside" else "inside the fixed ring"
     caption = (f"{n} frames at {fps:g} fps: the wheel rolling {where} for {wheel_turns:g} turn(s),"
                f" its axle on an arm at {E:.4g} m from the centre (ideal kinematics).")
