@@ -146,10 +146,10 @@ def test_square_at_half_a_rad_s_keeps_its_phase_and_rms_torque_at_a_fine_step(sl
 
 
 def test_square_at_half_a_rad_s_marks_its_corner_torque_rough_and_check_gives_the_exact_one(slow_square):
-    """At 0.5 rad/s the simulated 10 ms torque peak is not the ride's: measured 2.1 times the
+    """At 0.5 rad/s the simulated 10 ms torque peak is not the ride's: measured 2.2 times the
     exact peak at the first corner, 3.2 times by the seventh (the phase creeps 7 microradians a
     corner), at any setting pymunk offers (0.1 ms steps 3.0, 100 iterations 2.6, a track built
-    to 0.02 micrometres 3.8; the contact slop changes nothing). The cause: at each corner the
+    to 0.1 micrometre 3.8, to 0.02 micrometre 3.7; the contact slop changes nothing). The cause: at each corner the
     contact jumps about 1.4 mm ahead of the axle as the arc ahead closes a 7 micrometre gap
     (shaft torque = load times that shift). The run must say so where the torque is printed,
     and the command it sends the builder to must give the exact torque."""
