@@ -149,10 +149,11 @@ def test_square_at_half_a_rad_s_marks_its_corner_torque_rough_and_check_gives_th
     """At 0.5 rad/s the simulated 10 ms torque peak is not the ride's: measured 2.2 times the
     exact peak at the first corner, 3.2 times by the seventh (the phase creeps 7 microradians a
     corner), at any setting pymunk offers (0.1 ms steps 3.0, 100 iterations 2.6, a track built
-    to 0.1 micrometre 3.8, to 0.02 micrometre 3.7; the contact slop changes nothing). The cause: at each corner the
-    contact jumps about 1.4 mm ahead of the axle as the arc ahead closes a 7 micrometre gap
-    (shaft torque = load times that shift). The run must say so where the torque is printed,
-    and the command it sends the builder to must give the exact torque."""
+    to 0.1 micrometre 3.8, to 0.02 micrometre 3.7; the contact slop changes nothing). The
+    cause: at each corner the contact jumps about 1.4 mm ahead of the axle as the arc ahead
+    closes a 7 micrometre gap (shaft torque = load times that shift). The run must say so
+    where the torque is printed, and the command it sends the builder to must give the exact
+    torque."""
     res = slow_square
     d = res.to_dict()["torque"]
     # The wheel carries the whole body here (one axle): 1 mm of contact shift under the axle is

@@ -1252,8 +1252,8 @@ def _model_cautions(probes: Probes) -> list[str]:
                    f" {1e-2 * seat['phase_gain']:.2g} mm); each millimetre is"
                    f" {1e-3 * seat['torque_per_shift_Nm_m']:.2g} N m of shaft torque, so torque peaks"
                    " at the corners are no finer than that (on a square of apothem 0.15 m at 0.5 rad/s"
-                   " the 10 ms peak read 2 to 3 times the exact 0.13 N m). Take corner torques from the"
-                   " analytic model (ridesim check).")
+                   " the 10 ms peak read 2.2 to 3.2 times the exact 0.13 N m at 0.2 ms steps). Take"
+                   " corner torques from the analytic model (ridesim check).")
     if info.get("body_inertia_estimated") and not info.get("pitch_held"):
         out.append("Body inertia was estimated as a box spanning the wheels; give"
                    " vehicle.body_inertia_kg_m2 for pitch figures you rely on.")
