@@ -241,3 +241,17 @@ def test_hub_key_figures_are_the_check_and_size_motor_numbers(tmp_path):
                  format_figure("peak_power_W", sm["peak_power_W"]),
                  "none: both convex"):
         assert text in keys, text
+
+
+@pytest.mark.parametrize("name, label, shown", [
+    ("ring_drum_from_hub", "Ring (given; the wheel is solved for it)", "lobes 4"),
+    ("ratio_gear_pair", "Speed ratio (given; both pitch curves are solved for it)",
+     "formula 1 + 0.3*cos(2*theta)"),
+])
+def test_hub_page_names_the_given_side(tmp_path, name, label, shown):
+    """A pair solved from its hub or its speed ratio shows that given side in the build table."""
+    sc = load_scenario(ROOT / "scenarios" / f"{name}.toml")
+    page, _ = write_report(sc, tmp_path, simulate=False, clip_s=0.5)
+    text = " ".join(html.unescape(re.sub(r"<[^>]+>", " ", page.read_text())).split())
+    glance = text.split("The build at a glance", 1)[1].split("Pictures", 1)[0]
+    assert label in glance and shown in glance

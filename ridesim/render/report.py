@@ -541,6 +541,14 @@ def hub_report_page(sc, figures: dict, items) -> str:
             ["Path", f"axle on a circle {'inside a ring' if part == 'ring' else 'around a hub'},"
                      f" centre distance {e_txt}"],
             ["Surface", f"friction {format_value(sc.surface.friction)}"]]
+    # The given side, when it is not the wheel: the hub (or ring) outline, or the speed ratio.
+    for key, label in (("hub", part.capitalize() + " (given; the wheel is solved for it)"),
+                       ("ratio", "Speed ratio (given; both pitch curves are solved for it)")):
+        given = d.get(key)
+        if given:
+            rows.insert(1, [label, ", ".join(shown(k, v) if not isinstance(v, str)
+                                             else f"{k.replace('_', ' ')} {v}"
+                                             for k, v in given.items() if not isinstance(v, dict))])
     fr = c.get("friction") or {}
     if fr:
         sm = figures.get("size_motor") or {}
