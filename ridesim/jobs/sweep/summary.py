@@ -86,9 +86,8 @@ def plot_metric(rows: list[dict[str, str]], metric: str, params: list[str], path
     -------
     Path
     """
-    import io
-
     from ridesim.export.results import write_bytes_atomic
+    from ridesim.render.plots import figure_png
     from ridesim.render.report import axis_label
     from ridesim.render.style import COLOURS, SERIES_COLOURS, new_figure, style_context
 
@@ -139,9 +138,8 @@ def plot_metric(rows: list[dict[str, str]], metric: str, params: list[str], path
             ax.set_xlabel(x_label)
             ax.set_ylabel(y_label)
         ax.set_title(f"{m_label.split(' [')[0]} across the sweep ({len(ok)} cases)")
-        buf = io.BytesIO()
-        fig.savefig(buf, format="png")
-    return write_bytes_atomic(path, buf.getvalue())
+        png = figure_png(fig)
+    return write_bytes_atomic(path, png)
 
 
 def read_results(out_dir: str | Path):
