@@ -13,7 +13,7 @@ from ridesim.validate import is_number
 __all__ = ["positive", "point", "finite"]
 
 
-def positive(name: str, value: float) -> float:
+def positive(name: str, value: float, unit: str = " in metres") -> float:
     """Return ``value`` as a float after checking it is a finite number > 0.
 
     Parameters
@@ -22,13 +22,15 @@ def positive(name: str, value: float) -> float:
         Parameter name for the message.
     value : float
         The value (a length [m] or another positive quantity).
+    unit : str
+        How the message names the unit after "a number" (empty for a ratio).
 
     Returns
     -------
     float
     """
     if not is_number(value):
-        raise InputError(f"{name} must be a number in metres, got {value!r}")
+        raise InputError(f"{name} must be a number{unit}, got {value!r}")
     v = float(value)
     if not math.isfinite(v) or v <= 0:
         raise InputError(f"{name} must be > 0, got {value!r}")

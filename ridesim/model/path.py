@@ -11,12 +11,10 @@ Applied Theory*, 2nd ed., 2004; Litvin, Fuentes-Aznar, Gonzalez-Perez & Hayasaka
 
 from __future__ import annotations
 
-import math
 from dataclasses import dataclass
 
-import numpy as np
-
 from ridesim.errors import InputError
+from ridesim.model.checks import positive
 from ridesim.scenario.schema import HUB_SIDES, PATH_KINDS
 
 __all__ = ["AxlePath", "PATH_KINDS", "HUB_SIDES"]
@@ -28,12 +26,7 @@ __all__ = ["AxlePath", "PATH_KINDS", "HUB_SIDES"]
 def _opt_positive(name: str, value: float | None) -> float | None:
     if value is None:
         return None
-    if isinstance(value, bool) or not isinstance(value, (int, float, np.integer, np.floating)):
-        raise InputError(f"{name} must be a number, got {value!r}")
-    v = float(value)
-    if not math.isfinite(v) or v <= 0:
-        raise InputError(f"{name} must be > 0, got {value!r}")
-    return v
+    return positive(name, value, unit="")
 
 
 @dataclass(frozen=True)

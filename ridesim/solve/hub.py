@@ -33,6 +33,7 @@ from collections.abc import Callable
 import numpy as np
 
 from ridesim.errors import ClosureError, GeometryError, InputError
+from ridesim.model.checks import positive
 from ridesim.model.path import HUB_SIDES
 from ridesim.model.wheel import Wheel
 from ridesim.solve.table import build_map, extend_periodic
@@ -568,15 +569,6 @@ def _check_side(side: str) -> None:
         raise InputError(f"side must be one of {', '.join(HUB_SIDES)}, got {side!r}")
 
 
-def _number(name: str, value) -> float:
-    if isinstance(value, bool) or not isinstance(value, (int, float, np.integer, np.floating)):
-        raise InputError(f"{name} must be a number, got {value!r}")
-    v = float(value)
-    if not math.isfinite(v) or v <= 0:
-        raise InputError(f"{name} must be > 0, got {value!r}")
-    return v
-
-
 def _closing_distance(own: Wheel, mode: str, target: float) -> float:
     """Centre distance [m] at which one turn of ``own`` turns the partner by ``target`` [rad]."""
     from ridesim.roots import find_root
@@ -723,7 +715,7 @@ def hub_for(wheel: Wheel, *, ratio: float | None = None, centre_distance: float 
             if side == "inside":
                 raise InputError("side = 'inside' needs a ratio > 1 (or a centre_distance)")
             ratio = 1
-        k = _number("ratio", ratio)
+        k = positive("ratio", ratio, unit="")
         if side == "inside" and not k > 1:
             raise GeometryError(
                 f"ratio = {ratio!r} with side = 'inside': a ring contains the wheel only when the"
@@ -732,7 +724,7 @@ def hub_for(wheel: Wheel, *, ratio: float | None = None, centre_distance: float 
         target = _ratio_target(k, wheel.symmetry, wheel.is_round, "ratio", "wheel")
         E = _closing_distance(wheel, side, target)
     else:
-        E = _number("centre_distance", centre_distance)
+        E = positive("centre_distance", centre_distance)
         target = None
     pair = _build(wheel, side, E, target, swapped=False, given=wheel, solved_from="wheel")
     if side == "inside" and pair.closed:
@@ -853,7 +845,7 @@ def gears_for_ratio(ratio, *, centre_distance: float, side: str = "outside") -> 
         Wheel = driver, hub = driven; ``pair.speed_ratio(theta)`` reproduces ``R``.
     """
     _check_side(side)
-    E = _number("centre_distance", centre_distance)
+    E = positive("centre_distance", centre_distance)
     R, label = _ratio_function(ratio)
     probe = np.linspace(0.0, TWO_PI, 4097)
     vals = R(probe)

@@ -91,13 +91,7 @@ def _eval_sorted(edges: np.ndarray, coefs: tuple[np.ndarray, ...], flat: np.ndar
         t = flat[a:b] - (edges[i] + half)
         t *= 1.0 / half
         for coef, res in zip(coefs, out, strict=True):
-            c = coef[i]
-            acc = res[a:b]
-            np.multiply(t, c[-1], out=acc)
-            for j in range(len(c) - 2, 0, -1):
-                acc += c[j]
-                acc *= t
-            acc += c[0]
+            _horner_into(res[a:b], t, coef[i])
     return out
 
 
@@ -120,14 +114,17 @@ def _eval_runs(edges: list[float], coefs: tuple[np.ndarray, ...], flat: np.ndarr
         t /= half
         t -= 1.0
         for coef, res in zip(coefs, out, strict=True):
-            c = coef[i].tolist()
-            acc = res[a:b]
-            np.multiply(t, c[-1], out=acc)
-            for k in range(len(c) - 2, 0, -1):
-                acc += c[k]
-                acc *= t
-            acc += c[0]
+            _horner_into(res[a:b], t, coef[i].tolist())
     return out
+
+
+def _horner_into(acc: np.ndarray, t: np.ndarray, c) -> None:
+    """``acc = c[0] + c[1] t + ... + c[-1] t**(n-1)`` by Horner's rule, in place (scalar ``c``)."""
+    np.multiply(t, c[-1], out=acc)
+    for j in range(len(c) - 2, 0, -1):
+        acc += c[j]
+        acc *= t
+    acc += c[0]
 
 
 @dataclass(frozen=True, eq=False)
