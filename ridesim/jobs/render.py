@@ -151,10 +151,24 @@ def _call(fn, *args, **kw) -> tuple:
 # The calls of the pictures being drawn: the drawing processes are forked from this one
 # while it is set, so they find the calls here and receive only an index (nothing pickled).
 _CALLS: list = []
+# One flag a picture, in memory shared with the drawing processes (made before the fork):
+# whoever sets a picture's flag first draws it (see _Drawing).
+_CLAIMS: Any = None
 
 
-def _draw_one(i: int) -> tuple:
-    """Draw call ``i`` of :data:`_CALLS` in a drawing process; its item and its warnings."""
+def _claim(i: int) -> bool:
+    """Take picture ``i`` to draw, unless this or another process has taken it already."""
+    with _CLAIMS.get_lock():
+        if _CLAIMS[i]:
+            return False
+        _CLAIMS[i] = 1
+        return True
+
+
+def _draw_one(i: int) -> tuple | None:
+    """Draw call ``i`` of :data:`_CALLS` in a drawing process: its item and its warnings (None if taken)."""
+    if not _claim(i):
+        return None
     fn, args, kw = _CALLS[i]
     with warnings.catch_warnings(record=True) as caught:
         item = fn(*args, **kw)
@@ -195,8 +209,10 @@ def idle_cores() -> int:
     return max(1, min(cores, int(cores - max(0.0, load - own) + 0.5)))
 
 
-def _draw_sent(fn, args: tuple, kw: dict) -> tuple:
-    """Draw a call sent to a drawing process (pickled; made after the fork); its item and warnings."""
+def _draw_sent(i: int, fn, args: tuple, kw: dict) -> tuple | None:
+    """Draw call ``i``, sent to a drawing process (pickled; made after the fork): as :func:`_draw_one`."""
+    if not _claim(i):
+        return None
     with warnings.catch_warnings(record=True) as caught:
         item = fn(*args, **kw)
     return item, [(str(w.message), w.category, w.filename, w.lineno) for w in caught]
@@ -207,9 +223,14 @@ class _Drawing:
 
     The first calls given to :meth:`start` are inherited by the drawing processes at their
     fork (only an index is sent); calls added later with :meth:`add` are sent pickled (they
-    hold arrays and words only). This process draws what no drawing process has begun once its
-    own work is done (:meth:`finish`), so ``cores`` cores need ``cores - 1`` drawing processes.
-    With fewer than two cores, or where a fork is not safe, every picture is drawn here.
+    hold arrays and words only). Every picture goes to the drawing processes, which take them
+    from the front; once its own work is done this process draws from the back those not yet
+    taken (:meth:`finish`), so ``cores`` cores need ``cores - 1`` drawing processes. Who draws
+    a picture is settled by a flag in shared memory, set by whoever takes it first: a picture
+    queued for a drawing process is still this process's to take until one begins it (a pool
+    that queued pictures ahead left this process idle at the end, and handing them out one
+    at a time from here waited on this process's busy thread). With fewer than two cores, or
+    where a fork is not safe, every picture is drawn here.
     """
 
     def __init__(self, cores: int):
@@ -217,6 +238,7 @@ class _Drawing:
         self.pool: Any = None
         self.items: list = []
         self.futures: dict = {}
+        self.n_inherited = 0
         self.gc_frozen = False
 
     def start(self, calls: list) -> None:
@@ -235,35 +257,38 @@ class _Drawing:
         import matplotlib.figure  # noqa: F401
         import matplotlib.patches  # noqa: F401
         import matplotlib.ticker  # noqa: F401
-        import PIL.PngImagePlugin  # noqa: F401
 
-        global _CALLS
+        global _CALLS, _CLAIMS
+        ctx = mp.get_context("fork")
         _CALLS = list(calls)
+        _CLAIMS = ctx.Array("b", _CLAIM_SLOTS + len(calls))
+        self.n_inherited = len(calls)
         # Objects that exist at the fork are left out of the children's garbage collection, so
         # that it does not touch (and so copy) every page of this process in each of them.
         gc.freeze()
         self.gc_frozen = True
-        self.pool = ProcessPoolExecutor(max_workers=n, mp_context=mp.get_context("fork"))
+        self.pool = ProcessPoolExecutor(max_workers=n, mp_context=ctx)
         self.futures = {i: self.pool.submit(_draw_one, i) for i in todo}
 
     def add(self, call) -> None:
         """One more picture call (or ready item), drawn after those already given."""
         self.items.append(call)
-        if self.pool is not None and _undone(call):
-            self.futures[len(self.items) - 1] = self.pool.submit(_draw_sent, *call)
+        i = len(self.items) - 1
+        if self.pool is not None and _undone(call) and i < len(_CLAIMS):
+            self.futures[i] = self.pool.submit(_draw_sent, i, *call)
 
     def finish(self) -> list:
-        """Draw here what no drawing process has begun, collect the rest; the items in order."""
+        """Draw here what no drawing process has taken, collect the rest; the items in order."""
         try:
             for i in reversed(range(len(self.items))):  # the drawing processes take from the front
-                call, fut = self.items[i], self.futures.get(i)
-                if fut is None or fut.cancel():  # not sent, or not begun: drawn here
-                    if _undone(call):
-                        self.items[i] = call[0](*call[1], **call[2])
+                call = self.items[i]
+                if _undone(call) and (i not in self.futures or _claim(i)):
+                    self.items[i] = call[0](*call[1], **call[2])
             for i, fut in self.futures.items():
-                if fut.cancelled():
+                got = fut.result()
+                if got is None:  # drawn here
                     continue
-                self.items[i], caught = fut.result()
+                self.items[i], caught = got
                 for message, category, filename, lineno in caught:
                     warnings.warn_explicit(message, category, filename, lineno)
             return self.items
@@ -272,7 +297,7 @@ class _Drawing:
 
     def close(self) -> None:
         """Stop the drawing processes (cancelling what they have not begun)."""
-        global _CALLS
+        global _CALLS, _CLAIMS
         if self.pool is not None:
             self.pool.shutdown(wait=True, cancel_futures=True)
             self.pool = None
@@ -282,6 +307,12 @@ class _Drawing:
             gc.unfreeze()
             self.gc_frozen = False
         _CALLS = []
+        _CLAIMS = None
+
+
+#: Flags for pictures added after the fork (a report adds four simulation pictures and the
+#: clip); any beyond them are drawn in this process.
+_CLAIM_SLOTS = 32
 
 
 def _undone(call) -> bool:
