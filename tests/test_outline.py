@@ -159,3 +159,22 @@ def test_points_profile_with_a_sharp_valley_keeps_it_as_a_kink():
     t = rs.Track.points(np.column_stack([x, f]))
     np.testing.assert_allclose(sorted(t.kinks), [0.0, L / 2], atol=1e-15)
     np.testing.assert_allclose(t.shape(np.array([L / 4, 3 * L / 4])), [0.03, 0.03], atol=1e-6)
+
+
+@pytest.mark.parametrize("n, corners", [(50, []), (200, [0, 17, 90]), (4096, [])])
+def test_points_and_derivatives_in_one_pass_are_scipys_ppoly_values(n, corners):
+    # Reference: scipy.interpolate.PPoly, the spline's own representation (xy calls it per
+    # coordinate and order); xy_d1 shares one interval search and must give the same bits,
+    # at knots, just either side of them, and beyond one period (the periodic wrap).
+    from ridesim.model.outline import ClosedSpline
+
+    t = np.linspace(0.0, 2.0 * np.pi, n, endpoint=False)
+    pts = np.column_stack([0.3 * np.cos(t), 0.2 * np.sin(t) * (1.0 + 0.1 * np.cos(3.0 * t))])
+    cs = ClosedSpline.through(pts, np.array(corners, dtype=int))
+    L = cs.length
+    rng = np.random.default_rng(n)
+    s = np.concatenate([rng.uniform(-L, 2.0 * L, 5000), cs.knots, cs.knots * (1 + 1e-16),
+                        cs.knots - 1e-12 * L])
+    p, d = cs.xy_d1(s)
+    assert np.array_equal(p, cs.xy(s))
+    assert np.array_equal(d, cs.xy(s, 1))

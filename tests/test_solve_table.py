@@ -57,3 +57,23 @@ def test_solved_track_height_and_slope_in_one_pass():
     xi = x[1:-1]
     fd = (tr.y(xi + h) - tr.y(xi - h)) / (2 * h)
     np.testing.assert_allclose(m[1:-1], fd, rtol=0, atol=1e-6)
+
+
+def test_initial_cells_are_numpy_linspace_per_piece():
+    # Reference: numpy.linspace over each piece, as the cells were first laid (one call a
+    # piece); the vectorised layout must give the same edges to the last bit.
+    from ridesim.solve.table import _initial_cells
+
+    rng = np.random.default_rng(7)
+    for trial in range(100):
+        br = np.sort(rng.uniform(-3.0, 5.0, int(rng.integers(2, 60))))
+        if trial % 3 == 0:  # repeated breaks: empty pieces are skipped
+            br = np.sort(np.concatenate([br, br[:3]]))
+        cells = int(rng.integers(1, 400))
+        ref = []
+        for a, b in zip(br[:-1], br[1:], strict=True):
+            if b <= a:
+                continue
+            e = np.linspace(a, b, int(np.ceil(max(1, cells * (b - a) / (br[-1] - br[0])))) + 1)
+            ref += list(zip(e[:-1].tolist(), e[1:].tolist(), strict=True))
+        assert [(lo, hi) for lo, hi, _ in _initial_cells(br, cells)] == ref

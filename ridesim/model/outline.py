@@ -32,6 +32,7 @@ from __future__ import annotations
 import math
 from collections.abc import Callable
 from dataclasses import dataclass
+from functools import cached_property
 
 import numpy as np
 
@@ -199,6 +200,36 @@ class ClosedSpline:
         s = np.asarray(s, dtype=float)
         return np.stack([self._x(s, nu), self._y(s, nu)], axis=-1)
 
+    @cached_property
+    def _coef_rows(self) -> np.ndarray:
+        """Both coordinates' coefficients per knot interval, shape (intervals, 8): x's then y's."""
+        return np.ascontiguousarray(np.concatenate([self._x.c, self._y.c], axis=0).T)  # type: ignore[attr-defined]
+
+    def xy_d1(self, s: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+        """Points and first derivatives at ``s`` [m]: ``xy(s)`` and ``xy(s, 1)``, located once.
+
+        The same arithmetic as scipy's ``PPoly`` (the periodic wrap, the interval closed on
+        the left, the powers summed from the constant term up), so the values are those of
+        :meth:`xy` to the last bit; both coordinates and orders share one interval search
+        and one gather of coefficients, the cost of two of the four ``PPoly`` calls.
+        """
+        br = self._x.x  # type: ignore[attr-defined]
+        s = np.asarray(s, dtype=float)
+        s = br[0] + (s - br[0]) % (br[-1] - br[0])
+        i = np.minimum(np.searchsorted(br, s, side="right") - 1, len(br) - 2)
+        i = np.maximum(i, 0)
+        c = self._coef_rows[i]  # (..., 8): x's c0..c3 (highest power first), then y's
+        t = s - br[i]
+        t2 = t * t
+        t3 = t2 * t
+        p = np.empty(s.shape + (2,))
+        d = np.empty(s.shape + (2,))
+        for k, o in enumerate((0, 4)):
+            c0, c1, c2, c3 = c[..., o], c[..., o + 1], c[..., o + 2], c[..., o + 3]
+            p[..., k] = c3 + c2 * t + c1 * t2 + c0 * t3
+            d[..., k] = c2 + c1 * t * 2.0 + c0 * t2 * 3.0
+        return p, d
+
     def sample(self, tol_m: float, max_points: int = 200_000) -> np.ndarray:
         """Points [m] along the curve whose chords stay within ``tol_m`` of it, corners kept.
 
@@ -252,8 +283,7 @@ class PolarRim:
         h = np.diff(k)
         u = np.arange(self._SUB) / self._SUB
         s = np.concatenate([(k[:-1, None] + h[:, None] * u[None, :]).ravel(), [k[-1]]])
-        p = curve.xy(s)
-        d = curve.xy(s, 1)
+        p, d = curve.xy_d1(s)
         cross = p[:, 0] * d[:, 1] - p[:, 1] * d[:, 0]
         ang = np.unwrap(np.arctan2(p[:, 1], p[:, 0]))
         scale = float(np.max(np.linalg.norm(p, axis=1)))
@@ -282,19 +312,30 @@ class PolarRim:
         lo, hi = self.s_tab[j], self.s_tab[j + 1]
         s = lo + (hi - lo) * (a - self.a_tab[j]) / (self.a_tab[j + 1] - self.a_tab[j])
         c, sn = np.cos(a), np.sin(a)
+        # Six Newton steps a point; a point that a step leaves where it was would stay there
+        # (the same step again), so it drops out: after three steps most have (a sixth
+        # keep moving by an ulp to the end), and the rest cost a fraction of the whole.
+        shape = s.shape
+        s, lo, hi, c, sn = (np.ravel(v).copy() for v in (s, lo, hi, c, sn))
+        act = np.arange(s.size)
         for _ in range(6):
-            p = self.curve.xy(s)
-            d = self.curve.xy(s, 1)
-            f = c * p[..., 1] - sn * p[..., 0]
-            df = c * d[..., 1] - sn * d[..., 0]
+            sa = s[act]
+            p, d = self.curve.xy_d1(sa)
+            ca, sna = c[act], sn[act]
+            f = ca * p[..., 1] - sna * p[..., 0]
+            df = ca * d[..., 1] - sna * d[..., 0]
             step = f / df
-            s = np.clip(s - step, lo, hi)
-        return s
+            new = np.clip(sa - step, lo[act], hi[act])
+            s[act] = new
+            act = act[new != sa]
+            if not act.size:
+                break
+        return s.reshape(shape)
 
     def radius(self, phi: np.ndarray) -> np.ndarray:
         """Distance [m] from the origin to the curve along polar angle ``phi`` [rad]."""
         phi = np.asarray(phi, dtype=float)
-        p = self.curve.xy(self.param(phi))
+        p, _ = self.curve.xy_d1(self.param(phi))
         return np.cos(phi) * p[..., 0] + np.sin(phi) * p[..., 1]
 
 

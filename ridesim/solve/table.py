@@ -244,6 +244,27 @@ class PolyTable:
         return g, dg
 
 
+def _initial_cells(breaks: np.ndarray, initial_cells: int) -> list[tuple[float, float, float]]:
+    """About ``initial_cells`` cells spread over the pieces between ``breaks``, each piece at least one.
+
+    Piece ``(a, b)`` gets ``n = ceil(max(1, initial_cells (b - a) / span))`` equal cells with the
+    edges of ``np.linspace(a, b, n + 1)`` (``a + j ((b - a) / n)``, the last ``b``), made for
+    every piece at once (a piece at a time cost a millisecond per hundred pieces, and a fine
+    outline has a piece per point).
+    """
+    a, b = breaks[:-1], breaks[1:]
+    keep = b > a
+    a, b = a[keep], b[keep]
+    n = np.ceil(np.maximum(1.0, initial_cells * (b - a) / (breaks[-1] - breaks[0]))).astype(np.int64)
+    piece = np.repeat(np.arange(len(n)), n)
+    j = np.arange(int(n.sum())) - np.repeat(np.cumsum(n) - n, n)
+    step = (b - a) / n
+    lo = j * step[piece] + a[piece]
+    hi = np.where(j + 1 == n[piece], b[piece], (j + 1) * step[piece] + a[piece])
+    inf = np.inf
+    return [(x, y, inf) for x, y in zip(lo.tolist(), hi.tolist(), strict=True)]
+
+
 def _cells_for(
     g: Callable[[np.ndarray], np.ndarray],
     breaks: Sequence[float],
@@ -262,12 +283,8 @@ def _cells_for(
     if initial_edges is not None:
         e = np.asarray(initial_edges, dtype=float)
         pending = [(lo, hi, np.inf) for lo, hi in zip(e[:-1], e[1:], strict=True) if hi > lo]
-    for a, b in zip(breaks_a[:-1], breaks_a[1:], strict=True) if initial_edges is None else ():
-        if b <= a:
-            continue
-        k = max(1, initial_cells * (b - a) / (breaks_a[-1] - breaks_a[0]))
-        e = np.linspace(a, b, int(np.ceil(k)) + 1)
-        pending.extend((lo, hi, np.inf) for lo, hi in zip(e[:-1], e[1:], strict=True))
+    if initial_edges is None:
+        pending = _initial_cells(breaks_a, initial_cells)
     done: list[tuple[float, float, np.ndarray]] = []
     scale = None
     for _ in range(40):
