@@ -36,6 +36,7 @@ from ridesim.arrays import unique_sorted
 from ridesim.errors import InputError
 from ridesim.export.results import write_json_atomic, write_text_atomic
 from ridesim.model.checks import positive as _positive
+from ridesim.validate import is_integer
 
 __all__ = [
     "CHORD_TOL_M",
@@ -252,7 +253,7 @@ def track_sections(pair, max_section_m: float = 1.0, periods: int | None = None)
     """
     L = _positive("max_section_m", max_section_m)
     n_per = pair.lobes if periods is None else periods
-    if isinstance(n_per, bool) or not isinstance(n_per, (int, np.integer)) or n_per < 1:
+    if not is_integer(n_per) or n_per < 1:
         raise InputError(f"periods must be an integer >= 1, got {periods!r}")
     P = pair.track.period
     x0 = _crest_x(pair.track)

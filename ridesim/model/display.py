@@ -16,6 +16,8 @@ from typing import Any
 
 import numpy as np
 
+from ridesim.validate import is_number
+
 __all__ = ["svg_drawing", "html_table", "format_figure", "unit_of", "UNITS", "require_pandas"]
 
 # (suffix, unit shown, factor to the shown unit, most decimals shown). Longest suffixes
@@ -126,7 +128,7 @@ def format_figure(key: str, v) -> str:
     if isinstance(v, (list, tuple)):
         if not v:
             return "none"
-        if all(isinstance(x, (int, float, np.number)) and not isinstance(x, bool) for x in v):
+        if all(is_number(x) for x in v):
             body = ", ".join(_num_text(x, factor, decimals, unit) for x in v)
             return f"{body} {unit}" if unit else body
         return ", ".join(format_figure(key, x) for x in v)

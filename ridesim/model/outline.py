@@ -38,6 +38,7 @@ import numpy as np
 
 from ridesim.arrays import unique_sorted
 from ridesim.errors import GeometryError, InputError
+from ridesim.validate import is_number
 
 __all__ = ["CORNER_ANGLE_DEG", "ClosedSpline", "PolarRim", "closed_turns", "open_turns", "choose_corners",
            "profile_spline"]
@@ -97,7 +98,7 @@ def choose_corners(turns: np.ndarray, corner_angle_deg: float, corners) -> np.nd
         except (TypeError, ValueError):
             raise InputError(f'corners must be "all", "none" or a list of point indices, got {corners!r}'
                              ) from None
-        if any(isinstance(i, bool) for i in corners) or any(float(i) != int(i) for i in corners):
+        if not all(is_number(i) for i in corners) or any(float(i) != int(i) for i in corners):
             raise InputError(f"corners must be whole point indices, got {corners!r}")
         bad = [i for i in idx if not 0 <= i < n]
         if bad:

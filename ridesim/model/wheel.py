@@ -137,7 +137,7 @@ class Wheel:
         -------
         Wheel
         """
-        if isinstance(sides, bool) or not isinstance(sides, (int, np.integer)) or sides < 3:
+        if not is_integer(sides) or sides < 3:
             raise InputError(f"sides must be an integer >= 3, got {sides!r}")
         given = [n for n, v in (("apothem", apothem), ("circumradius", circumradius),
                                 ("side", side)) if v is not None]

@@ -42,6 +42,7 @@ from typing import Any
 
 from ridesim.errors import RidesimError, ScenarioError
 from ridesim.scenario.load import Scenario, load_scenario, scenario_from_dict
+from ridesim.validate import is_integer, is_number
 
 __all__ = ["Variable", "Requirement", "Goal", "Brief", "load_brief", "JOB_ORDER", "figure_of"]
 
@@ -55,10 +56,6 @@ _OPS = {"max": "<=", "min": ">=", "equals": "=="}
 
 def _fail(msg: str) -> ScenarioError:
     return ScenarioError(msg)
-
-
-def _is_num(v: Any) -> bool:
-    return isinstance(v, (int, float)) and not isinstance(v, bool)
 
 
 @dataclass(frozen=True)
@@ -148,10 +145,10 @@ class Requirement:
         """
         if value is None:
             return None, math.nan, 1.0
-        if self.op == "==" and not (_is_num(self.target) and _is_num(value)):
+        if self.op == "==" and not (is_number(self.target) and is_number(value)):
             ok = value == self.target and type(value) is type(self.target)
             return ok, 0.0 if ok else 1.0, 0.0 if ok else 1.0
-        if not _is_num(value):
+        if not is_number(value):
             return False, math.nan, 1.0
         v, t = float(value), float(self.target)
         if not math.isfinite(v):
@@ -181,7 +178,7 @@ class Requirement:
         float or None
             ``(target - value)/|target|`` for ``<=``, the mirror for ``>=``.
         """
-        if self.op == "==" or not _is_num(value) or not _is_num(self.target):
+        if self.op == "==" or not is_number(value) or not is_number(self.target):
             return None
         scale = abs(self.target) if self.target != 0 else 1.0
         room = self.target - value if self.op == "<=" else value - self.target
@@ -367,7 +364,7 @@ def _variable(key: str, spec: Any, base: Scenario | None = None) -> Variable:
         if len(set(map(repr, spec))) != len(spec):
             raise _fail(f'vary."{key}" lists a value twice; give each choice once')
         for v in spec:
-            if kind in ("real", "int") and _is_num(v):
+            if kind in ("real", "int") and is_number(v):
                 if kind == "int" and not isinstance(v, int):
                     raise _fail(f'vary."{key}" takes whole numbers, got {v!r}')
                 _bounds_check(key, float(v))
@@ -383,7 +380,7 @@ def _variable(key: str, spec: Any, base: Scenario | None = None) -> Variable:
             raise _fail(f'vary."{key}" must be a list of choices or {{ from = a, to = b }},'
                         f" got keys {sorted(spec)}")
         a, b = spec["from"], spec["to"]
-        if not (_is_num(a) and _is_num(b)):
+        if not (is_number(a) and is_number(b)):
             raise _fail(f'vary."{key}" from/to must be numbers, got {a!r} and {b!r}')
         if kind not in ("real", "int"):
             raise _fail(f'vary."{key}" is not a number key ({kind}); list its choices instead')
@@ -436,7 +433,7 @@ def _requirement(path: str, spec: Any) -> list[Requirement]:
         return [Requirement(path, "==", spec)]
     if isinstance(spec, (bool, int, float)):
         return [Requirement(path, "==", spec, tol=1e-9 * max(1.0, abs(spec))
-                            if _is_num(spec) else 0.0)]
+                            if is_number(spec) else 0.0)]
     if isinstance(spec, dict):
         unknown = set(spec) - set(_OPS) - {"tol"}
         if unknown or not set(spec) & set(_OPS):
@@ -446,10 +443,10 @@ def _requirement(path: str, spec: Any) -> list[Requirement]:
         for k in ("max", "min", "equals"):
             if k in spec:
                 t = spec[k]
-                if k != "equals" and not _is_num(t):
+                if k != "equals" and not is_number(t):
                     raise _fail(f"{where}.{k} must be a number, got {t!r}")
-                tol = spec.get("tol", 1e-9 * max(1.0, abs(t)) if _is_num(t) else 0.0)
-                if not _is_num(tol) or tol < 0:
+                tol = spec.get("tol", 1e-9 * max(1.0, abs(t)) if is_number(t) else 0.0)
+                if not is_number(tol) or tol < 0:
                     raise _fail(f"{where}.tol must be a number >= 0, got {tol!r}")
                 out.append(Requirement(path, _OPS[k], t, tol=float(tol) if k == "equals" else 0.0))
         if "max" in spec and "min" in spec and spec["min"] > spec["max"]:
@@ -535,7 +532,7 @@ def load_brief(path: str | Path, *, probe: bool = True) -> Brief:
         raise _fail('brief needs base = "scenario.toml" (relative to the brief) or a [base] table'
                     " with the scenario's sections")
     seed = data.get("seed", 0)
-    if isinstance(seed, bool) or not isinstance(seed, int) or seed < 0:
+    if not is_integer(seed) or seed < 0:
         raise _fail(f"seed must be a whole number >= 0, got {seed!r}")
     search = dict(_SEARCH)
     raw_search = data.get("search", {})
@@ -548,9 +545,9 @@ def load_brief(path: str | Path, *, probe: bool = True) -> Brief:
             if not isinstance(v, bool):
                 raise _fail(f"search.screen must be true or false, got {v!r}")
         elif k == "xtol":
-            if not _is_num(v) or not 0 < v < 1:
+            if not is_number(v) or not 0 < v < 1:
                 raise _fail(f"search.xtol must be a fraction of each range, 0 < xtol < 1, got {v!r}")
-        elif isinstance(v, bool) or not isinstance(v, int) or v < (0 if k == "refine" else 1):
+        elif not is_integer(v) or v < (0 if k == "refine" else 1):
             raise _fail(f"search.{k} must be a whole number >= {0 if k == 'refine' else 1},"
                         f" got {v!r}")
         search[k] = v
@@ -599,7 +596,7 @@ def load_brief(path: str | Path, *, probe: bool = True) -> Brief:
     for g in goals:
         if g.path in keys:
             var = next(v for v in variables if v.key == g.path)
-            if not var.continuous and not all(_is_num(x) for x in var.values):
+            if not var.continuous and not all(is_number(x) for x in var.values):
                 raise _fail(f"goal {g.path!r} is not a number (its choices are"
                             f" {list(var.values)}); optimise a numeric key or figure")
 
@@ -616,10 +613,10 @@ def load_brief(path: str | Path, *, probe: bool = True) -> Brief:
         if isinstance(value, (dict, list)):
             raise _fail(f"{p!r} is a {'table' if isinstance(value, dict) else 'list'} of figures,"
                         " not one figure; name one of its entries")
-        if p in [g.path for g in goals] and value is not None and not _is_num(value):
+        if p in [g.path for g in goals] and value is not None and not is_number(value):
             raise _fail(f"goal {p!r} is not a number ({value!r}); optimise a numeric figure")
         for r in reqs:
-            if r.path == p and r.op != "==" and value is not None and not _is_num(value):
+            if r.path == p and r.op != "==" and value is not None and not is_number(value):
                 raise _fail(f'require."{p}" {r.op} needs a number, but {p} is {value!r};'
                             " use = true/false or a text value")
     return Brief(base=base, variables=variables, requirements=tuple(reqs), goals=tuple(goals),

@@ -23,6 +23,7 @@ from typing import Any, TextIO
 from ridesim._version import __version__
 from ridesim.errors import ScenarioError
 from ridesim.jobs.design.brief import Brief, Requirement, figure_of
+from ridesim.validate import is_integer
 
 __all__ = ["evaluate_design", "Evaluator", "JOURNAL", "LOG"]
 
@@ -115,8 +116,8 @@ class Evaluator:
     def __init__(self, brief: Brief, out_dir: str | Path | None = None, *,
                  workers: int | None = None, cluster: str | None = None,
                  progress: Callable[[int, int], None] | None = None) -> None:
-        if workers is not None and (isinstance(workers, bool) or workers < 1):
-            raise ScenarioError(f"--workers must be >= 1, got {workers}")
+        if workers is not None and (not is_integer(workers) or workers < 1):
+            raise ScenarioError(f"--workers must be a whole number >= 1, got {workers}")
         self.brief = brief
         self.workers = workers or os.cpu_count() or 1
         self.cluster = cluster

@@ -23,6 +23,7 @@ from ridesim.errors import InputError
 from ridesim.jobs.design.brief import Brief, load_brief
 from ridesim.jobs.design.evaluate import Evaluator
 from ridesim.jobs.design.search import Judged, SearchOutcome, run_search
+from ridesim.validate import is_number
 
 __all__ = ["DesignResult", "run_design", "scenario_toml", "pareto_front", "figure_label"]
 
@@ -458,7 +459,7 @@ def _miss(q: dict) -> str:
     if q["met"] is None:
         return f"{q['requirement']}: not evaluated (an earlier job missed its requirement)"
     v = q["value"]
-    if isinstance(v, (int, float)) and not isinstance(v, bool) and q["by"] is not None:
+    if is_number(v) and q["by"] is not None:
         return (f"{q['requirement']}: {_short(v)}, off by {_short(q['by'])}"
                 f" ({100 * q['by_rel']:.3g} %)")
     return f"{q['requirement']}: got {_short(v)}"

@@ -41,6 +41,7 @@ import numpy as np
 from ridesim.errors import ScenarioError
 from ridesim.jobs.design.brief import Brief
 from ridesim.jobs.design.evaluate import Evaluator
+from ridesim.validate import is_number
 
 __all__ = ["Judged", "judge", "run_search", "SearchOutcome"]
 
@@ -105,7 +106,7 @@ class Judged:
         if goal is None:
             return (0, 0.0)
         g = self.goals[goal]
-        if not isinstance(g, (int, float)) or isinstance(g, bool) or not math.isfinite(g):
+        if not is_number(g) or not math.isfinite(g):
             return (0, _INF)
         return (0, sense[goal] * float(g))
 
