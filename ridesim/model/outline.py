@@ -216,7 +216,8 @@ class ClosedSpline:
         """
         br = self._x.x  # type: ignore[attr-defined]
         s = np.asarray(s, dtype=float)
-        s = br[0] + (s - br[0]) % (br[-1] - br[0])
+        if s.size and not (br[0] <= s.min() and s.max() < br[-1]):  # within a period it is s itself
+            s = br[0] + (s - br[0]) % (br[-1] - br[0])
         i = np.minimum(np.searchsorted(br, s, side="right") - 1, len(br) - 2)
         i = np.maximum(i, 0)
         c = self._coef_rows[i]  # (..., 8): x's c0..c3 (highest power first), then y's
@@ -318,17 +319,24 @@ class PolarRim:
         # keep moving by an ulp to the end), and the rest cost a fraction of the whole.
         shape = s.shape
         s, lo, hi, c, sn = (np.ravel(v).copy() for v in (s, lo, hi, c, sn))
-        act = np.arange(s.size)
+        act = None  # every point, the first time
         for _ in range(6):
-            sa = s[act]
+            if act is None:
+                sa, ca, sna, la, ha = s, c, sn, lo, hi
+            else:
+                sa, ca, sna, la, ha = s[act], c[act], sn[act], lo[act], hi[act]
             p, d = self.curve.xy_d1(sa)
-            ca, sna = c[act], sn[act]
             f = ca * p[..., 1] - sna * p[..., 0]
             df = ca * d[..., 1] - sna * d[..., 0]
             step = f / df
-            new = np.clip(sa - step, lo[act], hi[act])
-            s[act] = new
-            act = act[new != sa]
+            new = np.clip(sa - step, la, ha)
+            moved = np.flatnonzero(new != sa)
+            if act is None:
+                s = new
+                act = moved
+            else:
+                s[act] = new
+                act = act[moved]
             if not act.size:
                 break
         return s.reshape(shape)
