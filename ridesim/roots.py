@@ -15,9 +15,9 @@ from __future__ import annotations
 
 import math
 from collections.abc import Callable
-from dataclasses import dataclass
 
 from ridesim.errors import InputError, RidesimError
+from ridesim.records import record
 
 __all__ = ["ConvergenceError", "Minimum", "find_minimum", "find_root"]
 
@@ -122,7 +122,7 @@ def find_root(
                            f" {maxiter} iterations (last estimate {b!r})")
 
 
-@dataclass(frozen=True)
+@record
 class Minimum:
     """Result of :func:`find_minimum`.
 

@@ -16,7 +16,7 @@ ROOT = Path(__file__).resolve().parent.parent / "ridesim"
 # Rank of each layer: a module may import modules of the same or a lower rank.
 LAYERS = [
     ("base", ["ridesim._version", "ridesim.errors", "ridesim.safety", "ridesim.roots", "ridesim.arrays",
-              "ridesim.validate"]),
+              "ridesim.validate", "ridesim.records"]),
     ("input records", ["ridesim.scenario.schema", "ridesim.scenario.load", "ridesim.scenario.toml_text",
                        "ridesim.scenario"]),
     ("model", ["ridesim.model"]),

@@ -55,7 +55,7 @@ mass on its axle and every wheel driven).
 from __future__ import annotations
 
 import math
-from dataclasses import dataclass, field
+from dataclasses import field
 
 import numpy as np
 
@@ -64,6 +64,7 @@ from ridesim.assess.friction import G_STANDARD_M_S2, ContactLoads, contact_loads
 from ridesim.errors import InputError
 from ridesim.model.vehicle import axle_offsets_m, drive_motors, motor_name
 from ridesim.model.wheel import MassProperties
+from ridesim.records import record
 from ridesim.roots import find_root
 from ridesim.scenario.load import DriveSpec, SurfaceSpec, VehicleSpec
 from ridesim.solve.pair import RollingPair
@@ -74,7 +75,7 @@ __all__ = ["AnalyticResult", "analyze_cycle", "TorqueModel", "shaft_speed_cycle"
 TWO_PI = 2.0 * math.pi
 
 
-@dataclass(frozen=True)
+@record
 class AnalyticResult:
     """Per-wheel loads, torque and power over one revolution at one speed.
 
@@ -748,7 +749,7 @@ def phase_figures(t_s, torque_Nm, shaft_speed_rad_s, window_s) -> dict:
     return out
 
 
-@dataclass(frozen=True)
+@record
 class DutyRun:
     """Per-motor torque and speed along a duty cycle from rest to rest.
 

@@ -80,12 +80,12 @@ just), pentagons and up seat freely.
 from __future__ import annotations
 
 import math
-from dataclasses import dataclass
 
 import numpy as np
 
 from ridesim.arrays import unique_sorted
 from ridesim.errors import InputError
+from ridesim.records import record
 from ridesim.roots import find_minimum
 from ridesim.solve.pair import RollingPair
 from ridesim.validate import is_integer
@@ -129,7 +129,7 @@ def _at(fn, v: float) -> float:
     return float(np.asarray(fn(np.array([float(v)])), dtype=float)[0])
 
 
-@dataclass(frozen=True)
+@record
 class ClearanceResult:
     """Least clearance between the posed wheel outline and the track.
 
@@ -214,7 +214,7 @@ class ClearanceResult:
         }
 
 
-@dataclass(frozen=True)
+@record
 class CuspSeat:
     """How a wheel corner seats in one track cusp.
 

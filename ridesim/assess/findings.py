@@ -17,10 +17,11 @@ Examples
 from __future__ import annotations
 
 from collections.abc import Mapping
-from dataclasses import dataclass, field
+from dataclasses import field
 from typing import Any
 
 from ridesim.errors import InputError
+from ridesim.records import record
 
 __all__ = ["CODES", "Finding"]
 
@@ -52,7 +53,7 @@ CODES: dict[str, tuple[bool, str]] = {
 }
 
 
-@dataclass(frozen=True)
+@record
 class Finding:
     """One thing an assessment found.
 

@@ -72,7 +72,6 @@ tilts, exactly like a block resting on an incline.
 from __future__ import annotations
 
 import math
-from dataclasses import dataclass
 
 import numpy as np
 
@@ -80,6 +79,7 @@ from ridesim.arrays import unique_sorted
 from ridesim.errors import InputError
 from ridesim.model.checks import finite as _finite
 from ridesim.model.wheel import MassProperties
+from ridesim.records import record
 from ridesim.solve.pair import RollingPair
 from ridesim.validate import is_integer
 
@@ -104,7 +104,7 @@ def _check_pair(pair) -> None:
         raise InputError(f"pair must be a ridesim RollingPair, got {type(pair).__name__}")
 
 
-@dataclass(frozen=True)
+@record
 class ContactLoads:
     """Kinematics and loads of one wheel at a set of axle positions (arrays, one per x).
 
@@ -326,7 +326,7 @@ def cycle_nodes(pair: RollingPair, n: int = 2048, offsets_m=(0.0,)) -> tuple[np.
     return x[order], w[order]
 
 
-@dataclass(frozen=True)
+@record
 class FrictionResult:
     """Friction the surface must supply along one revolution.
 

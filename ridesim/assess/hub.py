@@ -21,9 +21,10 @@
 from __future__ import annotations
 
 import math
-from dataclasses import dataclass
 
 import numpy as np
+
+from ridesim.records import record
 
 __all__ = ["HUB_DRIVES", "HubAssessment", "HubFriction", "HubLoads", "assess_hub", "hub_cycle",
            "hub_cycle_turns", "hub_friction", "hub_loads", "least_curvature_radius"]
@@ -31,7 +32,7 @@ __all__ = ["HUB_DRIVES", "HubAssessment", "HubFriction", "HubLoads", "assess_hub
 TWO_PI = 2.0 * math.pi
 
 
-@dataclass(frozen=True)
+@record
 class HubAssessment:
     """Figures of a solved hub pair.
 
@@ -152,7 +153,7 @@ def assess_hub(pair, n: int = 4096) -> HubAssessment:
 HUB_DRIVES = ("wheel", "arm")
 
 
-@dataclass(frozen=True)
+@record
 class HubLoads:
     """Quasi-static contact and drive loads of a hub pair at a set of wheel angles (arrays).
 
@@ -366,7 +367,7 @@ def hub_cycle(pair, n: int = 2048, *, full: bool = False) -> np.ndarray:
     return np.sort(np.mod(th, span))
 
 
-@dataclass(frozen=True)
+@record
 class HubFriction:
     """Friction the contact of a hub pair needs along its cycle.
 

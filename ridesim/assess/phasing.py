@@ -26,7 +26,6 @@ those of a wheelbase off by the tolerance, so round wheels are in phase at any w
 from __future__ import annotations
 
 import math
-from dataclasses import dataclass
 
 import numpy as np
 
@@ -34,6 +33,7 @@ from ridesim.assess.clearance import _BoxTree, _LineEnvelope
 from ridesim.assess.findings import Finding
 from ridesim.errors import InputError
 from ridesim.model.vehicle import axle_offsets_m
+from ridesim.records import record
 from ridesim.solve.pair import RollingPair
 
 __all__ = ["resting_height", "PhasingResult", "cart_phasing", "band_limited_peak_accel",
@@ -239,7 +239,7 @@ def resting_height(pair: RollingPair, x_m, theta_rad, *, chunk: int = 2048,
     return out
 
 
-@dataclass(frozen=True)
+@record
 class PhasingResult:
     """How a cart's wheels meet the track over one revolution.
 

@@ -22,7 +22,7 @@ Every figure is an engineering estimate from a rigid, ideal model.
 from __future__ import annotations
 
 import math
-from dataclasses import dataclass, field
+from dataclasses import field
 from typing import TYPE_CHECKING, Any
 
 import numpy as np
@@ -39,6 +39,7 @@ from ridesim.assess.clearance import ClearanceResult, CuspSeat, clearance, cusp_
 from ridesim.assess.findings import Finding
 from ridesim.assess.wording import describe
 from ridesim.errors import InputError
+from ridesim.records import record
 from ridesim.safety import SAFETY_CAUTIONS, caution_lines, with_safety
 from ridesim.scenario.build import resolve_wheelbase, solve_track_scenario, wheel_mass
 from ridesim.scenario.load import Scenario
@@ -67,7 +68,7 @@ def _f(v) -> float | None:
     return v if math.isfinite(v) else None
 
 
-@dataclass(frozen=True)
+@record
 class CheckResult:
     """The verdict on a scenario and the figures behind it.
 

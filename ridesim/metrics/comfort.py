@@ -67,13 +67,13 @@ Comfort is personal and the figures are engineering estimates: see the
 from __future__ import annotations
 
 import math
-from dataclasses import dataclass
 from types import MappingProxyType
 from typing import Any
 
 import numpy as np
 
 from ridesim.errors import InputError
+from ridesim.records import record
 from ridesim.safety import with_safety
 from ridesim.validate import is_number
 
@@ -98,7 +98,7 @@ __all__ = [
 ]
 
 
-@dataclass(frozen=True)
+@record
 class WeightingSpec:
     """Parameters of one ISO 2631-1 frequency weighting.
 
@@ -494,7 +494,7 @@ _STANDING_CAUTIONS = (
 )
 
 
-@dataclass(frozen=True)
+@record
 class ComfortReport:
     """Ride comfort at the seat point.
 
@@ -689,7 +689,7 @@ _NOMINAL_HZ = (
 _FIRST_BAND = -10
 
 
-@dataclass(frozen=True)
+@record
 class ComfortSpectrum:
     """One-third-octave band r.m.s. of a record, unweighted and weighted.
 

@@ -35,12 +35,13 @@ ratios are checked the same way.
 from __future__ import annotations
 
 import math
-from dataclasses import dataclass, field
+from dataclasses import field
 
 import numpy as np
 
 from ridesim.assess.hub import hub_cycle, hub_cycle_turns, hub_loads
 from ridesim.metrics.motor import MOTOR_CAUTIONS, RPM_PER_RAD_S, GearCheck
+from ridesim.records import record
 from ridesim.safety import caution_lines, with_safety
 
 __all__ = ["HubDrive", "HubMotorSizing", "hub_drive", "hub_cautions", "gear_checks", "HUB_MOTOR_CAUTIONS",
@@ -60,7 +61,7 @@ DRIVE_NAMES = {"gear": "driver gear shaft", "wheel": "wheel shaft (motor on the 
                "arm": "arm (motor at the pivot, wheel free on its axle)"}
 
 
-@dataclass(frozen=True)
+@record
 class HubDrive:
     """One motor turning a hub pair at a steady speed, over the cycle.
 
@@ -196,7 +197,7 @@ def hub_drive(pair, key: str, speed_rad_s: float, *, mass_kg: float = 0.0,
                     mean_power_W=float(np.sum(np.maximum(power, 0.0) * dt) / T))
 
 
-@dataclass(frozen=True)
+@record
 class HubMotorSizing:
     """Motor sizing of a hub scenario: one motor (gears) or the two ways to drive a carousel.
 

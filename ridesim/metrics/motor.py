@@ -37,12 +37,13 @@ rotor inertia ``J i α_wheel``, and turns at ``i ω``.
 from __future__ import annotations
 
 import math
-from dataclasses import dataclass, field
+from dataclasses import field
 
 import numpy as np
 
 from ridesim.assess.analytic import duty_profile, phase_figures
 from ridesim.model.vehicle import motor_name
+from ridesim.records import record
 from ridesim.safety import caution_lines, with_safety
 
 __all__ = ["MotorSizing", "GearCheck", "duty_profile", "motor_sizing", "CAUTIONS", "MOTOR_CAUTIONS"]
@@ -65,7 +66,7 @@ CAUTIONS = tuple(with_safety(MOTOR_CAUTIONS))
 """Every caution a motor sizing carries."""
 
 
-@dataclass(frozen=True)
+@record
 class GearCheck:
     """One candidate reduction checked against the motor's ratings.
 
@@ -91,7 +92,7 @@ class GearCheck:
     limits: tuple[str, ...]
 
 
-@dataclass(frozen=True)
+@record
 class MotorSizing:
     """Per-motor duty over the cycle and the gear ratios that fit.
 

@@ -32,12 +32,13 @@ import difflib
 import operator
 import re
 from collections.abc import Callable, Iterator
-from dataclasses import dataclass, field
+from dataclasses import field
 from typing import Any, NamedTuple
 
 import numpy as np
 
 from ridesim.errors import FormulaError, InputError
+from ridesim.records import record
 
 __all__ = ["Formula", "parse", "MAX_FORMULA_LENGTH", "MAX_NESTING"]
 
@@ -940,7 +941,7 @@ def _parse_tree(text: object, variable: str) -> _Node:
 # --------------------------------------------------------------------------
 
 
-@dataclass(frozen=True)
+@record
 class Formula:
     """A parsed formula in one variable, evaluated vectorised with numpy.
 

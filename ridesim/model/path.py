@@ -11,10 +11,9 @@ Applied Theory*, 2nd ed., 2004; Litvin, Fuentes-Aznar, Gonzalez-Perez & Hayasaka
 
 from __future__ import annotations
 
-from dataclasses import dataclass
-
 from ridesim.errors import InputError
 from ridesim.model.checks import positive
+from ridesim.records import record
 from ridesim.scenario.schema import HUB_SIDES, PATH_KINDS
 
 __all__ = ["AxlePath", "PATH_KINDS", "HUB_SIDES"]
@@ -29,7 +28,7 @@ def _opt_positive(name: str, value: float | None) -> float | None:
     return positive(name, value, unit="")
 
 
-@dataclass(frozen=True)
+@record
 class AxlePath:
     """Where the axle runs.
 

@@ -28,7 +28,6 @@ The as-built track
 from __future__ import annotations
 
 import math
-from dataclasses import dataclass
 from typing import Any
 
 import numpy as np
@@ -37,6 +36,7 @@ from ridesim.errors import InputError
 from ridesim.model.checks import finite as _finite
 from ridesim.model.checks import point
 from ridesim.model.wheel import MassProperties
+from ridesim.records import record
 from ridesim.validate import is_integer
 
 __all__ = [
@@ -239,7 +239,7 @@ def as_built_mass(mass: MassProperties, scale: float, axle_error_m) -> MassPrope
                           area_m2=float(mass.area_m2) * s * s)
 
 
-@dataclass(frozen=True)
+@record
 class AsBuilt:
     """The manufacturing errors of one build.
 

@@ -15,7 +15,6 @@ from __future__ import annotations
 
 import math
 from collections.abc import Callable, Sequence
-from dataclasses import dataclass
 
 import numpy as np
 
@@ -25,6 +24,7 @@ from ridesim.model.checks import finite as _finite
 from ridesim.model.checks import point as _point
 from ridesim.model.checks import positive as _positive
 from ridesim.model.outline import CORNER_ANGLE_DEG, ClosedSpline
+from ridesim.records import record
 from ridesim.validate import is_integer, is_number
 
 __all__ = ["Wheel", "MassProperties"]
@@ -33,7 +33,7 @@ TWO_PI = 2.0 * math.pi
 
 
 
-@dataclass(frozen=True)
+@record
 class MassProperties:
     """Mass properties of a wheel cut from a plate.
 

@@ -29,6 +29,7 @@ from typing import TYPE_CHECKING, cast
 import numpy as np
 
 from ridesim.errors import ScenarioError
+from ridesim.records import record
 
 if TYPE_CHECKING:
     from ezdxf.entities import Polyline
@@ -48,7 +49,7 @@ def is_drawing(path: str | Path) -> bool:
     return Path(path).suffix.lower() in (".dxf", ".svg")
 
 
-@dataclass(frozen=True)
+@record
 class DrawnOutline:
     """An outline read from a drawing.
 

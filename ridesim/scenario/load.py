@@ -31,11 +31,12 @@ import numbers
 import re
 import tomllib
 from collections.abc import Iterable, Mapping
-from dataclasses import dataclass, field, fields
+from dataclasses import field, fields
 from pathlib import Path
 from typing import Any
 
 from ridesim.errors import ScenarioError
+from ridesim.records import record
 from ridesim.scenario import schema as _schema
 from ridesim.scenario.schema import (
     DRIVE_MODES,
@@ -145,7 +146,7 @@ _MISSING: Any = object()
 # with default_of("section.key"), and t.get("key") in the section's parser.
 
 
-@dataclass(frozen=True)
+@record
 class OutlineSpec:
     """A validated outline: the shape keys a ``[wheel]`` and a ``[hub]`` share.
 
@@ -173,7 +174,7 @@ class OutlineSpec:
     axle_m: Point | None = default_of("wheel.axle_m")
 
 
-@dataclass(frozen=True)
+@record
 class HubSpec(OutlineSpec):
     """Validated ``[hub]`` section: the given hub (or ring) outline; the wheel is solved for it.
 
@@ -189,7 +190,7 @@ class HubSpec(OutlineSpec):
     lobes: int | None = default_of("hub.lobes")
 
 
-@dataclass(frozen=True)
+@record
 class RatioSpec:
     """Validated ``[ratio]`` section: a gear pair's required speed ratio (both curves solved).
 
@@ -214,7 +215,7 @@ class RatioSpec:
         return self.points_rad
 
 
-@dataclass(frozen=True)
+@record
 class WheelSpec(OutlineSpec):
     """Validated ``[wheel]`` section: the wheel outline and its mass properties.
 
@@ -299,7 +300,7 @@ class WheelSpec(OutlineSpec):
     fit_track_to_corners: bool | None = None  # stored None when false (left out of to_dict)
 
 
-@dataclass(frozen=True)
+@record
 class TrackSpec:
     """Validated ``[track]`` section: the track profile y(x) the wheel must fit.
 
@@ -374,7 +375,7 @@ class TrackSpec:
     section_length_m: float = default_of("track.section_length_m")
 
 
-@dataclass(frozen=True)
+@record
 class VehicleSpec:
     """Validated ``[vehicle]`` section: the body carried by the axles.
 
@@ -436,7 +437,7 @@ class VehicleSpec:
         return self.driven_axles
 
 
-@dataclass(frozen=True)
+@record
 class DriveSpec:
     """Validated ``[drive]`` section: how the wheels are driven.
 
@@ -469,7 +470,7 @@ class DriveSpec:
     shaft_speed_rad_s: float | None = default_of("drive.shaft_speed_rad_s")
 
 
-@dataclass(frozen=True)
+@record
 class SurfaceSpec:
     """Validated ``[surface]`` section: contact between wheel and track.
 
@@ -485,7 +486,7 @@ class SurfaceSpec:
     rolling_resistance: float = default_of("surface.rolling_resistance")
 
 
-@dataclass(frozen=True)
+@record
 class RunSpec:
     """Validated ``[run]`` section: simulation length and solver settings.
 
@@ -507,7 +508,7 @@ class RunSpec:
     iterations: int = default_of("run.iterations")
 
 
-@dataclass(frozen=True)
+@record
 class DutySpec:
     """Validated ``[duty]`` section: the duty cycle used to size the motor.
 
@@ -532,7 +533,7 @@ class DutySpec:
     rest_s: float = default_of("duty.rest_s")
 
 
-@dataclass(frozen=True)
+@record
 class MotorSpec:
     """Validated ``[motor]`` section: an optional motor and gear ratios to check.
 
@@ -563,7 +564,7 @@ class MotorSpec:
     inertia_kg_m2: float = default_of("motor.inertia_kg_m2")
 
 
-@dataclass(frozen=True)
+@record
 class PathSpec:
     """Validated ``[path]`` section: where the axle runs.
 
@@ -610,7 +611,7 @@ class PathSpec:
         return self.kind == "hub"
 
 
-@dataclass(frozen=True)
+@record
 class ExportSpec:
     """Validated ``[export]`` section: what the cut files hold and how they are drawn.
 
@@ -647,7 +648,7 @@ class ExportSpec:
     rails: int = default_of("export.rails")
 
 
-@dataclass(frozen=True)
+@record
 class Scenario:
     """A validated scenario: one build and how to run it.
 

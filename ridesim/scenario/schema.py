@@ -40,9 +40,10 @@ from __future__ import annotations
 import math
 import numbers
 from collections.abc import Iterable
-from dataclasses import dataclass, replace
+from dataclasses import replace
 from typing import Any
 
+from ridesim.records import record
 from ridesim.validate import is_number
 
 __all__ = [
@@ -148,7 +149,7 @@ KINDS = ("real", "int", "bool", "str", "choice", "pair", "points", "file", "ints
 """Value types of :attr:`Key.kind`."""
 
 
-@dataclass(frozen=True)
+@record
 class Key:
     """One scenario key: its type, default, hard bounds, plausible range, unit and meaning.
 

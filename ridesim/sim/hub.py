@@ -16,11 +16,11 @@ speed can be compared with the analytic ``dψ/dθ = r/ρ``
 from __future__ import annotations
 
 import math
-from dataclasses import dataclass
 
 import numpy as np
 
 from ridesim.errors import InputError, SimulationError
+from ridesim.records import record
 
 __all__ = ["GearRun", "CarouselRun", "run_gear_pair", "run_carousel"]
 
@@ -28,7 +28,7 @@ TWO_PI = 2.0 * math.pi
 G = 9.80665
 
 
-@dataclass(frozen=True)
+@record
 class GearRun:
     """Record of a simulated gear pair.
 
@@ -212,7 +212,7 @@ def run_gear_pair(pair, *, driver_speed_rad_s: float = 2.0, turns: float = 1.0,
                    load_torque_Nm=float(load_torque_Nm))
 
 
-@dataclass(frozen=True)
+@record
 class CarouselRun:
     """Record of a simulated carousel: the hub fixed, the wheel on an arm about its centre.
 

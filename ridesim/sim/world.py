@@ -65,6 +65,7 @@ import pymunk
 
 from ridesim.errors import InputError
 from ridesim.model.tolerance import AsBuilt
+from ridesim.records import record
 from ridesim.sim.budget import check_simulation_budget
 from ridesim.sim.world_chassis import (
     add_chassis,
@@ -142,7 +143,7 @@ SLOP_M = 1e-3
 
 
 
-@dataclass(frozen=True)
+@record
 class WorldOptions:
     """Build settings that the scenario file does not hold.
 

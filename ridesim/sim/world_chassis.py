@@ -8,8 +8,6 @@ See :mod:`ridesim.sim.world` for the modelling choices.
 
 from __future__ import annotations
 
-from dataclasses import dataclass
-
 import numpy as np
 import pymunk
 import pymunk.autogeometry
@@ -17,9 +15,10 @@ import pymunk.autogeometry
 from ridesim.errors import InputError
 from ridesim.model.tolerance import AsBuilt
 from ridesim.model.vehicle import axle_offsets_m
+from ridesim.records import record
 
 
-@dataclass(frozen=True)
+@record
 class Masses:
     """Masses of the build.
 

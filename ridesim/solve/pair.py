@@ -14,13 +14,14 @@ is extended periodically: ``theta(x + x_span) = theta(x) + theta_span``.
 from __future__ import annotations
 
 import math
-from dataclasses import dataclass, replace
+from dataclasses import replace
 
 import numpy as np
 
 from ridesim.errors import ClosureError
 from ridesim.model.track import Track
 from ridesim.model.wheel import Wheel
+from ridesim.records import record
 from ridesim.solve.table import MonotoneMap, extend_periodic
 
 __all__ = ["RollingPair", "Cusp", "CatenaryMap", "TableMap", "SpiralMap"]
@@ -29,7 +30,7 @@ HALF_PI = 0.5 * math.pi
 TWO_PI = 2.0 * math.pi
 
 
-@dataclass(frozen=True)
+@record
 class Cusp:
     """A corner of the track, where a wheel vertex seats.
 

@@ -36,11 +36,12 @@ from __future__ import annotations
 
 import math
 import tomllib
-from dataclasses import dataclass, field
+from dataclasses import field
 from pathlib import Path
 from typing import Any
 
 from ridesim.errors import RidesimError, ScenarioError
+from ridesim.records import record
 from ridesim.scenario.load import Scenario, load_scenario, scenario_from_dict
 from ridesim.validate import is_integer, is_number
 
@@ -58,7 +59,7 @@ def _fail(msg: str) -> ScenarioError:
     return ScenarioError(msg)
 
 
-@dataclass(frozen=True)
+@record
 class Variable:
     """One varied scenario key.
 
@@ -95,7 +96,7 @@ class Variable:
         return f"{self.key} in {{{', '.join(str(v) for v in self.values)}}}"
 
 
-@dataclass(frozen=True)
+@record
 class Requirement:
     """A condition on one figure: ``value op target``.
 
@@ -185,7 +186,7 @@ class Requirement:
         return float(room) / scale
 
 
-@dataclass(frozen=True)
+@record
 class Goal:
     """One objective.
 
@@ -205,7 +206,7 @@ class Goal:
         return f"{'minimize' if self.sense > 0 else 'maximize'} {self.path}"
 
 
-@dataclass(frozen=True)
+@record
 class Brief:
     """A validated brief.
 

@@ -41,6 +41,7 @@ import numpy as np
 from ridesim.errors import ScenarioError
 from ridesim.jobs.design.brief import Brief
 from ridesim.jobs.design.evaluate import Evaluator
+from ridesim.records import record
 from ridesim.validate import is_number
 
 __all__ = ["Judged", "judge", "run_search", "SearchOutcome"]
@@ -48,7 +49,7 @@ __all__ = ["Judged", "judge", "run_search", "SearchOutcome"]
 _INF = math.inf
 
 
-@dataclass(frozen=True)
+@record
 class Judged:
     """One evaluated design, judged against the brief.
 

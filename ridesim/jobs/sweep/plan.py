@@ -27,7 +27,6 @@ import itertools
 import json
 import math
 import tomllib
-from dataclasses import dataclass
 from pathlib import Path
 from typing import Any
 
@@ -35,6 +34,7 @@ import numpy as np
 
 from ridesim._version import __version__
 from ridesim.errors import ScenarioError
+from ridesim.records import record
 from ridesim.scenario.load import Scenario, check_nesting, load_scenario, scenario_keys
 from ridesim.scenario.schema import KEY
 from ridesim.validate import is_integer, is_number
@@ -46,7 +46,7 @@ RUNS = ("solve", "check", "simulate", "size-motor")
 _TOP = ("base", "run", "vary", "random")
 
 
-@dataclass(frozen=True)
+@record
 class Case:
     """One case of a sweep.
 
@@ -65,7 +65,7 @@ class Case:
     key: str
 
 
-@dataclass(frozen=True)
+@record
 class SweepPlan:
     """A validated sweep: the base scenario, the run and every case.
 

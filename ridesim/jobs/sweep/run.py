@@ -18,13 +18,13 @@ import os
 import time
 from collections.abc import Callable
 from concurrent.futures import FIRST_COMPLETED, ProcessPoolExecutor, wait
-from dataclasses import dataclass
 from pathlib import Path
 from typing import Any
 
 from ridesim.errors import ScenarioError
 from ridesim.export.results import flatten, write_bytes_atomic, write_text_atomic
 from ridesim.jobs.sweep.plan import SweepPlan
+from ridesim.records import record
 from ridesim.validate import is_integer
 
 __all__ = ["run_sweep", "run_case", "SweepOutcome", "read_journal"]
@@ -34,7 +34,7 @@ TABLE = "results.csv"
 LOG = "sweep.log"
 
 
-@dataclass(frozen=True)
+@record
 class SweepOutcome:
     """What a sweep run did.
 
