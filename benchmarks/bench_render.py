@@ -78,7 +78,7 @@ def previous_place(fig):
 
 
 def one_by_one() -> bool:
-    """Never fork: ``draw_all`` then draws each picture in the calling process."""
+    """Never fork: every picture is then drawn in the calling process."""
     return False
 
 

@@ -11,7 +11,7 @@ from pathlib import Path
 
 import pytest
 
-from ridesim.jobs.render import draw_all, render_scenario
+from ridesim.jobs.render import _Drawing, render_scenario
 from ridesim.scenario.load import load_scenario
 
 ROOT = Path(__file__).resolve().parent.parent
@@ -44,23 +44,54 @@ def _fails():
     raise ValueError("no picture")
 
 
-def test_draw_all_keeps_the_order_ready_items_and_warnings():
+def _draw(calls, cores, added=()):
+    """The pictures drawn as render_scenario draws them: started, some added after the fork."""
+    drawing = _Drawing(cores)
+    try:
+        drawing.start(calls)
+        for call in added:
+            drawing.add(call)
+        return drawing.finish()
+    finally:
+        drawing.close()
+
+
+def test_drawing_keeps_the_order_ready_items_and_warnings():
     calls = [(_warns, (0,), {}), (Path("ready.png"), "ready"), (_warns, (2,), {})]
     with warnings.catch_warnings(record=True) as caught:
         warnings.simplefilter("always")
-        items = draw_all(calls, workers=2, meanwhile=(_warns, (3,), {}))
+        items = _draw(calls, 2, added=[(_warns, (3,), {}), (Path("late.png"), "late")])
     assert items == [(Path("p0.png"), "caption 0"), (Path("ready.png"), "ready"),
-                     (Path("p2.png"), "caption 2"), (Path("p3.png"), "caption 3")]
+                     (Path("p2.png"), "caption 2"), (Path("p3.png"), "caption 3"),
+                     (Path("late.png"), "late")]
     assert sorted(str(w.message) for w in caught) == ["trouble 0", "trouble 2", "trouble 3"]
     assert all(issubclass(w.category, RuntimeWarning) for w in caught)
 
 
-def test_draw_all_raises_a_picture_error_and_draws_serially_beside_threads():
+def test_each_picture_is_drawn_once_by_whoever_takes_it(tmp_path):
+    # Every picture is queued for the drawing process and this process takes from the back
+    # what it has not begun: each is drawn exactly once (a file a drawing; appending to a
+    # name twice would leave two lines).
+    def calls(n):
+        return [(_mark, (tmp_path / f"m{i}.txt",), {}) for i in range(n)]
+
+    items = _draw(calls(6), 2, added=calls(9)[6:])
+    assert [p.name for p, _ in items] == [f"m{i}.txt" for i in range(9)]
+    assert all((tmp_path / f"m{i}.txt").read_text() == "x\n" for i in range(9))
+
+
+def _mark(path):
+    with open(path, "a", encoding="utf-8") as f:
+        f.write("x\n")
+    return path, "marked"
+
+
+def test_drawing_raises_a_picture_error_and_draws_serially_beside_threads():
     with pytest.raises(ValueError, match="no picture"), warnings.catch_warnings():
         warnings.simplefilter("ignore")  # the other picture may be drawn here, warning as it does
-        draw_all([(_fails, (), {}), (_warns, (1,), {})], workers=2)
+        _draw([(_fails, (), {}), (_warns, (1,), {})], 2)
     out = []
-    th = threading.Thread(target=lambda: out.extend(draw_all([(_warns, (1,), {})] * 2, workers=2)))
+    th = threading.Thread(target=lambda: out.extend(_draw([(_warns, (1,), {})] * 2, 2)))
     with warnings.catch_warnings():
         warnings.simplefilter("ignore")
         th.start()

@@ -167,12 +167,8 @@ def _claim(i: int) -> bool:
 
 def _draw_one(i: int) -> tuple | None:
     """Draw call ``i`` of :data:`_CALLS` in a drawing process: its item and its warnings (None if taken)."""
-    if not _claim(i):
-        return None
     fn, args, kw = _CALLS[i]
-    with warnings.catch_warnings(record=True) as caught:
-        item = fn(*args, **kw)
-    return item, [(str(w.message), w.category, w.filename, w.lineno) for w in caught]
+    return _draw_sent(i, fn, args, kw)
 
 
 def _can_fork() -> bool:
@@ -318,40 +314,6 @@ _CLAIM_SLOTS = 32
 def _undone(call) -> bool:
     """Whether ``call`` is a picture call ``(fn, args, kw)`` rather than a ready item."""
     return len(call) == 3 and callable(call[0])
-
-
-def draw_all(calls: list, *, workers: int | None = None, meanwhile: tuple | None = None) -> list:
-    """Run picture calls, side by side in forked processes where that is possible and pays.
-
-    Each picture is an independent file drawn by the same code on a copy of this process
-    (same matplotlib settings and fonts), so the files are the same bytes as drawn one by
-    one; the caller's matplotlib backend and settings are left alone.
-
-    Parameters
-    ----------
-    calls : list
-        ``(fn, args, kw)`` per picture, each returning its ``(path, caption)`` item, or a
-        ready item (a ``(path, caption)`` pair) kept as it is.
-    workers : int, optional
-        Cores to draw on, this process's included (default: the idle cores,
-        :func:`idle_cores`); 1 draws everything in this process.
-    meanwhile : (fn, args, kw), optional
-        A call run in this process while the others draw (the clip, which reports
-        progress); its item is appended last.
-
-    Returns
-    -------
-    list of (Path, str)
-        The items, in the order of ``calls`` (then ``meanwhile``'s).
-    """
-    drawing = _Drawing(idle_cores() if workers is None else max(1, int(workers)))
-    try:
-        drawing.start(calls)
-        last = meanwhile[0](*meanwhile[1], **meanwhile[2]) if meanwhile is not None else None
-        items = drawing.finish()
-    finally:
-        drawing.close()
-    return items + ([last] if meanwhile is not None else [])
 
 
 def _sim_plots(sc, steady, out: Path, svg: bool, res, pair, mp):
