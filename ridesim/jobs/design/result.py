@@ -23,16 +23,10 @@ from ridesim.errors import InputError
 from ridesim.jobs.design.brief import Brief, load_brief
 from ridesim.jobs.design.evaluate import Evaluator
 from ridesim.jobs.design.search import Judged, SearchOutcome, run_search
+from ridesim.scenario.toml_text import toml_text
 from ridesim.validate import is_number
 
-__all__ = ["DesignResult", "run_design", "scenario_toml", "pareto_front", "figure_label"]
-
-
-def scenario_toml(data: dict, header: list[str]) -> str:
-    """A scenario dict as TOML that reads back equal (:func:`ridesim.scenario.toml_text.toml_text`)."""
-    from ridesim.scenario.toml_text import toml_text
-
-    return toml_text(data, header)
+__all__ = ["DesignResult", "run_design", "pareto_front", "figure_label"]
 
 
 def pareto_front(designs: list[Judged], sense: tuple[int, ...]) -> list[Judged]:
@@ -360,9 +354,9 @@ class DesignResult:
         data["description"] = (f"{sc.description} Design {rank} of brief"
                                f" {Path(self.brief.source).name}: {vals}.").strip()
         status = "meets the brief" if d.feasible else "does NOT meet the brief (nearest design)"
-        return scenario_toml(data, [f"Written by ridesim design from {self.brief.source}.",
-                                    f"Design {rank} ({status}): {vals}.",
-                                    "Run it: ridesim check THIS.toml (simulate, report, export)."])
+        return toml_text(data, [f"Written by ridesim design from {self.brief.source}.",
+                                f"Design {rank} ({status}): {vals}.",
+                                "Run it: ridesim check THIS.toml (simulate, report, export)."])
 
     def _plot_front(self, path: Path) -> Path:
         from ridesim.render.plots import _save
