@@ -116,7 +116,7 @@ _TREE_CHUNK_POSES = 2048  # poses per chunk through the disc hierarchy
 _TREE_FIRST_POSES = 16  # a small first chunk sets the running minimum early
 #: Rims of at most this many points (or edges) are measured whole at a single pose (the worst
 #: pose's refinement): numpy's per-call cost makes the box hierarchy's descent dearer there
-#: (about 0.9 ms a pose on the 2048-point rims of the demos, 0.3 ms measured whole).
+#: (0.8-1.05 ms a pose through the boxes on the demos' 2048-point rims, 0.14-0.47 ms measured whole).
 _DIRECT_POINTS = 4096
 
 

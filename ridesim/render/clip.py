@@ -436,7 +436,6 @@ def _render_frames(pair, *, frames_data, duration_s, fps, size, follow, speed_m_
     n = len(motion.t)
     frames = []
     if antialias:
-
         rgb = []
         for f in range(n):
             rgb.append(painter.frame(f).convert("RGB").reduce(2))

@@ -5,8 +5,9 @@ size but much for the time: Pillow's encoder tries every filter on every row (ad
 filtering) before zlib compresses them. Here every row takes filter type 0 (None) and
 the whole image is compressed in one ``zlib.compress`` call: about twice as fast as
 Pillow at the same zlib level, for files within about 10 % of its size (measured on the
-demo pictures; ``benchmarks/bench_render.py``). Any PNG reader reads the result; the
-pixels are exactly those given.
+five pictures ``render`` draws of the hexagon trolley, from their RGBA canvases: 11-14 ms
+against Pillow's 22-27 ms, medians of 7; 100-145 KB against 103-148 KB). Any PNG reader
+reads the result; the pixels are exactly those given.
 """
 
 from __future__ import annotations
@@ -17,11 +18,12 @@ import zlib
 import numpy as np
 
 from ridesim.errors import InputError
+from ridesim.validate import is_integer
 
 __all__ = ["encode_png", "PNG_COMPRESS_LEVEL"]
 
-#: zlib level of the PNGs: level 1 writes about twice as fast as level 6 for files about
-#: 8 % larger (measured on the pictures of the demo scenarios).
+#: zlib level of the PNGs: level 1 compresses in 6-8 ms, level 6 in 13-17 ms, for files 17-25 %
+#: larger (the same five pictures, RGB, fastest of 5).
 PNG_COMPRESS_LEVEL = 1
 
 _SIGNATURE = b"\x89PNG\r\n\x1a\n"
@@ -57,11 +59,13 @@ def encode_png(image: np.ndarray, level: int = PNG_COMPRESS_LEVEL) -> bytes:
     a = np.asarray(image)
     if a.dtype != np.uint8 or a.ndim != 3 or a.shape[2] not in (3, 4) or 0 in a.shape[:2]:
         raise InputError(f"image must be a uint8 array of shape (H, W, 3 or 4), got {a.dtype} {a.shape}")
-    if not (isinstance(level, int) and 0 <= level <= 9):
+    if not (is_integer(level) and 0 <= level <= 9):
         raise InputError(f"level must be a zlib level from 0 to 9, got {level!r}")
     h, w = a.shape[:2]
     rows = np.empty((h, 1 + 3 * w), dtype=np.uint8)
     rows[:, 0] = 0  # filter type None on every row
+    # rows[:, 1:] keeps each row contiguous, so splitting its last axis into (w, 3) is always a
+    # view (numpy copies on reshape only when the strides cannot express the new shape).
     rows[:, 1:].reshape(h, w, 3)[...] = a[:, :, :3]
     header = struct.pack(">IIBBBBB", w, h, 8, 2, 0, 0, 0)  # 8 bits, truecolour, deflate, no interlace
     return (_SIGNATURE + _chunk(b"IHDR", header) + _chunk(b"IDAT", zlib.compress(rows.data, level))
